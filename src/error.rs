@@ -1,0 +1,63 @@
+//! Typed errors of the library. "Called wrong" is an [`Error`]; how a game ended is
+//! data ([`crate::game::Ending`]).
+
+use std::path::PathBuf;
+
+/// Everything that can go wrong when the library is called or reads input.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum Error {
+    /// Class parameters violate the class's invariants.
+    #[error("invalid class: {reason}")]
+    InvalidClass {
+        /// What is wrong.
+        reason: String,
+    },
+    /// No built-in method has this name.
+    #[error("unknown method {name:?}; `naysayer list` shows the built-in methods")]
+    UnknownMethod {
+        /// The name given.
+        name: String,
+    },
+    /// No adversary has this name.
+    #[error("unknown adversary {name:?}; `naysayer list` shows the adversaries")]
+    UnknownAdversary {
+        /// The name given.
+        name: String,
+    },
+    /// The method or adversary does not support this class.
+    #[error("{what} does not support this class: {reason}")]
+    Unsupported {
+        /// The method or adversary.
+        what: String,
+        /// Why.
+        reason: String,
+    },
+    /// A method broke the rules of the game (bad query, internal failure).
+    #[error("method {method:?} failed: {reason}")]
+    MethodFailed {
+        /// Method name.
+        method: String,
+        /// What went wrong.
+        reason: String,
+    },
+    /// Reading or writing a file failed.
+    #[error("{action} {path}: {source}")]
+    Io {
+        /// "cannot read", "cannot write", ...
+        action: &'static str,
+        /// The file.
+        path: PathBuf,
+        /// The cause.
+        #[source]
+        source: std::io::Error,
+    },
+    /// A transcript record is malformed or out of place.
+    #[error("transcript line {line}: {reason}")]
+    Transcript {
+        /// 1-based line number (one record a line).
+        line: u64,
+        /// What is wrong.
+        reason: String,
+    },
+}

@@ -1,0 +1,332 @@
+//! Exact rational numbers as adversaries compute them and transcripts store them.
+//!
+//! Queries are `f64`, hence exact dyadic rationals. Numbers an adversary computes
+//! (a witness centre, a cut offset, a function value) are exact rationals that `f64`
+//! may not hold (THEORY.md section 0). [`Exact`] keeps such a number exactly: as an
+//! `f64` when the value is exactly representable (the common, fast case), otherwise
+//! as a big rational. On disk an exactly representable value is a plain JSON number;
+//! any other value is an object `{"exact": "p/q", "approx": f}` whose `approx` is the
+//! nearest `f64` (ties to even), checked on reading.
+
+use std::cmp::Ordering;
+use std::fmt;
+
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::{One, Signed, ToPrimitive, Zero};
+use serde::de::{self, Deserializer, MapAccess, Visitor};
+use serde::ser::{SerializeMap, Serializer};
+use serde::{Deserialize, Serialize};
+
+/// An exact rational number: a finite `f64` when representable, else a big rational.
+///
+/// Invariant: the `Ratio` variant never holds a value that is exactly an `f64`, so
+/// equality of representations is equality of values.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Exact {
+    /// A finite `f64`, taken as the exact dyadic rational it denotes.
+    Float(f64),
+    /// A rational that no finite `f64` equals.
+    Ratio(Box<BigRational>),
+}
+
+impl Exact {
+    /// Zero.
+    pub const ZERO: Exact = Exact::Float(0.0);
+
+    /// The exact value of a finite `f64`; `None` for NaN or an infinity.
+    pub fn from_f64(value: f64) -> Option<Exact> {
+        value.is_finite().then_some(Exact::Float(value))
+    }
+
+    /// The exact value of a rational, stored as an `f64` when that is exact.
+    pub fn from_rational(value: BigRational) -> Exact {
+        if let Some(f) = rational_as_exact_f64(&value) {
+            Exact::Float(f)
+        } else {
+            Exact::Ratio(Box::new(value))
+        }
+    }
+
+    /// The nearest `f64` (round to nearest, ties to even; saturates to +-MAX).
+    pub fn to_f64(&self) -> f64 {
+        match self {
+            Exact::Float(f) => *f,
+            Exact::Ratio(r) => nearest_f64(r),
+        }
+    }
+
+    /// The value as a big rational.
+    pub fn to_rational(&self) -> BigRational {
+        match self {
+            Exact::Float(f) => f64_to_rational(*f),
+            Exact::Ratio(r) => (**r).clone(),
+        }
+    }
+
+    /// True when the value is exactly the `f64` returned by [`Exact::to_f64`].
+    pub fn is_f64(&self) -> bool {
+        matches!(self, Exact::Float(_))
+    }
+
+    /// The exact midpoint (a + b) / 2 of two `f64` values.
+    pub fn midpoint(a: f64, b: f64) -> Exact {
+        let half = f64_to_rational(a) + f64_to_rational(b);
+        Exact::from_rational(half / BigRational::from_integer(BigInt::from(2)))
+    }
+
+    /// Exact comparison of two values.
+    pub fn cmp_exact(&self, other: &Exact) -> Ordering {
+        match (self, other) {
+            (Exact::Float(a), Exact::Float(b)) => a.partial_cmp(b).expect("finite by invariant"),
+            _ => self.to_rational().cmp(&other.to_rational()),
+        }
+    }
+
+    /// The exact value written as `p/q` (or `p` when it is an integer).
+    pub fn to_exact_string(&self) -> String {
+        rational_to_string(&self.to_rational())
+    }
+}
+
+impl fmt::Display for Exact {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Exact::Float(x) => write!(f, "{x}"),
+            Exact::Ratio(r) => write!(f, "{} (~{})", rational_to_string(r), nearest_f64(r)),
+        }
+    }
+}
+
+/// The exact rational value of a finite `f64`.
+///
+/// # Panics
+/// Panics on NaN or an infinity; callers validate finiteness first.
+pub fn f64_to_rational(value: f64) -> BigRational {
+    BigRational::from_float(value).expect("finite f64 has an exact rational value")
+}
+
+/// `Some(f)` when the rational equals the finite `f64` `f` exactly.
+pub fn rational_as_exact_f64(value: &BigRational) -> Option<f64> {
+    let f = nearest_f64(value);
+    (f.is_finite() && f64_to_rational(f) == *value).then_some(f)
+}
+
+/// The `f64` nearest to a rational, ties to even, saturating at +-`f64::MAX`.
+///
+/// Computed from the exact quotient with enough bits, then corrected by comparing
+/// neighbours exactly, so the result does not depend on a library's rounding.
+pub fn nearest_f64(value: &BigRational) -> f64 {
+    if value.is_zero() {
+        return 0.0;
+    }
+    let guess = value.to_f64().unwrap_or(if value.is_negative() {
+        f64::MIN
+    } else {
+        f64::MAX
+    });
+    let guess = if guess.is_finite() {
+        guess
+    } else if guess > 0.0 {
+        f64::MAX
+    } else {
+        f64::MIN
+    };
+    // Walk to the best neighbour: the library guess is within one ulp in practice.
+    let mut best = guess;
+    let mut best_err = (f64_to_rational(best) - value).abs();
+    for candidate in [next_down(guess), next_up(guess)] {
+        if !candidate.is_finite() {
+            continue;
+        }
+        let err = (f64_to_rational(candidate) - value).abs();
+        match err.cmp(&best_err) {
+            Ordering::Less => {
+                best = candidate;
+                best_err = err;
+            }
+            Ordering::Equal if candidate.to_bits() & 1 == 0 && best.to_bits() & 1 == 1 => {
+                best = candidate;
+                best_err = err;
+            }
+            _ => {}
+        }
+    }
+    best
+}
+
+fn next_up(x: f64) -> f64 {
+    if x.is_nan() || x == f64::INFINITY {
+        return x;
+    }
+    if x == 0.0 {
+        return f64::from_bits(1);
+    }
+    let bits = x.to_bits();
+    if x > 0.0 {
+        f64::from_bits(bits + 1)
+    } else {
+        f64::from_bits(bits - 1)
+    }
+}
+
+fn next_down(x: f64) -> f64 {
+    -next_up(-x)
+}
+
+/// Writes a rational as `p/q`, or `p` when the denominator is one.
+pub fn rational_to_string(value: &BigRational) -> String {
+    if value.denom().is_one() {
+        value.numer().to_string()
+    } else {
+        format!("{}/{}", value.numer(), value.denom())
+    }
+}
+
+/// Parses `p/q`, `p`, or a decimal such as `-1.25e-3` into an exact rational.
+pub fn parse_rational(text: &str) -> Option<BigRational> {
+    let text = text.trim();
+    if let Some((p, q)) = text.split_once('/') {
+        let p: BigInt = p.trim().parse().ok()?;
+        let q: BigInt = q.trim().parse().ok()?;
+        if q.is_zero() {
+            return None;
+        }
+        return Some(BigRational::new(p, q));
+    }
+    parse_decimal(text)
+}
+
+fn parse_decimal(text: &str) -> Option<BigRational> {
+    let (mantissa, exponent) = match text.find(['e', 'E']) {
+        Some(pos) => (&text[..pos], text[pos + 1..].parse::<i64>().ok()?),
+        None => (text, 0),
+    };
+    let (negative, digits) = match mantissa.strip_prefix('-') {
+        Some(rest) => (true, rest),
+        None => (false, mantissa.strip_prefix('+').unwrap_or(mantissa)),
+    };
+    let (int_part, frac_part) = digits.split_once('.').unwrap_or((digits, ""));
+    if int_part.is_empty() && frac_part.is_empty() {
+        return None;
+    }
+    if !int_part.chars().chain(frac_part.chars()).all(|c| c.is_ascii_digit()) {
+        return None;
+    }
+    if exponent.unsigned_abs() > 100_000 {
+        return None;
+    }
+    let all_digits = format!("{int_part}{frac_part}");
+    let mut numer: BigInt = if all_digits.is_empty() {
+        BigInt::zero()
+    } else {
+        all_digits.parse().ok()?
+    };
+    if negative {
+        numer = -numer;
+    }
+    let scale = exponent - frac_part.len() as i64;
+    let ten = BigInt::from(10);
+    let value = if scale >= 0 {
+        BigRational::from_integer(numer * num_traits::pow(ten, scale as usize))
+    } else {
+        BigRational::new(numer, num_traits::pow(ten, (-scale) as usize))
+    };
+    Some(value)
+}
+
+impl Serialize for Exact {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        match self {
+            Exact::Float(f) => serializer.serialize_f64(*f),
+            Exact::Ratio(r) => {
+                let mut map = serializer.serialize_map(Some(2))?;
+                map.serialize_entry("exact", &rational_to_string(r))?;
+                map.serialize_entry("approx", &nearest_f64(r))?;
+                map.end()
+            }
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for Exact {
+    fn deserialize<D: Deserializer<'de>>(deserializer: D) -> Result<Exact, D::Error> {
+        deserializer.deserialize_any(ExactVisitor)
+    }
+}
+
+struct ExactVisitor;
+
+impl<'de> Visitor<'de> for ExactVisitor {
+    type Value = Exact;
+
+    fn expecting(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str("a finite number or {\"exact\": \"p/q\", \"approx\": f}")
+    }
+
+    fn visit_f64<E: de::Error>(self, v: f64) -> Result<Exact, E> {
+        Exact::from_f64(v).ok_or_else(|| E::custom("non-finite number"))
+    }
+
+    fn visit_i64<E: de::Error>(self, v: i64) -> Result<Exact, E> {
+        Ok(Exact::from_rational(BigRational::from_integer(v.into())))
+    }
+
+    fn visit_u64<E: de::Error>(self, v: u64) -> Result<Exact, E> {
+        Ok(Exact::from_rational(BigRational::from_integer(v.into())))
+    }
+
+    fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<Exact, A::Error> {
+        let mut exact: Option<String> = None;
+        let mut approx: Option<f64> = None;
+        while let Some(key) = map.next_key::<String>()? {
+            match key.as_str() {
+                "exact" => exact = Some(map.next_value()?),
+                "approx" => approx = Some(map.next_value()?),
+                other => return Err(de::Error::unknown_field(other, &["exact", "approx"])),
+            }
+        }
+        let exact = exact.ok_or_else(|| de::Error::missing_field("exact"))?;
+        let approx = approx.ok_or_else(|| de::Error::missing_field("approx"))?;
+        let value = parse_rational(&exact)
+            .ok_or_else(|| de::Error::custom(format!("not a rational: {exact:?}")))?;
+        if nearest_f64(&value) != approx {
+            return Err(de::Error::custom(format!(
+                "approx {approx} is not the nearest f64 to {exact}"
+            )));
+        }
+        Ok(Exact::from_rational(value))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn midpoint_that_f64_cannot_hold_is_kept_exactly() {
+        let a = 1.0;
+        let b = 1.0 + f64::EPSILON;
+        let mid = Exact::midpoint(a, b);
+        assert!(!mid.is_f64());
+        let back: Exact = serde_json::from_str(&serde_json::to_string(&mid).unwrap()).unwrap();
+        assert_eq!(back, mid);
+        // Ties to even: the midpoint of two neighbours rounds to the even one, 1.0.
+        assert_eq!(mid.to_f64(), 1.0);
+    }
+
+    #[test]
+    fn decimal_and_fraction_parse_exactly() {
+        let r = parse_rational("-1.25e-1").unwrap();
+        assert_eq!(r, BigRational::new((-1).into(), 8.into()));
+        assert_eq!(parse_rational("3/6").unwrap(), BigRational::new(1.into(), 2.into()));
+        assert!(parse_rational("1/0").is_none());
+        assert!(parse_rational("abc").is_none());
+    }
+
+    #[test]
+    fn wrong_approx_is_rejected() {
+        let text = r#"{"exact":"1/3","approx":0.5}"#;
+        assert!(serde_json::from_str::<Exact>(text).is_err());
+    }
+}

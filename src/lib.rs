@@ -1,0 +1,12 @@
+//! naysayer: plays optimization methods against resisting oracles and certifies
+//! oracle-complexity lower bounds exactly.
+pub mod adversary;
+pub mod class;
+pub mod error;
+pub mod exact;
+pub mod geometry;
+pub mod instance;
+pub mod method;
+pub mod oracle;
+
+pub use error::Error;

@@ -1,0 +1,54 @@
+//! Midpoint: query the centre of the method's own box model (multidimensional
+//! bisection; common practice, no source). Against the box-halving adversary it is
+//! optimal: it meets the lower bound d*k + 1 exactly (THEORY.md 1.1).
+
+use crate::class::FeasibilityClass;
+use crate::error::Error;
+use crate::geometry::BoxModel;
+use crate::oracle::{Answer, Output, Step};
+use crate::method::Method;
+
+/// Queries the centre of its box; declares "empty" once some side is at most 2 rho.
+/// An `inside` answer ends the game with that point.
+#[derive(Clone, Debug)]
+pub struct Midpoint {
+    model: BoxModel,
+    rho: f64,
+    found: Option<Vec<f64>>,
+}
+
+impl Midpoint {
+    /// Starts from the class's box.
+    pub fn new(class: &FeasibilityClass) -> Midpoint {
+        Midpoint {
+            model: BoxModel::cube(class.dim, class.half_width),
+            rho: class.rho,
+            found: None,
+        }
+    }
+}
+
+impl Method for Midpoint {
+    fn name(&self) -> &str {
+        "midpoint"
+    }
+
+    fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
+        if let Some(point) = self.found.take() {
+            return Ok(Step::Output(Output::Point { point }));
+        }
+        if self.model.too_thin_for(self.rho) {
+            return Ok(Step::Output(Output::Empty));
+        }
+        self.model.center_into(query);
+        Ok(Step::Query)
+    }
+
+    fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
+        match answer {
+            Answer::Inside => self.found = Some(query.to_vec()),
+            Answer::Cut(cut) => self.model.apply(cut),
+        }
+        Ok(())
+    }
+}

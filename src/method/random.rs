@@ -1,0 +1,60 @@
+//! Random: query a uniform random point of the method's own box model (a seeded
+//! baseline; common practice, no source).
+
+use rand::{Rng, SeedableRng};
+use rand_chacha::ChaCha8Rng;
+
+use crate::class::FeasibilityClass;
+use crate::error::Error;
+use crate::geometry::BoxModel;
+use crate::method::Method;
+use crate::oracle::{Answer, Output, Step};
+
+/// Uniform point of its box; "empty" once some side is at most 2 rho.
+#[derive(Clone, Debug)]
+pub struct RandomPoint {
+    model: BoxModel,
+    rho: f64,
+    rng: ChaCha8Rng,
+    found: Option<Vec<f64>>,
+}
+
+impl RandomPoint {
+    /// Starts from the class's box with generator seed `seed`.
+    pub fn new(class: &FeasibilityClass, seed: u64) -> RandomPoint {
+        RandomPoint {
+            model: BoxModel::cube(class.dim, class.half_width),
+            rho: class.rho,
+            rng: ChaCha8Rng::seed_from_u64(seed),
+            found: None,
+        }
+    }
+}
+
+impl Method for RandomPoint {
+    fn name(&self) -> &str {
+        "random"
+    }
+
+    fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
+        if let Some(point) = self.found.take() {
+            return Ok(Step::Output(Output::Point { point }));
+        }
+        if self.model.too_thin_for(self.rho) {
+            return Ok(Step::Output(Output::Empty));
+        }
+        for ((q, l), u) in query.iter_mut().zip(&self.model.lower).zip(&self.model.upper) {
+            let t: f64 = self.rng.random();
+            *q = (l + t * (u - l)).clamp(*l, *u);
+        }
+        Ok(Step::Query)
+    }
+
+    fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
+        match answer {
+            Answer::Inside => self.found = Some(query.to_vec()),
+            Answer::Cut(cut) => self.model.apply(cut),
+        }
+        Ok(())
+    }
+}
