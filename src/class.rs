@@ -64,7 +64,9 @@ impl FeasibilityClass {
             ));
         }
         if !rho.is_finite() || rho <= 0.0 || rho.is_subnormal() {
-            return bad(format!("rho = {rho} must be a finite positive normal number"));
+            return bad(format!(
+                "rho = {rho} must be a finite positive normal number"
+            ));
         }
         if rho >= half_width {
             return bad(format!(
@@ -118,7 +120,14 @@ mod tests {
     #[test]
     fn halvings_match_the_exact_predicate() {
         // k = ceil(log2(R/rho)) - 1 (THEORY.md 1.1), derived by hand for these ratios.
-        let cases = [(64.0, 5), (1000.0, 9), (1e6, 19), (4.0, 1), (3.0, 1), (2.0, 0)];
+        let cases = [
+            (64.0, 5),
+            (1000.0, 9),
+            (1e6, 19),
+            (4.0, 1),
+            (3.0, 1),
+            (2.0, 0),
+        ];
         for (ratio, k) in cases {
             let class = FeasibilityClass::new(1, 1.0, 1.0 / ratio, Promise::MayBeEmpty).unwrap();
             assert_eq!(class.halvings(), k, "R/rho = {ratio}");

@@ -210,7 +210,11 @@ fn parse_decimal(text: &str) -> Option<BigRational> {
     if int_part.is_empty() && frac_part.is_empty() {
         return None;
     }
-    if !int_part.chars().chain(frac_part.chars()).all(|c| c.is_ascii_digit()) {
+    if !int_part
+        .chars()
+        .chain(frac_part.chars())
+        .all(|c| c.is_ascii_digit())
+    {
         return None;
     }
     if exponent.unsigned_abs() > 100_000 {
@@ -319,7 +323,10 @@ mod tests {
     fn decimal_and_fraction_parse_exactly() {
         let r = parse_rational("-1.25e-1").unwrap();
         assert_eq!(r, BigRational::new((-1).into(), 8.into()));
-        assert_eq!(parse_rational("3/6").unwrap(), BigRational::new(1.into(), 2.into()));
+        assert_eq!(
+            parse_rational("3/6").unwrap(),
+            BigRational::new(1.into(), 2.into())
+        );
         assert!(parse_rational("1/0").is_none());
         assert!(parse_rational("abc").is_none());
     }

@@ -10,3 +10,9 @@ pub mod method;
 pub mod oracle;
 
 pub use error::Error;
+pub mod bounds;
+pub mod certificate;
+pub mod cli;
+pub mod game;
+pub mod runner;
+pub mod transcript;

@@ -101,8 +101,12 @@ impl Halving {
                 Ordering::Less => true,
                 Ordering::Greater => false,
                 Ordering::Equal => {
-                    cmp_sides(self.upper[i], self.lower[i], self.upper[best], self.lower[best])
-                        == Ordering::Greater
+                    cmp_sides(
+                        self.upper[i],
+                        self.lower[i],
+                        self.upper[best],
+                        self.lower[best],
+                    ) == Ordering::Greater
                 }
             };
             if better {
@@ -307,7 +311,13 @@ mod tests {
             })
         );
         let a = adversary.answer(&[-0.5, 0.0]);
-        assert!(matches!(a, Answer::Cut(Cut { normal: Normal::Axis { axis: 1, .. }, .. })));
+        assert!(matches!(
+            a,
+            Answer::Cut(Cut {
+                normal: Normal::Axis { axis: 1, .. },
+                ..
+            })
+        ));
         assert_eq!(adversary.cut_counts(), &[1, 1]);
     }
 }

@@ -65,7 +65,8 @@ impl Ellipsoid {
             dense: vec![0.0; d],
             log_volume: d as f64 * log_radius,
             // A relative margin so rounding in the running sum never claims too early.
-            log_volume_floor: d as f64 * class.rho.ln() - 1e-9 * (1.0 + d as f64 * log_radius.abs()),
+            log_volume_floor: d as f64 * class.rho.ln()
+                - 1e-9 * (1.0 + d as f64 * log_radius.abs()),
             log_ratio: if d >= 2 { log_volume_ratio(d) } else { 0.0 },
             interval: (d == 1).then(|| BoxModel::cube(1, class.half_width)),
             rho: class.rho,

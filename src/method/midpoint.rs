@@ -5,8 +5,8 @@
 use crate::class::FeasibilityClass;
 use crate::error::Error;
 use crate::geometry::BoxModel;
-use crate::oracle::{Answer, Output, Step};
 use crate::method::Method;
+use crate::oracle::{Answer, Output, Step};
 
 /// Queries the centre of its box; declares "empty" once some side is at most 2 rho.
 /// An `inside` answer ends the game with that point.

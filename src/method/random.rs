@@ -43,7 +43,11 @@ impl Method for RandomPoint {
         if self.model.too_thin_for(self.rho) {
             return Ok(Step::Output(Output::Empty));
         }
-        for ((q, l), u) in query.iter_mut().zip(&self.model.lower).zip(&self.model.upper) {
+        for ((q, l), u) in query
+            .iter_mut()
+            .zip(&self.model.lower)
+            .zip(&self.model.upper)
+        {
             let t: f64 = self.rng.random();
             *q = (l + t * (u - l)).clamp(*l, *u);
         }

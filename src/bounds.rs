@@ -1,0 +1,179 @@
+//! Lower and upper bounds on the number of queries, each with what it assumes and its
+//! source.
+//!
+//! Notation: X = [-R, R]^d, accuracy rho (radius of a Euclidean ball inside K when K is
+//! nonempty), separation oracle with strict cuts (THEORY.md section 0). A lower bound
+//! holds for every method, deterministic or randomized, run by run (the adversary
+//! answers adaptively). An upper bound is what one named method is proven to need at
+//! most on the whole class. A guide is a published order of growth whose constant is
+//! not verified here; it is printed without a number.
+
+use serde::Serialize;
+
+use crate::class::{FeasibilityClass, Promise};
+use crate::method::ellipsoid::log_volume_ratio;
+
+/// Whether a bound is a lower or an upper bound.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Side {
+    /// No method needs fewer queries.
+    Lower,
+    /// The named method never needs more.
+    Upper,
+}
+
+/// How much a bound's number is worth.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Status {
+    /// Follows from a published theorem plus a few derived lines (checked by tests).
+    Proven,
+    /// An order of growth only; the constant is unspecified.
+    Guide,
+}
+
+/// One bound line.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct Bound {
+    /// Short label for tables and charts.
+    pub label: &'static str,
+    /// Lower or upper.
+    pub side: Side,
+    /// The number of queries, when the bound has one.
+    pub queries: Option<u64>,
+    /// The formula, in words a reader can check.
+    pub formula: &'static str,
+    /// Proven or guide.
+    pub status: Status,
+    /// Published source.
+    pub source: &'static str,
+}
+
+/// The box-halving lower bound (THEORY.md 1.1): every method needs d*k + 1 queries when
+/// K may be empty and d*k under the nonempty promise, k = max{j >= 0 : R 2^-j > rho}.
+pub fn halving_lower_bound(class: &FeasibilityClass) -> u64 {
+    let dk = class.dim as u64 * u64::from(class.halvings());
+    match class.promise {
+        Promise::MayBeEmpty => dk + 1,
+        Promise::Nonempty => dk,
+    }
+}
+
+/// ln of the volume of the unit Euclidean ball in R^d, kappa_d = pi^(d/2) / Gamma(d/2 + 1),
+/// with Gamma at integers and half-integers computed as exact products of logarithms.
+pub fn ln_unit_ball_volume(d: usize) -> f64 {
+    let ln_pi = std::f64::consts::PI.ln();
+    let ln_gamma_half_d_plus_one = if d % 2 == 0 {
+        // Gamma(m + 1) = m!, m = d/2.
+        (1..=d / 2).map(|j| (j as f64).ln()).sum::<f64>()
+    } else {
+        // Gamma(m + 1/2) = (2m)! sqrt(pi) / (4^m m!), m = (d + 1)/2.
+        let m = d.div_ceil(2);
+        let ln_fact = |n: usize| (1..=n).map(|j| (j as f64).ln()).sum::<f64>();
+        ln_fact(2 * m) + 0.5 * ln_pi - (m as f64) * 4f64.ln() - ln_fact(m)
+    };
+    0.5 * d as f64 * ln_pi - ln_gamma_half_d_plus_one
+}
+
+/// Queries the exact centre-of-gravity method needs at most: the least N with
+/// (2R)^d (1 - (d/(d+1))^d)^N < kappa_d rho^d, since each central cut keeps at most
+/// 1 - (d/(d+1))^d of the volume (Grunbaum 1960) and a rho-ball has volume kappa_d rho^d.
+pub fn centre_of_gravity_upper_bound(class: &FeasibilityClass) -> u64 {
+    let d = class.dim as f64;
+    let kept = -(-(d * (-(1.0 / (d + 1.0))).ln_1p()).exp()).ln_1p();
+    let numerator = d * (2.0 * class.half_width / class.rho).ln() - ln_unit_ball_volume(class.dim);
+    (numerator / kept).floor().max(0.0) as u64 + 1
+}
+
+/// Queries the central-cut ellipsoid method needs at most, starting from the ball of
+/// radius R sqrt(d): the least N with (R sqrt(d))^d r_d^N < rho^d (volume ratio r_d per
+/// cut, Bertsimas & Tsitsiklis 1997 ch. 8). In d = 1 the method is bisection: k + 1.
+pub fn ellipsoid_upper_bound(class: &FeasibilityClass) -> u64 {
+    let d = class.dim;
+    if d == 1 {
+        return u64::from(class.halvings()) + 1;
+    }
+    let df = d as f64;
+    let numerator = df * ((class.half_width / class.rho).ln() + 0.5 * df.ln());
+    (numerator / -log_volume_ratio(d)).floor() as u64 + 1
+}
+
+/// Every bound line for a feasibility class, lower bound first.
+pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
+    vec![
+        Bound {
+            label: "lower bound (box halving)",
+            side: Side::Lower,
+            queries: Some(halving_lower_bound(class)),
+            formula: "d*k + 1 (d*k if K is promised nonempty), k = max{j >= 0 : R 2^-j > rho}",
+            status: Status::Proven,
+            source: "box-halving adversary, THEORY.md 1.1; order Theta(d log(R/rho)): \
+                     Nemirovski & Yudin 1983",
+        },
+        Bound {
+            label: "centre of gravity",
+            side: Side::Upper,
+            queries: Some(centre_of_gravity_upper_bound(class)),
+            formula: "least N with (2R)^d (1 - (d/(d+1))^d)^N < kappa_d rho^d",
+            status: Status::Proven,
+            source: "Grunbaum 1960, Pacific J. Math. 10; Levin 1965, Newman 1965",
+        },
+        Bound {
+            label: "ellipsoid",
+            side: Side::Upper,
+            queries: Some(ellipsoid_upper_bound(class)),
+            formula: "least N with (R sqrt(d))^d r_d^N < rho^d, \
+                      r_d = (d/(d+1)) (d^2/(d^2-1))^((d-1)/2); bisection (k + 1) in d = 1",
+            status: Status::Proven,
+            source: "Bertsimas & Tsitsiklis 1997, ch. 8; Bubeck 2015, Lemma 2.3",
+        },
+        Bound {
+            label: "sampled centre of gravity",
+            side: Side::Upper,
+            queries: None,
+            formula: "O(d log(R/rho)) with high probability (constant unspecified)",
+            status: Status::Guide,
+            source: "Bertsimas & Vempala 2004, J. ACM 51(4)",
+        },
+    ]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn unit_ball_volumes_match_closed_forms() {
+        // kappa_1 = 2, kappa_2 = pi, kappa_3 = 4 pi / 3, kappa_4 = pi^2 / 2
+        // (textbook closed forms, e.g. any calculus text; from memory).
+        let pi = std::f64::consts::PI;
+        let cases = [(1, 2.0), (2, pi), (3, 4.0 * pi / 3.0), (4, pi * pi / 2.0)];
+        for (d, kappa) in cases {
+            let got = ln_unit_ball_volume(d).exp();
+            assert!(
+                (got - kappa).abs() < 1e-12 * kappa,
+                "d = {d}: {got} vs {kappa}"
+            );
+        }
+    }
+
+    #[test]
+    fn lower_bound_never_exceeds_upper_bounds() {
+        for d in [1, 2, 3, 5, 10, 50] {
+            for ratio in [4.0, 64.0, 1000.0, 1e6] {
+                let class =
+                    FeasibilityClass::new(d, 1.0, 1.0 / ratio, Promise::MayBeEmpty).unwrap();
+                let lower = halving_lower_bound(&class);
+                assert!(
+                    lower <= centre_of_gravity_upper_bound(&class),
+                    "d {d} ratio {ratio}"
+                );
+                assert!(
+                    lower <= ellipsoid_upper_bound(&class),
+                    "d {d} ratio {ratio}"
+                );
+            }
+        }
+    }
+}

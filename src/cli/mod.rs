@@ -1,0 +1,131 @@
+//! The command line: clap-derive structs hold raw arguments; each command validates
+//! them into library types, runs, and prints.
+//!
+//! Exit codes (documented in the README):
+//! 0 success; 1 a certificate was rejected by the verifier; 2 bad arguments or bad
+//! input (a file that cannot be read or parsed, an invalid class); 3 the method failed;
+//! 4 an I/O error while writing output.
+
+pub mod bounds;
+pub mod check;
+pub mod demo;
+pub mod list;
+pub mod play;
+
+use std::path::PathBuf;
+
+use clap::{Args, Parser, Subcommand};
+
+use crate::class::{Class, FeasibilityClass, Promise};
+use crate::error::Error;
+
+/// Exit code: success.
+pub const EXIT_OK: u8 = 0;
+/// Exit code: the verifier rejected a certificate.
+pub const EXIT_REJECTED: u8 = 1;
+/// Exit code: bad arguments or bad input.
+pub const EXIT_BAD_INPUT: u8 = 2;
+/// Exit code: the method failed.
+pub const EXIT_METHOD_FAILED: u8 = 3;
+/// Exit code: an I/O error while writing output.
+pub const EXIT_IO: u8 = 4;
+
+/// Plays optimization methods against resisting oracles and certifies query lower
+/// bounds exactly.
+#[derive(Debug, Parser)]
+#[command(name = "naysayer", version, about)]
+pub struct Cli {
+    /// The command.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// The commands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Play one method against one adversary, write the transcript, verify the certificate.
+    Play(play::PlayArgs),
+    /// Re-verify a transcript file; the exit code says whether its certificate holds.
+    Check(check::CheckArgs),
+    /// Print the lower bound and every upper-bound line for a class, with sources.
+    Bounds(bounds::BoundsArgs),
+    /// List the built-in methods and adversaries.
+    List,
+    /// Play every built-in method against the halving adversary at d = 8, R/rho = 1e6.
+    Demo(demo::DemoArgs),
+}
+
+/// The separation feasibility class, as raw arguments.
+#[derive(Debug, Clone, Args)]
+pub struct ClassArgs {
+    /// Dimension d.
+    #[arg(short = 'd', long = "dim", default_value_t = 2)]
+    pub dim: usize,
+    /// Box half-width R (the box is [-R, R]^d).
+    #[arg(long = "half-width", default_value_t = 1.0)]
+    pub half_width: f64,
+    /// Accuracy rho: K is empty or contains a Euclidean ball of this radius.
+    #[arg(long, default_value_t = 1e-3)]
+    pub rho: f64,
+    /// Promise that K is nonempty (a method may not answer "empty").
+    #[arg(long)]
+    pub nonempty: bool,
+}
+
+impl ClassArgs {
+    /// Validates into a class.
+    pub fn to_class(&self) -> Result<FeasibilityClass, Error> {
+        let promise = if self.nonempty {
+            Promise::Nonempty
+        } else {
+            Promise::MayBeEmpty
+        };
+        FeasibilityClass::new(self.dim, self.half_width, self.rho, promise)
+    }
+}
+
+/// Runs a parsed command line and returns the exit code.
+pub fn run(cli: Cli) -> Result<u8, Error> {
+    match cli.command {
+        Command::Play(args) => play::run(&args),
+        Command::Check(args) => check::run(&args),
+        Command::Bounds(args) => bounds::run(&args),
+        Command::List => list::run(),
+        Command::Demo(args) => demo::run(&args),
+    }
+}
+
+/// The exit code for a library error.
+pub fn exit_code_for(error: &Error) -> u8 {
+    match error {
+        Error::Transcript { .. } => EXIT_REJECTED,
+        Error::Io { action, .. }
+            if action.starts_with("cannot write") || action.starts_with("cannot create") =>
+        {
+            EXIT_IO
+        }
+        Error::MethodFailed { .. } => EXIT_METHOD_FAILED,
+        _ => EXIT_BAD_INPUT,
+    }
+}
+
+/// Describes a class in one line.
+pub fn describe_class(class: &Class) -> String {
+    match class {
+        Class::Feasibility(c) => format!(
+            "separation feasibility, d = {}, box [-{}, {}]^{}, rho = {} ({})",
+            c.dim,
+            c.half_width,
+            c.half_width,
+            c.dim,
+            c.rho,
+            match c.promise {
+                Promise::MayBeEmpty => "K empty or containing a rho-ball",
+                Promise::Nonempty => "K promised to contain a rho-ball",
+            }
+        ),
+    }
+}
+
+/// A path argument.
+pub type PathArg = PathBuf;

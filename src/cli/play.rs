@@ -1,0 +1,143 @@
+//! `naysayer play`: one method against one adversary, verified.
+
+use clap::Args;
+
+use crate::bounds::halving_lower_bound;
+use crate::certificate::{Outcome, Verdict};
+use crate::class::Class;
+use crate::cli::{describe_class, ClassArgs, PathArg, EXIT_METHOD_FAILED, EXIT_OK, EXIT_REJECTED};
+use crate::error::Error;
+use crate::game::Ending;
+use crate::runner::{self, GameSpec, Report};
+
+/// Arguments of `naysayer play`.
+#[derive(Debug, Args)]
+pub struct PlayArgs {
+    /// Built-in method (see `naysayer list`).
+    #[arg(short, long, default_value = "midpoint")]
+    pub method: String,
+    /// Adversary (see `naysayer list`).
+    #[arg(short, long, default_value = "halving")]
+    pub adversary: String,
+    /// The class.
+    #[command(flatten)]
+    pub class: ClassArgs,
+    /// Most queries the method may ask.
+    #[arg(long, default_value_t = 1_000_000)]
+    pub budget: u64,
+    /// Seed of randomized methods.
+    #[arg(long, default_value_t = 0)]
+    pub seed: u64,
+    /// Write the transcript here (JSON Lines); otherwise it is kept in memory.
+    #[arg(short, long)]
+    pub transcript: Option<PathArg>,
+}
+
+/// Runs `play`.
+pub fn run(args: &PlayArgs) -> Result<u8, Error> {
+    let class = Class::Feasibility(args.class.to_class()?);
+    let spec = GameSpec {
+        class,
+        adversary: args.adversary.clone(),
+        method: args.method.clone(),
+        seed: args.seed,
+        budget: args.budget,
+        transcript: args.transcript.clone(),
+    };
+    let report = runner::run(&spec)?;
+    print!("{}", summary(&spec, &report));
+    Ok(match (&report.verdict, &report.record.ending) {
+        (Err(_), _) => EXIT_REJECTED,
+        (Ok(_), Ending::MethodFailed { .. }) => EXIT_METHOD_FAILED,
+        _ => EXIT_OK,
+    })
+}
+
+/// The outcome in words.
+pub fn describe_outcome(outcome: &Outcome, ending: &Ending) -> String {
+    let output = match ending {
+        Ending::Output { output } => match output {
+            crate::oracle::Output::Empty => "declared K empty",
+            crate::oracle::Output::Point { .. } => "output a point",
+        },
+        _ => "",
+    };
+    match outcome {
+        Outcome::OutputRefuted { witness } => {
+            format!("method {output}; refuted by witness #{}", witness + 1)
+        }
+        Outcome::EmptyRefuted { witness } => {
+            format!(
+                "method {output}; refuted by witness #{} (a rho-ball K)",
+                witness + 1
+            )
+        }
+        Outcome::OutputStands => format!("method {output}; output stands"),
+        Outcome::BudgetExhausted => "budget exhausted (queries used is censored)".into(),
+        Outcome::MethodFailed { reason } => format!("method failed: {reason}"),
+    }
+}
+
+/// "N" or "> N (censored)".
+pub fn queries_used_text(queries_used: u64, censored: bool) -> String {
+    if censored {
+        format!("> {queries_used} (censored by the budget)")
+    } else {
+        queries_used.to_string()
+    }
+}
+
+fn summary(spec: &GameSpec, report: &Report) -> String {
+    let mut out = String::new();
+    let Class::Feasibility(class) = &spec.class;
+    out.push_str(&format!(
+        "class                  {}\n",
+        describe_class(&spec.class)
+    ));
+    out.push_str(&format!(
+        "method                 {}\n",
+        report.header.method
+    ));
+    out.push_str(&format!("adversary              {}\n", spec.adversary));
+    let censored = matches!(report.record.ending, Ending::BudgetExhausted);
+    out.push_str(&format!(
+        "queries used           {}\n",
+        queries_used_text(report.record.queries_used, censored)
+    ));
+    match &report.verdict {
+        Ok(verdict) => {
+            out.push_str(&format!(
+                "certified lower bound  {}\n",
+                lower_bound_text(verdict)
+            ));
+            out.push_str(&format!(
+                "outcome                {}\n",
+                describe_outcome(&verdict.outcome, &report.record.ending)
+            ));
+        }
+        Err(_) => {
+            out.push_str("certified lower bound  none (certificate rejected)\n");
+        }
+    }
+    out.push_str(&format!(
+        "theory                 every method needs at least {} queries on this class \
+         (theorem: box halving, THEORY.md 1.1)\n",
+        halving_lower_bound(class)
+    ));
+    match &report.verdict {
+        Ok(_) => out.push_str("verifier               certificate valid (exact rational check)\n"),
+        Err(e) => out.push_str(&format!("verifier               REJECTED: {e}\n")),
+    }
+    if let Some(path) = &spec.transcript {
+        out.push_str(&format!("transcript             {}\n", path.display()));
+    }
+    out
+}
+
+/// "T* + 1 (witnesses agree with the first T* answers)" or "none".
+pub fn lower_bound_text(verdict: &Verdict) -> String {
+    match verdict.certified_prefix {
+        Some(t) => format!("{} (witnesses agree with the first {t} answers)", t + 1),
+        None => "none (no certifiable prefix)".into(),
+    }
+}

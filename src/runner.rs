@@ -1,0 +1,116 @@
+//! One game from a specification to a verified report: builds the adversary and the
+//! method, plays, writes the transcript (to a file or to memory), and runs the
+//! independent verifier over what was written.
+
+use std::path::PathBuf;
+use std::time::{Duration, Instant};
+
+use crate::adversary;
+use crate::certificate::{self, Verdict};
+use crate::class::Class;
+use crate::error::Error;
+use crate::game::{self, FinalRecord, GameSettings, Header, Observer};
+use crate::method::{self, Method};
+use crate::transcript::{Flush, MemoryTranscript, TranscriptWriter, FORMAT_VERSION};
+
+/// Everything that defines one game.
+#[derive(Clone, Debug, PartialEq)]
+pub struct GameSpec {
+    /// The class.
+    pub class: Class,
+    /// Adversary name.
+    pub adversary: String,
+    /// Built-in method name.
+    pub method: String,
+    /// The method's seed.
+    pub seed: u64,
+    /// Query budget.
+    pub budget: u64,
+    /// Where to write the transcript; `None` keeps it in memory.
+    pub transcript: Option<PathBuf>,
+}
+
+/// The result of one verified game.
+#[derive(Debug)]
+pub struct Report {
+    /// The header written.
+    pub header: Header,
+    /// The final record written.
+    pub record: FinalRecord,
+    /// The verifier's verdict (an `Err` is a rejected certificate: an adversary bug).
+    pub verdict: Result<Verdict, Error>,
+    /// Wall time of play plus verification.
+    pub wall_time: Duration,
+}
+
+/// The header for a specification.
+pub fn header_for(spec: &GameSpec, method_name: &str) -> Header {
+    Header {
+        format: FORMAT_VERSION,
+        tool: format!("naysayer {}", env!("CARGO_PKG_VERSION")),
+        class: spec.class.clone(),
+        adversary: spec.adversary.clone(),
+        method: method_name.to_string(),
+        seed: spec.seed,
+        budget: spec.budget,
+    }
+}
+
+/// Builds, plays and verifies one game with a built-in method.
+pub fn run(spec: &GameSpec) -> Result<Report, Error> {
+    let mut method = method::build(&spec.method, &spec.class, spec.seed)?;
+    run_with(spec, method.as_mut(), &mut [])
+}
+
+/// Plays and verifies one game with a given method, with extra observers.
+pub fn run_with(
+    spec: &GameSpec,
+    method: &mut dyn Method,
+    extra: &mut [&mut dyn Observer],
+) -> Result<Report, Error> {
+    let start = Instant::now();
+    let mut adversary = adversary::build(&spec.adversary, &spec.class)?;
+    let header = header_for(spec, method.name());
+    let settings = GameSettings {
+        budget: spec.budget,
+    };
+    let (record, verdict) = match &spec.transcript {
+        Some(path) => {
+            let mut writer = TranscriptWriter::create(path, Flush::Periodic)?;
+            let record = {
+                let mut observers: Vec<&mut dyn Observer> = vec![&mut writer];
+                observers.extend(extra.iter_mut().map(|o| &mut **o as &mut dyn Observer));
+                game::play(
+                    &header,
+                    method,
+                    adversary.as_mut(),
+                    &settings,
+                    &mut observers,
+                )?
+            };
+            drop(writer);
+            (record, certificate::verify_file(path))
+        }
+        None => {
+            let mut memory = MemoryTranscript::default();
+            let record = {
+                let mut observers: Vec<&mut dyn Observer> = vec![&mut memory];
+                observers.extend(extra.iter_mut().map(|o| &mut **o as &mut dyn Observer));
+                game::play(
+                    &header,
+                    method,
+                    adversary.as_mut(),
+                    &settings,
+                    &mut observers,
+                )?
+            };
+            (record, certificate::verify_records(&memory.records))
+        }
+    };
+    Ok(Report {
+        header,
+        record,
+        verdict,
+        wall_time: start.elapsed(),
+    })
+}
