@@ -71,6 +71,14 @@ impl Exact {
 
     /// The exact midpoint (a + b) / 2 of two `f64` values.
     pub fn midpoint(a: f64, b: f64) -> Exact {
+        // Fast path: a + b exact (TwoSum error zero) and the halving exact (normal).
+        let sum = a + b;
+        let bb = sum - a;
+        let err = (a - (sum - bb)) + (b - bb);
+        let half_sum = 0.5 * sum;
+        if err == 0.0 && sum.is_finite() && (half_sum == 0.0 || half_sum.is_normal()) {
+            return Exact::Float(half_sum);
+        }
         let half = f64_to_rational(a) + f64_to_rational(b);
         Exact::from_rational(half / BigRational::from_integer(BigInt::from(2)))
     }
@@ -301,6 +309,37 @@ impl<'de> Visitor<'de> for ExactVisitor {
         }
         Ok(Exact::from_rational(value))
     }
+}
+
+/// Exact comparison of a - b with t, for finite `f64` a, b, t with |a|, |b| <= 1e300.
+///
+/// fl(a - b) is monotone in the exact difference, so a strict inequality between the
+/// rounded difference and t is an exact one; on equality the rounding error (exact by
+/// TwoSum) decides.
+pub fn cmp_diff(a: f64, b: f64, t: f64) -> Ordering {
+    let (hi, lo) = two_diff(a, b);
+    match hi.partial_cmp(&t).expect("finite") {
+        Ordering::Equal => lo.partial_cmp(&0.0).expect("finite"),
+        other => other,
+    }
+}
+
+/// Exact comparison of a - b with c - e.
+pub fn cmp_sides(a: f64, b: f64, c: f64, e: f64) -> Ordering {
+    let (hi1, lo1) = two_diff(a, b);
+    let (hi2, lo2) = two_diff(c, e);
+    match hi1.partial_cmp(&hi2).expect("finite") {
+        Ordering::Equal => lo1.partial_cmp(&lo2).expect("finite"),
+        other => other,
+    }
+}
+
+/// Knuth's TwoSum on a - b: hi = fl(a - b) and hi + lo = a - b exactly.
+pub fn two_diff(a: f64, b: f64) -> (f64, f64) {
+    let hi = a - b;
+    let bb = hi - a;
+    let lo = (a - (hi - bb)) + (-b - bb);
+    (hi, lo)
 }
 
 #[cfg(test)]

@@ -14,13 +14,14 @@
 //! set and the rho-ball at the centre of B; for the promise-feasible class, two disjoint
 //! rho-balls along the longest side (needs the longest side > 4 rho). Hence every
 //! method needs d*k + 1 queries, k = max{j >= 0 : R 2^-j > rho} (d*k under the
-//! promise). All comparisons below are exact on `f64` inputs (see [`cmp_diff`]).
+//! promise). All comparisons below are exact on `f64` inputs (see
+//! [`crate::exact::cmp_diff`]).
 
 use std::cmp::Ordering;
 
 use crate::adversary::{Adversary, Undecided};
 use crate::class::{FeasibilityClass, Promise};
-use crate::exact::Exact;
+use crate::exact::{cmp_diff, cmp_sides, Exact};
 use crate::instance::{Witness, Witnesses};
 use crate::oracle::{Answer, Cut, Normal};
 
@@ -251,37 +252,6 @@ fn cut_at(i: usize, t: f64, keep_lower: bool) -> Cut {
             offset: Exact::Float(-t),
         }
     }
-}
-
-/// Exact comparison of a - b with t, for finite `f64` a, b, t with |a|, |b| <= 1e300.
-///
-/// fl(a - b) is monotone in the exact difference, so a strict inequality between the
-/// rounded difference and t is an exact one; on equality the rounding error (exact by
-/// TwoSum) decides.
-pub fn cmp_diff(a: f64, b: f64, t: f64) -> Ordering {
-    let (hi, lo) = two_diff(a, b);
-    match hi.partial_cmp(&t).expect("finite") {
-        Ordering::Equal => lo.partial_cmp(&0.0).expect("finite"),
-        other => other,
-    }
-}
-
-/// Exact comparison of a - b with c - e.
-pub fn cmp_sides(a: f64, b: f64, c: f64, e: f64) -> Ordering {
-    let (hi1, lo1) = two_diff(a, b);
-    let (hi2, lo2) = two_diff(c, e);
-    match hi1.partial_cmp(&hi2).expect("finite") {
-        Ordering::Equal => lo1.partial_cmp(&lo2).expect("finite"),
-        other => other,
-    }
-}
-
-/// Knuth's TwoSum on a - b: hi = fl(a - b) and hi + lo = a - b exactly.
-fn two_diff(a: f64, b: f64) -> (f64, f64) {
-    let hi = a - b;
-    let bb = hi - a;
-    let lo = (a - (hi - bb)) + (-b - bb);
-    (hi, lo)
 }
 
 #[cfg(test)]

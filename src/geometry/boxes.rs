@@ -1,5 +1,8 @@
 //! An axis-aligned box that a method shrinks with every cut it learns.
 
+use std::cmp::Ordering;
+
+use crate::exact::cmp_diff;
 use crate::oracle::{Cut, Normal};
 
 /// A box model prod [l_i, u_i] of what a method knows: it contains every point that
@@ -34,13 +37,14 @@ impl BoxModel {
         }
     }
 
-    /// True when some side is at most 2 rho, so no rho-ball fits strictly inside.
-    /// Computed conservatively: only claimed when the rounded side is clearly short.
+    /// True when some side is at most 2 rho (decided exactly), so no closed rho-ball
+    /// fits strictly inside: K lies in the open slab of every cut coordinate.
     pub fn too_thin_for(&self, rho: f64) -> bool {
+        let two_rho = 2.0 * rho;
         self.lower
             .iter()
             .zip(&self.upper)
-            .any(|(l, u)| u - l <= 2.0 * rho * (1.0 - 4.0 * f64::EPSILON))
+            .any(|(l, u)| cmp_diff(*u, *l, two_rho) != Ordering::Greater)
     }
 
     /// Shrinks the box by the cut `a.y < offset`: axis cuts exactly, dense cuts by
