@@ -22,10 +22,19 @@ fn rss_kib() -> Option<u64> {
 }
 
 impl Observer for RssProbe {
-    fn on_query(&mut self, index: u64, _: &[f64], _: &Answer, _: &dyn Adversary) -> Result<(), Error> {
+    fn on_query(
+        &mut self,
+        index: u64,
+        _: &[f64],
+        _: &Answer,
+        _: &dyn Adversary,
+    ) -> Result<(), Error> {
         if [1_000, 10_000, 100_000, 1_000_000].contains(&index) {
             match rss_kib() {
-                Some(kib) => println!("after {index:>9} queries: resident {:.1} MB", kib as f64 / 1024.0),
+                Some(kib) => println!(
+                    "after {index:>9} queries: resident {:.1} MB",
+                    kib as f64 / 1024.0
+                ),
                 None => println!("after {index:>9} queries: resident memory unavailable"),
             }
         }
@@ -37,11 +46,16 @@ fn main() -> Result<(), Error> {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let d: usize = args.first().and_then(|s| s.parse().ok()).unwrap_or(200);
     let rho: f64 = args.get(1).and_then(|s| s.parse().ok()).unwrap_or(1e-6);
-    let budget: u64 = args.get(2).and_then(|s| s.parse().ok()).unwrap_or(1_000_000);
-    let path = args
-        .get(3)
-        .cloned()
-        .unwrap_or_else(|| std::env::temp_dir().join("naysayer-memory-probe.jsonl").display().to_string());
+    let budget: u64 = args
+        .get(2)
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(1_000_000);
+    let path = args.get(3).cloned().unwrap_or_else(|| {
+        std::env::temp_dir()
+            .join("naysayer-memory-probe.jsonl")
+            .display()
+            .to_string()
+    });
     let class = FeasibilityClass::new(d, 1.0, rho, Promise::MayBeEmpty)?;
     let header = Header {
         format: FORMAT_VERSION,

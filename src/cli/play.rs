@@ -72,6 +72,9 @@ pub fn describe_outcome(outcome: &Outcome, ending: &Ending) -> String {
                 witness + 1
             )
         }
+        Outcome::EmptyBreaksPromise => {
+            format!("method {output}, but the class promises K is nonempty: wrong")
+        }
         Outcome::OutputStands => format!("method {output}; output stands"),
         Outcome::BudgetExhausted => "budget exhausted (queries used is censored)".into(),
         Outcome::MethodFailed { reason } => format!("method failed: {reason}"),

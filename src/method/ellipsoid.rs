@@ -18,7 +18,7 @@
 //! current P, and a non-positive `a^T P a` (loss of definiteness) is reported as a
 //! method failure rather than silently continued. No allocation per step.
 
-use crate::class::FeasibilityClass;
+use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
 use crate::method::Method;
@@ -44,6 +44,7 @@ pub struct Ellipsoid {
     /// d = 1: bisection interval.
     interval: Option<BoxModel>,
     rho: f64,
+    promise: Promise,
     found: Option<Vec<f64>>,
 }
 
@@ -70,6 +71,7 @@ impl Ellipsoid {
             log_ratio: if d >= 2 { log_volume_ratio(d) } else { 0.0 },
             interval: (d == 1).then(|| BoxModel::cube(1, class.half_width)),
             rho: class.rho,
+            promise: class.promise,
             found: None,
         }
     }
@@ -87,6 +89,14 @@ impl Ellipsoid {
     /// ln vol(E) - ln vol(unit ball).
     pub fn log_volume(&self) -> f64 {
         self.log_volume
+    }
+
+    /// "Empty" when the class allows it; under the nonempty promise, `centre` (a guess).
+    fn give_up(&self, centre: Vec<f64>) -> Output {
+        match self.promise {
+            Promise::MayBeEmpty => Output::Empty,
+            Promise::Nonempty => Output::Point { point: centre },
+        }
     }
 
     fn update(&mut self, normal: &Normal) -> Result<(), Error> {
@@ -176,13 +186,15 @@ impl Method for Ellipsoid {
         }
         if let Some(interval) = &self.interval {
             if interval.too_thin_for(self.rho) {
-                return Ok(Step::Output(Output::Empty));
+                let mut centre = vec![0.0];
+                interval.center_into(&mut centre);
+                return Ok(Step::Output(self.give_up(centre)));
             }
             interval.center_into(query);
             return Ok(Step::Query);
         }
         if self.log_volume < self.log_volume_floor {
-            return Ok(Step::Output(Output::Empty));
+            return Ok(Step::Output(self.give_up(self.center.clone())));
         }
         query.copy_from_slice(&self.center);
         Ok(Step::Query)

@@ -2,7 +2,7 @@
 //! bisection; common practice, no source). Against the box-halving adversary it is
 //! optimal: it meets the lower bound d*k + 1 exactly (THEORY.md 1.1).
 
-use crate::class::FeasibilityClass;
+use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
 use crate::method::Method;
@@ -14,6 +14,7 @@ use crate::oracle::{Answer, Output, Step};
 pub struct Midpoint {
     model: BoxModel,
     rho: f64,
+    promise: Promise,
     found: Option<Vec<f64>>,
 }
 
@@ -23,7 +24,23 @@ impl Midpoint {
         Midpoint {
             model: BoxModel::cube(class.dim, class.half_width),
             rho: class.rho,
+            promise: class.promise,
             found: None,
+        }
+    }
+}
+
+impl Midpoint {
+    /// "Empty" when the class allows it; under the nonempty promise, the box centre
+    /// (a guess: the method's information no longer pins K down).
+    fn give_up(&self) -> Output {
+        match self.promise {
+            Promise::MayBeEmpty => Output::Empty,
+            Promise::Nonempty => {
+                let mut point = vec![0.0; self.model.dim()];
+                self.model.center_into(&mut point);
+                Output::Point { point }
+            }
         }
     }
 }
@@ -38,7 +55,7 @@ impl Method for Midpoint {
             return Ok(Step::Output(Output::Point { point }));
         }
         if self.model.too_thin_for(self.rho) {
-            return Ok(Step::Output(Output::Empty));
+            return Ok(Step::Output(self.give_up()));
         }
         self.model.center_into(query);
         Ok(Step::Query)

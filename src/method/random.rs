@@ -4,7 +4,7 @@
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 
-use crate::class::FeasibilityClass;
+use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
 use crate::method::Method;
@@ -15,6 +15,7 @@ use crate::oracle::{Answer, Output, Step};
 pub struct RandomPoint {
     model: BoxModel,
     rho: f64,
+    promise: Promise,
     rng: ChaCha8Rng,
     found: Option<Vec<f64>>,
 }
@@ -25,8 +26,24 @@ impl RandomPoint {
         RandomPoint {
             model: BoxModel::cube(class.dim, class.half_width),
             rho: class.rho,
+            promise: class.promise,
             rng: ChaCha8Rng::seed_from_u64(seed),
             found: None,
+        }
+    }
+}
+
+impl RandomPoint {
+    /// "Empty" when the class allows it; under the nonempty promise, the box centre
+    /// (a guess: the method's information no longer pins K down).
+    fn give_up(&self) -> Output {
+        match self.promise {
+            Promise::MayBeEmpty => Output::Empty,
+            Promise::Nonempty => {
+                let mut point = vec![0.0; self.model.dim()];
+                self.model.center_into(&mut point);
+                Output::Point { point }
+            }
         }
     }
 }
@@ -41,7 +58,7 @@ impl Method for RandomPoint {
             return Ok(Step::Output(Output::Point { point }));
         }
         if self.model.too_thin_for(self.rho) {
-            return Ok(Step::Output(Output::Empty));
+            return Ok(Step::Output(self.give_up()));
         }
         for ((q, l), u) in query
             .iter_mut()

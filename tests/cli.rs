@@ -1,0 +1,268 @@
+//! End-to-end tests of the `naysayer` binary, each run in its own temporary directory.
+//!
+//! Expected counts follow THEORY.md 1.1: d*k + 1 (d*k under the nonempty promise), with
+//! k = max{j >= 0 : R 2^-j > rho}, derived by hand below for each class used.
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+use naysayer::method::METHODS;
+use tempfile::TempDir;
+
+const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
+
+fn run_in(dir: &Path, args: &[&str]) -> Output {
+    Command::new(BIN)
+        .current_dir(dir)
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+fn stdout(out: &Output) -> String {
+    String::from_utf8(out.stdout.clone()).expect("utf-8 stdout")
+}
+
+fn stderr(out: &Output) -> String {
+    String::from_utf8(out.stderr.clone()).expect("utf-8 stderr")
+}
+
+/// The first whitespace-separated token after `label` on the line that starts with it.
+fn field<'a>(text: &'a str, label: &str) -> Option<&'a str> {
+    text.lines()
+        .find_map(|line| line.strip_prefix(label))
+        .and_then(|rest| rest.split_whitespace().next())
+}
+
+fn files_in(dir: &Path) -> Vec<String> {
+    std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect()
+}
+
+#[test]
+fn play_without_transcript_prints_the_counts_and_writes_nothing() {
+    // d = 3, rho = 1e-3: k = 9 (2^-9 > 1e-3 > 2^-10), d*k + 1 = 28; R/rho = 1000 is not a
+    // power of two, so midpoint stops at exactly 28.
+    let dir = TempDir::new().unwrap();
+    let out = run_in(dir.path(), &["play", "-d", "3", "--rho", "1e-3"]);
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0), "{text}{}", stderr(&out));
+    assert_eq!(field(&text, "queries used"), Some("28"), "{text}");
+    assert_eq!(field(&text, "certified lower bound"), Some("28"), "{text}");
+    assert!(text.contains("at least 28 queries"), "{text}");
+    assert!(text.contains("certificate valid"), "{text}");
+    assert!(!text.contains("transcript "), "{text}");
+    assert!(
+        files_in(dir.path()).is_empty(),
+        "play wrote files without -t"
+    );
+}
+
+#[test]
+fn play_with_transcript_writes_a_file_that_check_accepts() {
+    let dir = TempDir::new().unwrap();
+    let out = run_in(
+        dir.path(),
+        &["play", "-d", "3", "--rho", "1e-3", "-t", "game.jsonl"],
+    );
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0), "{text}{}", stderr(&out));
+    assert!(text.contains("game.jsonl"), "{text}");
+    let written = std::fs::read_to_string(dir.path().join("game.jsonl")).unwrap();
+    // Header, 28 queries, final record.
+    assert_eq!(written.lines().count(), 30);
+    let out = run_in(dir.path(), &["check", "game.jsonl"]);
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0), "{text}{}", stderr(&out));
+    assert!(text.contains("valid certificate"), "{text}");
+    assert_eq!(field(&text, "certified lower bound"), Some("28"), "{text}");
+    assert_eq!(field(&text, "queries used"), Some("28"), "{text}");
+}
+
+#[test]
+fn play_with_a_seeded_method_and_the_long_transcript_flag() {
+    let dir = TempDir::new().unwrap();
+    let out = run_in(
+        dir.path(),
+        &[
+            "play",
+            "--method",
+            "random",
+            "--seed",
+            "7",
+            "-d",
+            "2",
+            "--rho",
+            "0.01",
+            "--transcript",
+            "r.jsonl",
+        ],
+    );
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let header = std::fs::read_to_string(dir.path().join("r.jsonl")).unwrap();
+    let header: serde_json::Value = serde_json::from_str(header.lines().next().unwrap()).unwrap();
+    assert_eq!(header["data"]["method"], "random");
+    assert_eq!(header["data"]["seed"], 7);
+    assert_eq!(
+        run_in(dir.path(), &["check", "r.jsonl"]).status.code(),
+        Some(0)
+    );
+}
+
+#[test]
+fn play_nonempty_certifies_d_k() {
+    // d = 2, rho = 0.01: k = 6 (2^-6 > 0.01 > 2^-7); the promise-feasible bound is d*k = 12.
+    let dir = TempDir::new().unwrap();
+    let out = run_in(
+        dir.path(),
+        &[
+            "play",
+            "-d",
+            "2",
+            "--rho",
+            "0.01",
+            "--nonempty",
+            "-t",
+            "n.jsonl",
+        ],
+    );
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0), "{text}{}", stderr(&out));
+    assert!(text.contains("promised"), "{text}");
+    assert_eq!(field(&text, "certified lower bound"), Some("12"), "{text}");
+    assert!(text.contains("at least 12 queries"), "{text}");
+    let written = std::fs::read_to_string(dir.path().join("n.jsonl")).unwrap();
+    let header: serde_json::Value = serde_json::from_str(written.lines().next().unwrap()).unwrap();
+    assert_eq!(header["data"]["class"]["promise"], "nonempty");
+}
+
+#[test]
+fn play_with_a_bad_rho_exits_2_naming_rho() {
+    let dir = TempDir::new().unwrap();
+    // Zero, negative, not below R = 1, NaN, infinite, subnormal, not a number.
+    for rho in ["0", "-1", "1", "2", "NaN", "inf", "1e-320", "abc"] {
+        let out = run_in(dir.path(), &["play", &format!("--rho={rho}")]);
+        let err = stderr(&out);
+        assert_eq!(out.status.code(), Some(2), "rho = {rho}: {err}");
+        assert!(err.contains("rho"), "rho = {rho}: {err}");
+        assert!(stdout(&out).is_empty(), "rho = {rho}: printed a result");
+    }
+    assert!(files_in(dir.path()).is_empty());
+}
+
+#[test]
+fn play_with_an_unknown_method_or_adversary_exits_2() {
+    let dir = TempDir::new().unwrap();
+    let out = run_in(
+        dir.path(),
+        &["play", "-m", "no-such-method", "-t", "x.jsonl"],
+    );
+    let err = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("no-such-method"), "{err}");
+    let out = run_in(
+        dir.path(),
+        &["play", "-a", "no-such-adversary", "-t", "y.jsonl"],
+    );
+    let err = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("no-such-adversary"), "{err}");
+    assert!(
+        files_in(dir.path()).is_empty(),
+        "a transcript was left behind"
+    );
+}
+
+#[test]
+fn check_a_missing_file_exits_2_naming_the_path() {
+    let dir = TempDir::new().unwrap();
+    let missing = dir.path().join("nowhere").join("missing.jsonl");
+    let out = Command::new(BIN)
+        .arg("check")
+        .arg(&missing)
+        .output()
+        .unwrap();
+    let err = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains(&missing.display().to_string()), "{err}");
+}
+
+#[test]
+fn bounds_prints_the_lower_bound_with_its_source() {
+    let dir = TempDir::new().unwrap();
+    // (d, rho, nonempty, expected lower bound): k = 9 for 1e-3, 19 for 1e-6
+    // (2^-19 > 1e-6 > 2^-20), 5 for 1/64 (2^-5 > 2^-6 = rho).
+    let cases = [
+        ("3", "1e-3", false, 28),
+        ("3", "1e-3", true, 27),
+        ("8", "1e-6", false, 153),
+        ("10", "0.015625", false, 51),
+    ];
+    for (d, rho, nonempty, expected) in cases {
+        let mut args = vec!["bounds", "-d", d, "--rho", rho];
+        if nonempty {
+            args.push("--nonempty");
+        }
+        let out = run_in(dir.path(), &args);
+        let text = stdout(&out);
+        assert_eq!(out.status.code(), Some(0), "{text}{}", stderr(&out));
+        assert_eq!(
+            field(&text, "lower"),
+            Some(expected.to_string().as_str()),
+            "{args:?}: {text}"
+        );
+        assert!(text.contains("source"), "{text}");
+    }
+    let out = run_in(dir.path(), &["bounds", "--rho", "5"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("rho"));
+}
+
+#[test]
+fn list_names_the_methods_and_adversaries() {
+    let dir = TempDir::new().unwrap();
+    let out = run_in(dir.path(), &["list"]);
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0));
+    for name in ["midpoint", "ellipsoid", "halving"] {
+        assert!(text.contains(name), "{name} missing: {text}");
+    }
+    for info in METHODS {
+        assert!(text.contains(info.name), "{} missing: {text}", info.name);
+    }
+}
+
+#[test]
+fn demo_table_shows_midpoint_at_the_bound() {
+    // d = 8, R/rho = 1e6: k = 19, d*k + 1 = 8*19 + 1 = 153.
+    let dir = TempDir::new().unwrap();
+    let out = run_in(dir.path(), &["demo"]);
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0), "{text}{}", stderr(&out));
+    let row: Vec<&str> = text
+        .lines()
+        .find(|l| l.starts_with("midpoint"))
+        .unwrap_or_else(|| panic!("no midpoint row: {text}"))
+        .split_whitespace()
+        .collect();
+    // method, queries used, certified lower bound, verified.
+    assert_eq!(&row[..4], ["midpoint", "153", "153", "yes"], "{text}");
+    for info in METHODS {
+        assert!(
+            text.lines().any(|l| l.starts_with(info.name)),
+            "{} missing: {text}",
+            info.name
+        );
+    }
+    assert!(!text.contains("REJECTED"), "{text}");
+    assert!(files_in(dir.path()).is_empty(), "demo wrote files");
+}
+
+#[test]
+fn no_arguments_or_an_unknown_command_exits_2() {
+    let dir = TempDir::new().unwrap();
+    assert_eq!(run_in(dir.path(), &[]).status.code(), Some(2));
+    assert_eq!(run_in(dir.path(), &["frobnicate"]).status.code(), Some(2));
+}
