@@ -52,6 +52,26 @@ pub enum Error {
         #[source]
         source: std::io::Error,
     },
+    /// A scenario file is malformed or names something impossible.
+    #[error("{path}:{line}:{column}: {reason}")]
+    Scenario {
+        /// The scenario file.
+        path: PathBuf,
+        /// 1-based line.
+        line: usize,
+        /// 1-based column.
+        column: usize,
+        /// What is wrong.
+        reason: String,
+    },
+    /// A results file (games.csv) is malformed or belongs to another sweep.
+    #[error("{path}: {reason}")]
+    Results {
+        /// The file.
+        path: PathBuf,
+        /// What is wrong.
+        reason: String,
+    },
     /// A transcript record is malformed or out of place.
     #[error("transcript line {line}: {reason}")]
     Transcript {

@@ -15,4 +15,6 @@ pub mod certificate;
 pub mod cli;
 pub mod game;
 pub mod runner;
+pub mod scenario;
+pub mod sweep;
 pub mod transcript;

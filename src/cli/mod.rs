@@ -7,10 +7,12 @@
 //! 4 an I/O error while writing output.
 
 pub mod bounds;
+pub mod chart;
 pub mod check;
 pub mod demo;
 pub mod list;
 pub mod play;
+pub mod sweep;
 
 use std::path::PathBuf;
 
@@ -53,6 +55,12 @@ pub enum Command {
     List,
     /// Play every built-in method against the halving adversary at d = 8, R/rho = 1e6.
     Demo(demo::DemoArgs),
+    /// Play every game of one or more scenario files in parallel; write CSV and charts.
+    Sweep(sweep::SweepArgs),
+    /// Merge the shard folders of a sharded sweep into one games.csv.
+    Merge(sweep::MergeArgs),
+    /// Draw the charts of a sweep's results folder.
+    Chart(chart::ChartArgs),
 }
 
 /// The separation feasibility class, as raw arguments.
@@ -92,6 +100,9 @@ pub fn run(cli: Cli) -> Result<u8, Error> {
         Command::Bounds(args) => bounds::run(&args),
         Command::List => list::run(),
         Command::Demo(args) => demo::run(&args),
+        Command::Sweep(args) => sweep::run(&args),
+        Command::Merge(args) => sweep::run_merge(&args),
+        Command::Chart(args) => chart::run(&args),
     }
 }
 

@@ -1,0 +1,91 @@
+//! `naysayer sweep` and `naysayer merge`.
+
+use std::path::PathBuf;
+
+use clap::Args;
+
+use crate::cli::{EXIT_OK, EXIT_REJECTED};
+use crate::error::Error;
+use crate::scenario::Scenario;
+use crate::sweep::{self, Shard, SweepSettings};
+
+/// Arguments of `naysayer sweep`.
+#[derive(Debug, Args)]
+pub struct SweepArgs {
+    /// Scenario files (TOML; see `adversaries/`).
+    #[arg(required = true)]
+    pub scenarios: Vec<PathBuf>,
+    /// Worker threads (default: the number of cores).
+    #[arg(short, long)]
+    pub jobs: Option<usize>,
+    /// Play only shard K of N (K/N, 1-based), for cluster job arrays.
+    #[arg(long, value_parser = Shard::parse)]
+    pub shard: Option<Shard>,
+    /// Root folder of the results.
+    #[arg(long, default_value = "results")]
+    pub out: PathBuf,
+    /// Do not draw charts after the sweep.
+    #[arg(long)]
+    pub no_charts: bool,
+}
+
+/// Arguments of `naysayer merge`.
+#[derive(Debug, Args)]
+pub struct MergeArgs {
+    /// The scenario's results folder holding shard-K-of-N folders.
+    pub folder: PathBuf,
+    /// Do not draw charts after merging.
+    #[arg(long)]
+    pub no_charts: bool,
+}
+
+/// Runs `sweep`.
+pub fn run(args: &SweepArgs) -> Result<u8, Error> {
+    // Validate every scenario before playing any.
+    let scenarios = args
+        .scenarios
+        .iter()
+        .map(|p| Scenario::from_file(p))
+        .collect::<Result<Vec<_>, _>>()?;
+    let settings = SweepSettings {
+        jobs: args
+            .jobs
+            .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get())),
+        shard: args.shard,
+        root: args.out.clone(),
+        progress: true,
+    };
+    let mut code = EXIT_OK;
+    for scenario in &scenarios {
+        let summary = sweep::run(scenario, &settings)?;
+        println!(
+            "{}: {} games ({} resumed, {} played) -> {}",
+            scenario.name,
+            summary.games,
+            summary.resumed,
+            summary.played,
+            summary.csv.display()
+        );
+        if summary.rejected > 0 {
+            println!(
+                "{}: {} certificates REJECTED by the verifier (see the outcome column)",
+                scenario.name, summary.rejected
+            );
+            code = EXIT_REJECTED;
+        }
+        if !args.no_charts && args.shard.is_none() {
+            crate::cli::chart::draw_all(&scenario.results_dir(&args.out))?;
+        }
+    }
+    Ok(code)
+}
+
+/// Runs `merge`.
+pub fn run_merge(args: &MergeArgs) -> Result<u8, Error> {
+    let out = sweep::merge(&args.folder)?;
+    println!("merged -> {}", out.display());
+    if !args.no_charts {
+        crate::cli::chart::draw_all(&args.folder)?;
+    }
+    Ok(EXIT_OK)
+}

@@ -1,0 +1,389 @@
+//! Scenario files: TOML descriptions of a sweep (one per file in `adversaries/`).
+//!
+//! ```toml
+//! name = "halving"                      # results go to results/<name>/
+//! description = "Every method against the box-halving adversary."
+//!
+//! [class]
+//! family = "feasibility"                # separation-oracle feasibility (THEORY.md 1)
+//! dims = [1, 2, 4, 8]                   # grid of dimensions d
+//! half_width = 1.0                      # R: the box is [-R, R]^d
+//! rho = [1e-2, 1e-4, 1e-6]              # grid of accuracies
+//! promise = "may-be-empty"              # or "nonempty" (default "may-be-empty")
+//!
+//! [adversary]
+//! name = "halving"
+//!
+//! [play]
+//! methods = ["midpoint", "ellipsoid", "random"]
+//! seeds = [0, 1, 2]                     # seeded methods play every seed; deterministic
+//!                                       # methods play the first seed only
+//! budget = 100000                       # queries per game
+//! transcripts = false                   # write results/<name>/transcripts/game-N.jsonl
+//!
+//! [charts]                              # optional
+//! dim = 8                               # d of the "queries against log2(R/rho)" chart
+//! rho = 1e-6                            # rho of the "queries against d" chart
+//! ```
+//!
+//! Parsing is strict: an unknown key, a wrong type or an impossible value (an empty
+//! grid, a negative rho, an unknown method or adversary, a method that supports no
+//! dimension of the grid) is an error naming the file, line and column.
+
+use std::path::{Path, PathBuf};
+
+use serde::Deserialize;
+use toml::Spanned;
+
+use crate::adversary::ADVERSARIES;
+use crate::class::{Class, FeasibilityClass, Promise};
+use crate::error::Error;
+use crate::method::{self, METHODS};
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawScenario {
+    name: Spanned<String>,
+    description: String,
+    class: RawClass,
+    adversary: RawAdversary,
+    play: RawPlay,
+    #[serde(default)]
+    charts: Option<RawCharts>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawClass {
+    family: Spanned<String>,
+    dims: Spanned<Vec<Spanned<i64>>>,
+    half_width: Spanned<f64>,
+    rho: Spanned<Vec<Spanned<f64>>>,
+    #[serde(default)]
+    promise: Option<Spanned<String>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawAdversary {
+    name: Spanned<String>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawPlay {
+    methods: Spanned<Vec<Spanned<String>>>,
+    seeds: Spanned<Vec<Spanned<i64>>>,
+    budget: Spanned<i64>,
+    #[serde(default)]
+    transcripts: bool,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCharts {
+    #[serde(default)]
+    dim: Option<Spanned<i64>>,
+    #[serde(default)]
+    rho: Option<Spanned<f64>>,
+}
+
+/// A validated scenario.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Scenario {
+    /// Name; results go to `results/<name>/`.
+    pub name: String,
+    /// What the scenario shows.
+    pub description: String,
+    /// Dimensions, ascending, distinct.
+    pub dims: Vec<usize>,
+    /// Box half-width R.
+    pub half_width: f64,
+    /// Accuracies, descending (so R/rho ascends), distinct.
+    pub rhos: Vec<f64>,
+    /// The class promise.
+    pub promise: Promise,
+    /// Adversary name.
+    pub adversary: String,
+    /// Method names, in file order.
+    pub methods: Vec<String>,
+    /// Seeds, in file order.
+    pub seeds: Vec<u64>,
+    /// Query budget per game.
+    pub budget: u64,
+    /// Whether to write a transcript per game.
+    pub transcripts: bool,
+    /// d of the "queries against log2(R/rho)" chart (default: the largest d).
+    pub chart_dim: usize,
+    /// rho of the "queries against d" chart (default: the smallest rho).
+    pub chart_rho: f64,
+    /// The TOML text, for fingerprinting resumed sweeps.
+    pub source_text: String,
+}
+
+/// One game of a sweep.
+#[derive(Clone, Debug, PartialEq)]
+pub struct GridGame {
+    /// Position in the canonical order (from 0).
+    pub index: u64,
+    /// The class.
+    pub class: FeasibilityClass,
+    /// Method name.
+    pub method: String,
+    /// Seed.
+    pub seed: u64,
+}
+
+struct Locator<'a> {
+    path: &'a Path,
+    text: &'a str,
+}
+
+impl Locator<'_> {
+    fn error_at(&self, offset: usize, reason: impl Into<String>) -> Error {
+        let offset = offset.min(self.text.len());
+        let before = &self.text[..offset];
+        let line = before.matches('\n').count() + 1;
+        let column = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
+        Error::Scenario {
+            path: self.path.to_path_buf(),
+            line,
+            column,
+            reason: reason.into(),
+        }
+    }
+
+    fn error<T>(&self, spanned: &Spanned<T>, reason: impl Into<String>) -> Error {
+        self.error_at(spanned.span().start, reason)
+    }
+}
+
+impl Scenario {
+    /// Reads and validates the scenario file at `path`.
+    pub fn from_file(path: &Path) -> Result<Scenario, Error> {
+        let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
+            action: "cannot read scenario",
+            path: path.to_path_buf(),
+            source,
+        })?;
+        Scenario::parse(&text, path)
+    }
+
+    /// Parses and validates scenario text; `path` names it in errors.
+    pub fn parse(text: &str, path: &Path) -> Result<Scenario, Error> {
+        let at = Locator { path, text };
+        let raw: RawScenario = toml::from_str(text).map_err(|e| {
+            let offset = e.span().map_or(0, |s| s.start);
+            at.error_at(offset, e.message().trim().to_string())
+        })?;
+        let name = raw.name.get_ref().clone();
+        if name.is_empty()
+            || !name
+                .chars()
+                .all(|c| c.is_ascii_alphanumeric() || c == '-' || c == '_')
+        {
+            return Err(at.error(
+                &raw.name,
+                "name must be non-empty and use only letters, digits, '-' and '_'",
+            ));
+        }
+        if raw.class.family.get_ref() != "feasibility" {
+            return Err(at.error(
+                &raw.class.family,
+                format!(
+                    "unknown class family {:?}; known: \"feasibility\"",
+                    raw.class.family.get_ref()
+                ),
+            ));
+        }
+        let promise = match &raw.class.promise {
+            None => Promise::MayBeEmpty,
+            Some(p) => match p.get_ref().as_str() {
+                "may-be-empty" => Promise::MayBeEmpty,
+                "nonempty" => Promise::Nonempty,
+                other => {
+                    return Err(at.error(
+                        p,
+                        format!("promise must be \"may-be-empty\" or \"nonempty\", not {other:?}"),
+                    ))
+                }
+            },
+        };
+        let half_width = *raw.class.half_width.get_ref();
+        if !(half_width.is_finite() && half_width > 0.0) {
+            return Err(at.error(
+                &raw.class.half_width,
+                "half_width must be a positive finite number",
+            ));
+        }
+        if raw.class.dims.get_ref().is_empty() {
+            return Err(at.error(&raw.class.dims, "the grid of dimensions is empty"));
+        }
+        let mut dims = Vec::new();
+        for d in raw.class.dims.get_ref() {
+            let value = *d.get_ref();
+            if !(1..=1_000_000).contains(&value) {
+                return Err(at.error(
+                    d,
+                    format!("dimension {value} must be between 1 and 1000000"),
+                ));
+            }
+            dims.push(value as usize);
+        }
+        dims.sort_unstable();
+        dims.dedup();
+        if raw.class.rho.get_ref().is_empty() {
+            return Err(at.error(&raw.class.rho, "the grid of accuracies rho is empty"));
+        }
+        let mut rhos = Vec::new();
+        for r in raw.class.rho.get_ref() {
+            let value = *r.get_ref();
+            FeasibilityClass::new(1, half_width, value, promise)
+                .map_err(|e| at.error(r, format!("rho = {value}: {e}")))?;
+            rhos.push(value);
+        }
+        rhos.sort_by(|a, b| b.total_cmp(a));
+        rhos.dedup();
+        let adversary = raw.adversary.name.get_ref().clone();
+        if !ADVERSARIES.iter().any(|a| a.name == adversary) {
+            return Err(at.error(
+                &raw.adversary.name,
+                format!("unknown adversary {adversary:?}; `naysayer list` shows them"),
+            ));
+        }
+        if raw.play.methods.get_ref().is_empty() {
+            return Err(at.error(&raw.play.methods, "the list of methods is empty"));
+        }
+        let mut methods = Vec::new();
+        for m in raw.play.methods.get_ref() {
+            let name = m.get_ref();
+            if !METHODS.iter().any(|info| info.name == name) {
+                return Err(at.error(
+                    m,
+                    format!("unknown method {name:?}; `naysayer list` shows the built-in methods"),
+                ));
+            }
+            let any_dim = dims.iter().any(|&d| {
+                FeasibilityClass::new(d, half_width, rhos[0], promise)
+                    .map(|c| method::supports(name, &Class::Feasibility(c)).is_ok())
+                    .unwrap_or(false)
+            });
+            if !any_dim {
+                return Err(at.error(
+                    m,
+                    format!("method {name:?} supports no dimension of the grid"),
+                ));
+            }
+            if methods.contains(name) {
+                return Err(at.error(m, format!("method {name:?} is listed twice")));
+            }
+            methods.push(name.clone());
+        }
+        if raw.play.seeds.get_ref().is_empty() {
+            return Err(at.error(&raw.play.seeds, "the list of seeds is empty"));
+        }
+        let mut seeds = Vec::new();
+        for s in raw.play.seeds.get_ref() {
+            let value = *s.get_ref();
+            if value < 0 {
+                return Err(at.error(s, format!("seed {value} must be non-negative")));
+            }
+            if seeds.contains(&(value as u64)) {
+                return Err(at.error(s, format!("seed {value} is listed twice")));
+            }
+            seeds.push(value as u64);
+        }
+        let budget = *raw.play.budget.get_ref();
+        if budget < 1 {
+            return Err(at.error(
+                &raw.play.budget,
+                format!("budget {budget} must be at least 1"),
+            ));
+        }
+        let (mut chart_dim, mut chart_rho) = (
+            *dims.last().expect("non-empty"),
+            *rhos.last().expect("non-empty"),
+        );
+        if let Some(charts) = &raw.charts {
+            if let Some(d) = &charts.dim {
+                let value = *d.get_ref();
+                if value < 1 || !dims.contains(&(value as usize)) {
+                    return Err(at.error(
+                        d,
+                        format!("charts.dim = {value} is not in the grid of dimensions"),
+                    ));
+                }
+                chart_dim = value as usize;
+            }
+            if let Some(r) = &charts.rho {
+                let value = *r.get_ref();
+                if !rhos.contains(&value) {
+                    return Err(at.error(
+                        r,
+                        format!("charts.rho = {value} is not in the grid of accuracies"),
+                    ));
+                }
+                chart_rho = value;
+            }
+        }
+        Ok(Scenario {
+            name,
+            description: raw.description,
+            dims,
+            half_width,
+            rhos,
+            promise,
+            adversary,
+            methods,
+            seeds,
+            budget: budget as u64,
+            transcripts: raw.play.transcripts,
+            chart_dim,
+            chart_rho,
+            source_text: text.to_string(),
+        })
+    }
+
+    /// Every game in canonical order: d ascending, then rho descending (R/rho
+    /// ascending), then methods in file order, then seeds in file order (deterministic
+    /// methods play the first seed only). Pairs a method does not support are left out.
+    pub fn games(&self) -> Vec<GridGame> {
+        let mut games = Vec::new();
+        for &d in &self.dims {
+            for &rho in &self.rhos {
+                let Ok(class) = FeasibilityClass::new(d, self.half_width, rho, self.promise) else {
+                    continue;
+                };
+                let any = Class::Feasibility(class.clone());
+                for name in &self.methods {
+                    if method::supports(name, &any).is_err() {
+                        continue;
+                    }
+                    let deterministic = METHODS
+                        .iter()
+                        .find(|m| m.name == name)
+                        .is_some_and(|m| m.deterministic);
+                    let seeds = if deterministic {
+                        &self.seeds[..1]
+                    } else {
+                        &self.seeds[..]
+                    };
+                    for &seed in seeds {
+                        games.push(GridGame {
+                            index: games.len() as u64,
+                            class: class.clone(),
+                            method: name.clone(),
+                            seed,
+                        });
+                    }
+                }
+            }
+        }
+        games
+    }
+
+    /// The results folder: `<root>/<name>`.
+    pub fn results_dir(&self, root: &Path) -> PathBuf {
+        root.join(&self.name)
+    }
+}
