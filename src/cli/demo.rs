@@ -1,77 +1,118 @@
-//! `naysayer demo`: every built-in method against the box-halving adversary at d = 8,
-//! R/rho = 1e6, with the bound lines beside the measured counts.
+//! `naysayer demo`: the main job on the built-in default scenario (embedded in the
+//! binary, so it works from any directory): every built-in method against the
+//! box-halving adversary over d = 1..8 and R/rho = 10^2..10^6, written to
+//! `results/demo/` with charts, and a table at d = 8, R/rho = 10^6 of queries used and
+//! certified lower bounds beside the bound lines.
+
+use std::path::{Path, PathBuf};
 
 use clap::Args;
 
 use crate::bounds::feasibility_bounds;
-use crate::class::{Class, FeasibilityClass, Promise};
-use crate::cli::play::queries_used_text;
-use crate::cli::{describe_class, EXIT_OK, EXIT_REJECTED};
+use crate::class::{FeasibilityClass, Promise};
+use crate::cli::{EXIT_OK, EXIT_REJECTED};
 use crate::error::Error;
-use crate::game::Ending;
-use crate::method::{self, METHODS};
-use crate::runner::{self, GameSpec};
+use crate::scenario::Scenario;
+use crate::sweep::{self, split_csv_line, SweepSettings, COLUMNS};
+
+/// The embedded default scenario.
+pub const DEMO_SCENARIO: &str = include_str!("../../adversaries/demo.toml");
 
 /// Arguments of `naysayer demo`.
 #[derive(Debug, Args)]
 pub struct DemoArgs {
-    /// Seed for randomized methods.
-    #[arg(long, default_value_t = 0)]
-    pub seed: u64,
+    /// Root folder of the results.
+    #[arg(long, default_value = "results")]
+    pub out: PathBuf,
+    /// Worker threads (default: the number of cores).
+    #[arg(short, long)]
+    pub jobs: Option<usize>,
 }
 
 /// Runs `demo`.
 pub fn run(args: &DemoArgs) -> Result<u8, Error> {
-    let class = FeasibilityClass::new(8, 1.0, 1e-6, Promise::MayBeEmpty)?;
-    let class_any = Class::Feasibility(class.clone());
-    println!("naysayer demo: {}", describe_class(&class_any));
-    println!("adversary: halving (box-halving resisting oracle)\n");
+    let scenario = Scenario::parse(DEMO_SCENARIO, Path::new("<built-in demo scenario>"))?;
+    let settings = SweepSettings {
+        jobs: args
+            .jobs
+            .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get())),
+        shard: None,
+        root: args.out.clone(),
+        progress: true,
+    };
+    println!("naysayer demo: {}", scenario.description);
+    let summary = sweep::run(&scenario, &settings)?;
+    let dir = scenario.results_dir(&args.out);
     println!(
-        "{:<18} {:>14} {:>22} {:>10}  outcome",
-        "method", "queries used", "certified lower bound", "verified"
+        "{} games ({} played now, {} found finished) -> {}\n",
+        summary.games,
+        summary.played,
+        summary.resumed,
+        summary.csv.display()
     );
-    let mut all_valid = true;
-    for info in METHODS {
-        if let Err(reason) = method::supports(info.name, &class_any) {
-            println!("{:<18} skipped: {reason}", info.name);
-            continue;
-        }
-        let spec = GameSpec {
-            class: class_any.clone(),
-            adversary: "halving".into(),
-            method: info.name.into(),
-            seed: args.seed,
-            budget: 1_000_000,
-            transcript: None,
-        };
-        let report = runner::run(&spec)?;
-        let censored = matches!(report.record.ending, Ending::BudgetExhausted);
-        let (lower, verified, outcome) = match &report.verdict {
-            Ok(v) => (
-                v.certified_lower_bound()
-                    .map_or("none".to_string(), |b| b.to_string()),
-                "yes",
-                crate::cli::play::describe_outcome(&v.outcome, &v.ending),
-            ),
-            Err(e) => {
-                all_valid = false;
-                ("-".into(), "REJECTED", e.to_string())
-            }
-        };
-        println!(
-            "{:<18} {:>14} {:>22} {:>10}  {outcome}",
-            info.name,
-            queries_used_text(report.record.queries_used, censored),
-            lower,
-            verified
-        );
-    }
-    println!("\nbounds for this class (queries):");
+    print_table(&summary.csv, 8, 1e-6)?;
+    let class = FeasibilityClass::new(8, 1.0, 1e-6, Promise::MayBeEmpty)?;
+    println!("\nbounds for d = 8, R/rho = 1e6 (queries):");
     for bound in feasibility_bounds(&class) {
         let value = bound
             .queries
             .map_or_else(|| "order only".to_string(), |q| q.to_string());
         println!("  {:<28} {:>12}  ({})", bound.label, value, bound.source);
     }
-    Ok(if all_valid { EXIT_OK } else { EXIT_REJECTED })
+    println!("\ncharts:");
+    for png in crate::cli::chart::draw_all(&dir)? {
+        println!("  {}", png.display());
+    }
+    if summary.rejected > 0 {
+        println!(
+            "{} certificates were REJECTED by the verifier",
+            summary.rejected
+        );
+        return Ok(EXIT_REJECTED);
+    }
+    Ok(EXIT_OK)
+}
+
+/// Prints queries used and certified lower bounds at (d, rho), every method and seed.
+fn print_table(csv: &Path, dim: usize, rho: f64) -> Result<(), Error> {
+    let text = std::fs::read_to_string(csv).map_err(|source| Error::Io {
+        action: "cannot read",
+        path: csv.to_path_buf(),
+        source,
+    })?;
+    let col = |name: &str| {
+        COLUMNS
+            .iter()
+            .position(|c| *c == name)
+            .expect("known column")
+    };
+    println!("d = {dim}, R/rho = {}:", 1.0 / rho);
+    println!(
+        "{:<18} {:>5} {:>14} {:>22} {:>9}  outcome",
+        "method", "seed", "queries used", "certified lower bound", "verified"
+    );
+    for line in text.lines().skip(1) {
+        let f = split_csv_line(line);
+        if f.len() != COLUMNS.len()
+            || f[col("dim")] != dim.to_string()
+            || f[col("rho")].parse::<f64>().ok() != Some(rho)
+        {
+            continue;
+        }
+        let queries = if f[col("censored")] == "true" {
+            format!("> {}", f[col("queries_used")])
+        } else {
+            f[col("queries_used")].clone()
+        };
+        println!(
+            "{:<18} {:>5} {:>14} {:>22} {:>9}  {}",
+            f[col("method")],
+            f[col("seed")],
+            queries,
+            f[col("certified_lower_bound")],
+            f[col("verified")],
+            f[col("outcome")]
+        );
+    }
+    Ok(())
 }
