@@ -146,7 +146,7 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         .filter(|g| settings.shard.is_none_or(|s| s.owns(g.index)))
         .collect();
     let csv_path = dir.join("games.csv");
-    let done = resume_point(&csv_path, &games)?;
+    let (done, kept_bytes) = resume_point(&csv_path, &games)?;
     let mut csv = OpenOptions::new()
         .append(true)
         .create(true)
@@ -161,7 +161,7 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         path: csv_path.clone(),
         source,
     };
-    if done == 0 {
+    if kept_bytes == 0 {
         csv.write_all(format!("{}\n", COLUMNS.join(",")).as_bytes())
             .map_err(write_error)?;
     }
@@ -292,15 +292,41 @@ fn claim_folder(dir: &Path, scenario: &Scenario) -> Result<(), Error> {
     }
 }
 
-/// How many leading games of `games` the CSV already holds; truncates a torn last line.
-fn resume_point(path: &Path, games: &[GridGame]) -> Result<usize, Error> {
+/// How many leading games of `games` the CSV already holds, and how many bytes of it are
+/// whole lines; truncates a torn last line.
+fn resume_point(path: &Path, games: &[GridGame]) -> Result<(usize, u64), Error> {
+    let (rows, good_bytes) = match scan_csv(path, games)? {
+        None => return Ok((0, 0)),
+        Some(found) => found,
+    };
+    let file = OpenOptions::new()
+        .write(true)
+        .open(path)
+        .map_err(|source| Error::Io {
+            action: "cannot write",
+            path: path.to_path_buf(),
+            source,
+        })?;
+    file.set_len(good_bytes).map_err(|source| Error::Io {
+        action: "cannot write",
+        path: path.to_path_buf(),
+        source,
+    })?;
+    Ok((rows, good_bytes))
+}
+
+/// Checks a games.csv against the games it should hold, in order: the header, the
+/// number of fields, and the `game` column. Returns the number of whole rows and the
+/// length in bytes of the whole lines (a torn last line is not counted); `None` when
+/// the file does not exist.
+fn scan_csv(path: &Path, games: &[GridGame]) -> Result<Option<(usize, u64)>, Error> {
     let bad = |reason: String| Error::Results {
         path: path.to_path_buf(),
         reason,
     };
     let file = match File::open(path) {
         Ok(f) => f,
-        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(0),
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
         Err(source) => {
             return Err(Error::Io {
                 action: "cannot read",
@@ -355,21 +381,7 @@ fn resume_point(path: &Path, games: &[GridGame]) -> Result<usize, Error> {
         }
         good_bytes += n as u64;
     }
-    drop(reader);
-    let file = OpenOptions::new()
-        .write(true)
-        .open(path)
-        .map_err(|source| Error::Io {
-            action: "cannot write",
-            path: path.to_path_buf(),
-            source,
-        })?;
-    file.set_len(good_bytes).map_err(|source| Error::Io {
-        action: "cannot write",
-        path: path.to_path_buf(),
-        source,
-    })?;
-    Ok(rows)
+    Ok(Some((rows, good_bytes)))
 }
 
 /// Plays one game and formats its CSV row (with the trailing newline); the flag says
@@ -534,14 +546,18 @@ pub fn merge(scenario_dir: &Path) -> Result<PathBuf, Error> {
             path: path.clone(),
             source,
         })?;
-        let lines: Vec<&str> = content.lines().skip(1).collect();
-        if lines.len() != mine.len() {
+        let mine: Vec<GridGame> = mine.into_iter().cloned().collect();
+        let (whole_rows, whole_bytes) = scan_csv(&path, &mine)?.unwrap_or((0, 0));
+        let torn = whole_bytes != content.len() as u64;
+        let lines: Vec<&str> = content.lines().skip(1).take(whole_rows).collect();
+        if torn || whole_rows != mine.len() {
             return Err(bad(format!(
-                "shard {}/{} is incomplete ({} of {} games); rerun it first",
+                "shard {}/{} is incomplete ({} of {} games{}); rerun it first",
                 shard.index,
                 shard.count,
-                lines.len(),
-                mine.len()
+                whole_rows,
+                mine.len(),
+                if torn { ", last line torn" } else { "" }
             )));
         }
         rows.extend(lines.iter().map(|l| split_csv_line(l)));

@@ -1,0 +1,325 @@
+//! Scenario files: strict parsing with errors that name file:line:column, through the
+//! library (`Scenario::parse`) and through the binary (`naysayer sweep bad.toml`).
+//!
+//! Every bad scenario below is the valid `BASE` text with exactly one line replaced, so
+//! the expected line and column are counted by hand from the replacement line (columns
+//! are 1-based and count characters, as in src/scenario.rs).
+
+use std::path::Path;
+use std::process::Command;
+
+use naysayer::class::Promise;
+use naysayer::scenario::Scenario;
+use naysayer::Error;
+use tempfile::TempDir;
+
+const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
+
+/// A valid scenario; line numbers are in the comments of `CASES`.
+const BASE: &str = r#"name = "bad"
+description = "A scenario with one mistake."
+
+[class]
+family = "feasibility"
+dims = [1, 2, 4]
+half_width = 1.0
+rho = [1e-2, 1e-3]
+promise = "may-be-empty"
+
+[adversary]
+name = "halving"
+
+[play]
+methods = ["midpoint", "random"]
+seeds = [0, 1]
+budget = 1000
+
+[charts]
+dim = 4
+rho = 1e-3
+"#;
+
+/// `BASE` with line `line` (1-based) replaced by `text`.
+fn with_line(line: usize, text: &str) -> String {
+    let mut lines: Vec<&str> = BASE.lines().collect();
+    assert!(line >= 1 && line <= lines.len(), "no line {line} in BASE");
+    lines[line - 1] = text;
+    let mut out = lines.join("\n");
+    out.push('\n');
+    out
+}
+
+/// One bad scenario: what it shows, the replaced line, its text, the expected column
+/// and a word the reason must contain.
+struct Case {
+    what: &'static str,
+    line: usize,
+    text: &'static str,
+    column: usize,
+    word: &'static str,
+}
+
+const CASES: &[Case] = &[
+    // Line 3 is the blank line after `description`, still at the top level.
+    Case {
+        what: "unknown top-level key",
+        line: 3,
+        text: "colour = \"red\"",
+        column: 1,
+        word: "colour",
+    },
+    // Line 10 is the blank line that ends the [class] table.
+    Case {
+        what: "unknown key inside [class]",
+        line: 10,
+        text: "colour = 3",
+        column: 1,
+        word: "colour",
+    },
+    // `dims = ` is 7 characters: the value starts at column 8.
+    Case {
+        what: "wrong type",
+        line: 6,
+        text: "dims = \"a\"",
+        column: 8,
+        word: "invalid type",
+    },
+    // `rho = [` is 7 characters, `1e-2, ` 6 more: the second element is at column 14.
+    Case {
+        what: "negative rho",
+        line: 8,
+        text: "rho = [1e-2, -1e-3]",
+        column: 14,
+        word: "positive",
+    },
+    // rho equal to R = 1.0 is the boundary of rho < R (THEORY.md 1; src/class.rs).
+    Case {
+        what: "rho >= half_width",
+        line: 8,
+        text: "rho = [1e-3, 1.0]",
+        column: 14,
+        word: "smaller than the half-width",
+    },
+    Case {
+        what: "empty dims grid",
+        line: 6,
+        text: "dims = []",
+        column: 8,
+        word: "empty",
+    },
+    // `methods = ` is 10 characters.
+    Case {
+        what: "empty methods",
+        line: 15,
+        text: "methods = []",
+        column: 11,
+        word: "empty",
+    },
+    // `methods = [` is 11 characters, `"midpoint", ` 12 more: the string starts at 24.
+    Case {
+        what: "unknown method",
+        line: 15,
+        text: "methods = [\"midpoint\", \"newton\"]",
+        column: 24,
+        word: "unknown method",
+    },
+    // `name = ` is 7 characters (line 12 is inside [adversary]).
+    Case {
+        what: "unknown adversary",
+        line: 12,
+        text: "name = \"nope\"",
+        column: 8,
+        word: "unknown adversary",
+    },
+    // `budget = ` is 9 characters.
+    Case {
+        what: "budget 0",
+        line: 17,
+        text: "budget = 0",
+        column: 10,
+        word: "at least 1",
+    },
+    // `seeds = [` is 9 characters, `0, 1, ` 6 more: the repeated 0 is at column 16.
+    Case {
+        what: "duplicate seed",
+        line: 16,
+        text: "seeds = [0, 1, 0]",
+        column: 16,
+        word: "twice",
+    },
+    // `dim = ` is 6 characters (line 20 is inside [charts]); 3 is not in [1, 2, 4].
+    Case {
+        what: "charts.dim not in the grid",
+        line: 20,
+        text: "dim = 3",
+        column: 7,
+        word: "not in the grid",
+    },
+];
+
+#[test]
+fn base_scenario_is_valid() {
+    // Guards the cases below: each differs from a scenario that parses.
+    let scenario = Scenario::parse(BASE, Path::new("bad.toml")).unwrap();
+    assert_eq!(scenario.name, "bad");
+    assert_eq!(scenario.dims, vec![1, 2, 4]);
+    assert_eq!(scenario.chart_dim, 4);
+    assert_eq!(scenario.chart_rho, 1e-3);
+}
+
+#[test]
+fn scenario_errors_name_path_line_and_column_through_the_library() {
+    let path = Path::new("some/dir/bad.toml");
+    for case in CASES {
+        let text = with_line(case.line, case.text);
+        let error = match Scenario::parse(&text, path) {
+            Ok(_) => panic!("{}: parsed without error:\n{text}", case.what),
+            Err(e) => e,
+        };
+        let message = error.to_string();
+        match &error {
+            Error::Scenario {
+                path: p,
+                line,
+                column,
+                reason,
+            } => {
+                assert_eq!(p, path, "{}: {message}", case.what);
+                assert_eq!(
+                    (*line, *column),
+                    (case.line, case.column),
+                    "{}: {message}",
+                    case.what
+                );
+                assert!(
+                    reason.contains(case.word),
+                    "{}: reason lacks {:?}: {message}",
+                    case.what,
+                    case.word
+                );
+            }
+            other => panic!("{}: not a scenario error: {other:?}", case.what),
+        }
+        let prefix = format!("some/dir/bad.toml:{}:{}: ", case.line, case.column);
+        assert!(message.starts_with(&prefix), "{}: {message}", case.what);
+    }
+}
+
+#[test]
+fn scenario_errors_through_the_binary_exit_2_with_file_line_column() {
+    let dir = TempDir::new().unwrap();
+    for case in CASES {
+        std::fs::write(dir.path().join("bad.toml"), with_line(case.line, case.text)).unwrap();
+        let out = Command::new(BIN)
+            .current_dir(dir.path())
+            .args(["sweep", "bad.toml", "--out", "results", "--no-charts"])
+            .output()
+            .unwrap();
+        let err = String::from_utf8(out.stderr).unwrap();
+        // Exit code 2 = bad input (src/cli/mod.rs, README).
+        assert_eq!(out.status.code(), Some(2), "{}: {err}", case.what);
+        let location = format!("bad.toml:{}:{}: ", case.line, case.column);
+        assert!(err.contains(&location), "{}: {err}", case.what);
+        assert!(err.contains(case.word), "{}: {err}", case.what);
+        assert!(
+            !dir.path().join("results").exists(),
+            "{}: a results folder was created for an invalid scenario",
+            case.what
+        );
+    }
+}
+
+#[test]
+fn a_missing_scenario_file_exits_2_naming_it() {
+    let dir = TempDir::new().unwrap();
+    let out = Command::new(BIN)
+        .current_dir(dir.path())
+        .args(["sweep", "nowhere.toml", "--no-charts"])
+        .output()
+        .unwrap();
+    let err = String::from_utf8(out.stderr).unwrap();
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("nowhere.toml"), "{err}");
+}
+
+const UNSORTED: &str = r#"name = "order"
+description = "Grids given out of order."
+
+[class]
+family = "feasibility"
+dims = [2, 1, 2]
+half_width = 2.0
+rho = [1e-3, 1e-1, 1e-2, 1e-1]
+promise = "nonempty"
+
+[adversary]
+name = "halving"
+
+[play]
+methods = ["random", "midpoint", "ellipsoid"]
+seeds = [7, 3]
+budget = 50
+"#;
+
+#[test]
+fn valid_scenario_sorts_grids_and_fills_defaults() {
+    let s = Scenario::parse(UNSORTED, Path::new("order.toml")).unwrap();
+    assert_eq!(s.name, "order");
+    assert_eq!(s.description, "Grids given out of order.");
+    // Dimensions ascending and distinct, rho descending and distinct (src/scenario.rs).
+    assert_eq!(s.dims, vec![1, 2]);
+    assert_eq!(s.rhos, vec![1e-1, 1e-2, 1e-3]);
+    assert_eq!(s.half_width, 2.0);
+    assert_eq!(s.promise, Promise::Nonempty);
+    assert_eq!(s.adversary, "halving");
+    assert_eq!(s.methods, vec!["random", "midpoint", "ellipsoid"]);
+    assert_eq!(s.seeds, vec![7, 3]);
+    assert_eq!(s.budget, 50);
+    assert!(!s.transcripts);
+    // Without [charts]: the largest d and the smallest rho.
+    assert_eq!(s.chart_dim, 2);
+    assert_eq!(s.chart_rho, 1e-3);
+    assert_eq!(s.source_text, UNSORTED);
+}
+
+#[test]
+fn promise_defaults_to_may_be_empty() {
+    let text = UNSORTED.replace("promise = \"nonempty\"\n", "");
+    let s = Scenario::parse(&text, Path::new("order.toml")).unwrap();
+    assert_eq!(s.promise, Promise::MayBeEmpty);
+}
+
+#[test]
+fn games_are_in_canonical_order_and_deterministic_methods_play_the_first_seed() {
+    let s = Scenario::parse(UNSORTED, Path::new("order.toml")).unwrap();
+    // d ascending, then rho descending, then methods in file order, then seeds in file
+    // order; midpoint and ellipsoid are deterministic (src/method/mod.rs METHODS), so
+    // they play only the first seed, 7. Written out by hand.
+    let mut expected: Vec<(usize, f64, &str, u64)> = Vec::new();
+    for (d, rho) in [
+        (1, 1e-1),
+        (1, 1e-2),
+        (1, 1e-3),
+        (2, 1e-1),
+        (2, 1e-2),
+        (2, 1e-3),
+    ] {
+        expected.extend([
+            (d, rho, "random", 7),
+            (d, rho, "random", 3),
+            (d, rho, "midpoint", 7),
+            (d, rho, "ellipsoid", 7),
+        ]);
+    }
+    let games = s.games();
+    let got: Vec<(usize, f64, &str, u64)> = games
+        .iter()
+        .map(|g| (g.class.dim, g.class.rho, g.method.as_str(), g.seed))
+        .collect();
+    assert_eq!(got, expected);
+    for (i, g) in games.iter().enumerate() {
+        assert_eq!(g.index, i as u64);
+        assert_eq!(g.class.half_width, 2.0);
+        assert_eq!(g.class.promise, Promise::Nonempty);
+    }
+}
