@@ -4,5 +4,9 @@
 //! arithmetic lives in the adversaries' answers and in [`crate::certificate`].
 
 pub mod boxes;
+pub mod hit_and_run;
+pub mod polygon;
+pub mod polytope;
 
 pub use boxes::BoxModel;
+pub use polytope::Polytope;

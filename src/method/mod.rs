@@ -10,13 +10,19 @@
 //! own information proves that no rho-ball fits strictly inside what it knows, and
 //! register it in [`METHODS`] and [`build`].
 
+pub mod analytic_center;
+pub mod centroid;
 pub mod ellipsoid;
 pub mod midpoint;
 pub mod random;
+pub mod sampled_centroid;
 
-use crate::class::Class;
+#[cfg(test)]
+mod test_support;
+
+use crate::class::{Class, Promise};
 use crate::error::Error;
-use crate::oracle::{Answer, Step};
+use crate::oracle::{Answer, Output, Step};
 
 /// A player under test.
 pub trait Method {
@@ -57,6 +63,24 @@ pub const METHODS: &[MethodInfo] = &[
         description: "uniform random point of its own box model (seeded baseline)",
         deterministic: false,
     },
+    MethodInfo {
+        name: "centroid",
+        description: "exact centre of gravity of its polytope model, d <= 2 (Levin 1965; \
+                      Newman 1965; Grunbaum 1960)",
+        deterministic: true,
+    },
+    MethodInfo {
+        name: "sampled-centroid",
+        description: "mean of hit-and-run samples of its polytope model (Bertsimas & \
+                      Vempala 2004, J. ACM 51(4))",
+        deterministic: false,
+    },
+    MethodInfo {
+        name: "analytic-center",
+        description: "analytic centre of its polytope model by damped Newton (ACCPM; \
+                      Goffin & Vial 2002, Optim. Methods Softw. 17)",
+        deterministic: true,
+    },
 ];
 
 /// Builds the built-in method `name` for `class`, seeded with `seed` where it is
@@ -67,12 +91,60 @@ pub fn build(name: &str, class: &Class, seed: u64) -> Result<Box<dyn Method + Se
         "midpoint" => Ok(Box::new(midpoint::Midpoint::new(c))),
         "ellipsoid" => Ok(Box::new(ellipsoid::Ellipsoid::new(c))),
         "random" => Ok(Box::new(random::RandomPoint::new(c, seed))),
+        "centroid" => Ok(Box::new(centroid::Centroid::new(c)?)),
+        "sampled-centroid" => Ok(Box::new(sampled_centroid::SampledCentroid::new(c, seed)?)),
+        "analytic-center" => Ok(Box::new(analytic_center::AnalyticCenter::new(c)?)),
         _ => Err(Error::UnknownMethod { name: name.into() }),
     }
 }
 
-/// Whether built-in method `name` supports `class`; `Err` says why not.
+/// Whether built-in method `name` supports `class`; `Err` says why not. Only
+/// `centroid` is restricted: its exact centre of gravity exists for d <= 2 only.
 pub fn supports(name: &str, class: &Class) -> Result<(), String> {
-    let _ = (name, class);
+    if name == "centroid" && class.query_dim() > 2 {
+        return Err(format!(
+            "centroid is exact only in d <= 2 (d = {}); use sampled-centroid",
+            class.query_dim()
+        ));
+    }
     Ok(())
+}
+
+/// What a method outputs once its own information proves that no rho-ball fits inside
+/// what it knows: "empty" when the class allows it; under the nonempty promise the
+/// promise contradicts that proof, and the method answers `guess` (its model's centre).
+pub(crate) fn give_up(promise: Promise, guess: impl FnOnce() -> Vec<f64>) -> Output {
+    match promise {
+        Promise::MayBeEmpty => Output::Empty,
+        Promise::Nonempty => Output::Point { point: guess() },
+    }
+}
+
+/// The error a polytope-model method returns when a cut at its query left its model
+/// unchanged. Its queries lie strictly inside the model, so a valid cut through or beyond
+/// one always changes it, unless outward rounding has swallowed the cut: the model has
+/// reached floating-point resolution, and a deterministic method would repeat the same
+/// query forever.
+pub(crate) fn unchanged(method: &str) -> Error {
+    Error::MethodFailed {
+        method: method.into(),
+        reason: "the last cut left the model unchanged: its outward rounding reached \
+                 floating-point resolution (or the cut does not exclude the query)"
+            .into(),
+    }
+}
+
+/// Re-labels a geometry error ([`Error::MethodFailed`] from the polytope model or the
+/// sampler) as a failure of `method`; other errors pass through.
+pub(crate) fn blame(error: Error, method: &str) -> Error {
+    match error {
+        Error::MethodFailed {
+            method: part,
+            reason,
+        } => Error::MethodFailed {
+            method: method.into(),
+            reason: format!("{part}: {reason}"),
+        },
+        other => other,
+    }
 }

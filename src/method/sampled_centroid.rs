@@ -1,0 +1,222 @@
+//! Sampled centre of gravity (Bertsimas & Vempala, "Solving convex programs by random
+//! walks", J. ACM 51(4), 2004): query the mean of points drawn approximately uniformly
+//! from the model P by hit-and-run ([`HitAndRun`]).
+//!
+//! Bertsimas & Vempala show that a halfspace through the mean of N independent uniform
+//! points of a convex body keeps, in expectation, at least 1/e - sqrt(d/N) of its volume
+//! (from memory), so N = O(d) samples give a constant fraction, O(d log(R/rho)) queries
+//! in all. Parameters here (common practice, no source; chosen so a step at d = 10 costs
+//! milliseconds): N = 10 d + 20 samples per query; the walk starts at the Chebyshev
+//! centre of P (computed each step for the "empty" test anyway), takes 20 d burn-in steps,
+//! then d steps between samples. The walk is only approximately mixed; the method is
+//! sound regardless, because soundness rests only on the "empty" rule: it is declared
+//! only when P proves no rho-ball fits strictly inside ([`Polytope::ball_test`]). When
+//! the mean is not strictly inside P in floating point, the Chebyshev centre is queried
+//! instead (counted by [`SampledCentroid::fallbacks`]).
+//!
+//! Numerical limits: when the model's LP can no longer place a centre strictly inside P
+//! (P far thinner than its bounding box, beyond about 1e-10 of its scale), or a cut
+//! leaves the model unchanged (outward rounding swallowed it), the method stops with
+//! [`crate::error::Error::MethodFailed`] rather than repeat a query or claim anything.
+
+use crate::class::{FeasibilityClass, Promise};
+use crate::error::Error;
+use crate::geometry::hit_and_run::HitAndRun;
+use crate::geometry::polytope::{BallTest, Polytope};
+use crate::method::{blame, give_up, unchanged, Method};
+use crate::oracle::{Answer, Output, Step};
+
+const NAME: &str = "sampled-centroid";
+
+/// Hit-and-run estimate of the centroid of the model; seeded, any dimension.
+#[derive(Clone, Debug)]
+pub struct SampledCentroid {
+    polytope: Polytope,
+    walker: HitAndRun,
+    rho: f64,
+    promise: Promise,
+    samples: usize,
+    burn_in: usize,
+    thin: usize,
+    mean: Vec<f64>,
+    fallbacks: u64,
+    found: Option<Vec<f64>>,
+}
+
+impl SampledCentroid {
+    /// Starts from the class's box with generator seed `seed`.
+    pub fn new(class: &FeasibilityClass, seed: u64) -> Result<SampledCentroid, Error> {
+        let d = class.dim;
+        Ok(SampledCentroid {
+            polytope: Polytope::cube(d, class.half_width),
+            walker: HitAndRun::new(d, seed),
+            rho: class.rho,
+            promise: class.promise,
+            samples: 10 * d + 20,
+            burn_in: 20 * d,
+            thin: d,
+            mean: vec![0.0; d],
+            fallbacks: 0,
+            found: None,
+        })
+    }
+
+    /// Samples N averaged per query (10 d + 20).
+    pub fn samples_per_query(&self) -> usize {
+        self.samples
+    }
+
+    /// How many queries fell back to the Chebyshev centre.
+    pub fn fallbacks(&self) -> u64 {
+        self.fallbacks
+    }
+
+    /// The current model.
+    pub fn polytope(&self) -> &Polytope {
+        &self.polytope
+    }
+}
+
+impl Method for SampledCentroid {
+    fn name(&self) -> &str {
+        NAME
+    }
+
+    fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
+        if let Some(point) = self.found.take() {
+            return Ok(Step::Output(Output::Point { point }));
+        }
+        if query.len() != self.polytope.dim() {
+            return Err(Error::MethodFailed {
+                method: NAME.into(),
+                reason: format!(
+                    "query buffer has length {} in dimension {}",
+                    query.len(),
+                    self.polytope.dim()
+                ),
+            });
+        }
+        let center = match self
+            .polytope
+            .ball_test(self.rho)
+            .map_err(|e| blame(e, NAME))?
+        {
+            BallTest::NoBall => {
+                let (lower, upper) = self.polytope.bounding_box();
+                let guess = || {
+                    lower
+                        .iter()
+                        .zip(upper)
+                        .map(|(l, u)| 0.5 * l + 0.5 * u)
+                        .collect()
+                };
+                return Ok(Step::Output(give_up(self.promise, guess)));
+            }
+            BallTest::Center(center, _) => center,
+        };
+        let sampled = self.polytope.contains_strictly(&center)
+            && self
+                .walker
+                .sample_mean(
+                    &self.polytope,
+                    &center,
+                    self.burn_in,
+                    self.thin,
+                    self.samples,
+                    &mut self.mean,
+                )
+                .is_ok()
+            && self.polytope.contains_strictly(&self.mean);
+        if sampled {
+            query.copy_from_slice(&self.mean);
+        } else {
+            self.fallbacks += 1;
+            query.copy_from_slice(&center);
+        }
+        Ok(Step::Query)
+    }
+
+    fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
+        match answer {
+            Answer::Inside => self.found = Some(query.to_vec()),
+            Answer::Cut(cut) => {
+                if !self.polytope.add_cut(cut).map_err(|e| blame(e, NAME))? {
+                    return Err(unchanged(NAME));
+                }
+            }
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::class::Promise;
+    use crate::exact::Exact;
+    use crate::method::test_support::{play_ball, play_corner, play_halver};
+    use crate::oracle::{Cut, Normal};
+
+    #[test]
+    fn against_the_halving_oracle() {
+        let games = play_halver(3, |c| Box::new(SampledCentroid::new(c, 5).unwrap()));
+        assert_eq!(games.len(), 12);
+    }
+
+    #[test]
+    fn finds_a_ball_with_deep_dense_cuts() {
+        for d in 1..=4 {
+            let queries = play_ball(d, |c| Box::new(SampledCentroid::new(c, 11).unwrap()));
+            assert!(queries >= 1);
+        }
+    }
+
+    #[test]
+    fn same_seed_same_queries() {
+        use crate::method::test_support::BallOracle;
+        let class = FeasibilityClass::new(3, 1.0, 1e-3, Promise::MayBeEmpty).unwrap();
+        let oracle = BallOracle {
+            center: vec![0.5, 0.5, -0.5],
+            radius: 0.01,
+        };
+        let run = |seed| {
+            let mut m = SampledCentroid::new(&class, seed).unwrap();
+            let mut q = vec![0.0; 3];
+            let mut queries = Vec::new();
+            for _ in 0..8 {
+                if m.next(&mut q).unwrap() != Step::Query {
+                    break;
+                }
+                queries.push(q.clone());
+                m.observe(&q, &oracle.answer(&q)).unwrap();
+            }
+            queries
+        };
+        assert_eq!(run(3), run(3));
+        assert_ne!(run(3), run(4));
+    }
+
+    #[test]
+    fn stops_cleanly_on_a_sliver_far_below_the_box_scale() {
+        for d in 1..=3 {
+            let queries = play_corner(d, |c| Box::new(SampledCentroid::new(c, 2).unwrap()));
+            assert!(queries >= 1);
+        }
+    }
+
+    #[test]
+    fn a_cut_that_leaves_the_model_unchanged_is_an_error() {
+        let class = FeasibilityClass::new(2, 1.0, 1e-3, Promise::MayBeEmpty).unwrap();
+        let make = |c: &FeasibilityClass| SampledCentroid::new(c, 2).unwrap();
+        let mut method = make(&class);
+        let mut query = [0.0; 2];
+        assert_eq!(method.next(&mut query).unwrap(), Step::Query);
+        // y_0 < 5 holds on the whole box: it does not exclude the query.
+        let cut = Cut {
+            normal: Normal::axis(0, true),
+            offset: Exact::Float(5.0),
+        };
+        let err = method.observe(&query, &Answer::Cut(cut)).unwrap_err();
+        assert!(err.to_string().contains("unchanged"), "{err}");
+    }
+}
