@@ -1,0 +1,354 @@
+//! Certificates and the independent verifier.
+//!
+//! A certificate is a transcript plus witnesses plus a claim. The verifier reads only
+//! the transcript's records (header, queries with their answers, final record with the
+//! witnesses); it never sees adversary state. Every comparison is exact, in rational
+//! arithmetic over the exact numbers stored in the transcript, with no tolerance
+//! (THEORY.md section 0). Square roots are decided by squaring with signs checked: a
+//! ball B(c, r) lies strictly inside the cut `{a.y < b}` iff `s = b - a.c > 0` and
+//! `r^2 ||a||^2 < s^2`.
+//!
+//! What a valid certificate with prefix T* proves: every witness agrees with the first
+//! T* answers, every witness belongs to the class, and either the witnesses' solution
+//! sets are pairwise disjoint (so no output is correct for all of them: no method that
+//! saw only these answers could stop), or T* covers the whole game and the method's
+//! output is wrong for one witness. The certified lower bound is then T* + 1 queries.
+
+pub mod feasibility;
+
+use serde::{Deserialize, Serialize};
+
+use crate::class::Class;
+use crate::error::Error;
+use crate::game::{Ending, FinalRecord, Header};
+use crate::oracle::Output;
+use crate::transcript::{parse_line, QueryRecord, Record, TranscriptReader, FORMAT_VERSION};
+
+/// What the verifier concluded about a game whose certificate checks out.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum Outcome {
+    /// The method output a point that is not in witness `witness` (0-based).
+    OutputRefuted {
+        /// Index of the refuting witness.
+        witness: usize,
+    },
+    /// The method declared "empty" but witness `witness` (0-based) is nonempty.
+    EmptyRefuted {
+        /// Index of the refuting witness.
+        witness: usize,
+    },
+    /// The method declared "empty" although the class promises K is nonempty.
+    EmptyBreaksPromise,
+    /// The method's output is not refuted by the witnesses (it stands).
+    OutputStands,
+    /// The budget ended the game (queries used is censored).
+    BudgetExhausted,
+    /// The method failed.
+    MethodFailed {
+        /// Its reason.
+        reason: String,
+    },
+}
+
+/// The verifier's verdict on a transcript.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Verdict {
+    /// The header.
+    pub header: Header,
+    /// Queries the method asked (censored when the budget ended the game).
+    pub queries_used: u64,
+    /// True when the budget ended the game.
+    pub censored: bool,
+    /// How the game ended, as recorded.
+    pub ending: Ending,
+    /// The longest prefix T* with a verified certificate; `None` when there is none.
+    pub certified_prefix: Option<u64>,
+    /// How the game ended, judged by the verified witnesses.
+    pub outcome: Outcome,
+}
+
+impl Verdict {
+    /// Certified lower bound = T* + 1 (THEORY.md section 0).
+    pub fn certified_lower_bound(&self) -> Option<u64> {
+        self.certified_prefix.map(|t| t + 1)
+    }
+}
+
+/// Verifies the transcript file at `path` (two streaming passes: the first finds the
+/// final record, the second checks every record against its witnesses).
+pub fn verify_file(path: &std::path::Path) -> Result<Verdict, Error> {
+    // Pass 1: the last line, to learn the witnesses before checking the answers.
+    let mut last: Option<(u64, String)> = None;
+    {
+        use std::io::BufRead;
+        let file = std::fs::File::open(path).map_err(|source| Error::Io {
+            action: "cannot read transcript",
+            path: path.to_path_buf(),
+            source,
+        })?;
+        let mut reader = std::io::BufReader::with_capacity(1 << 16, file);
+        let mut buffer = Vec::new();
+        let mut line = 0u64;
+        loop {
+            buffer.clear();
+            let n = reader
+                .read_until(b'\n', &mut buffer)
+                .map_err(|source| Error::Io {
+                    action: "cannot read transcript",
+                    path: path.to_path_buf(),
+                    source,
+                })?;
+            if n == 0 {
+                break;
+            }
+            line += 1;
+            let text = String::from_utf8_lossy(&buffer).trim_end().to_string();
+            last = Some((line, text));
+        }
+    }
+    let (last_line, last_text) = last.ok_or(Error::Transcript {
+        line: 1,
+        reason: "the file is empty".into(),
+    })?;
+    let final_record = match parse_line(&last_text, last_line) {
+        Ok(Record::Final(f)) => Some(f),
+        Ok(_) => None,
+        Err(e) => {
+            if last_line > 1 {
+                return Err(Error::Transcript {
+                    line: last_line,
+                    reason: format!("the last line is not a complete record (truncated?): {e}"),
+                });
+            }
+            return Err(e);
+        }
+    };
+    let mut checker: Option<Checker> = None;
+    let mut pending_final = final_record;
+    for item in TranscriptReader::open(path)? {
+        let (line, record) = item?;
+        match checker.as_mut() {
+            None => {
+                let Record::Header(header) = record else {
+                    return Err(out_of_order(line, "the first record must be the header"));
+                };
+                let Some(final_record) = pending_final.take() else {
+                    return Err(Error::Transcript {
+                        line: last_line,
+                        reason: "the transcript ends without a final record (truncated?)".into(),
+                    });
+                };
+                checker = Some(Checker::new(header, final_record, last_line)?);
+            }
+            Some(c) => c.record(line, record)?,
+        }
+    }
+    checker
+        .ok_or(Error::Transcript {
+            line: 1,
+            reason: "no header".into(),
+        })?
+        .finish(last_line)
+}
+
+/// Verifies an in-memory transcript (header first, final record last).
+pub fn verify_records(records: &[Record]) -> Result<Verdict, Error> {
+    let n = records.len() as u64;
+    let Some(Record::Header(header)) = records.first() else {
+        return Err(out_of_order(1, "the first record must be the header"));
+    };
+    let Some(Record::Final(final_record)) = records.last() else {
+        return Err(Error::Transcript {
+            line: n.max(1),
+            reason: "the transcript ends without a final record (truncated?)".into(),
+        });
+    };
+    let mut checker = Checker::new(header.clone(), final_record.clone(), n)?;
+    for (i, record) in records.iter().enumerate().skip(1) {
+        checker.record(i as u64 + 1, record.clone())?;
+    }
+    checker.finish(n)
+}
+
+fn out_of_order(line: u64, reason: &str) -> Error {
+    Error::Transcript {
+        line,
+        reason: format!("record out of order: {reason}"),
+    }
+}
+
+/// The class-specific half of the verifier: built from the validated class and the
+/// final record, fed every query record in order, then asked for the outcome.
+///
+/// The driver ([`verify_file`], [`verify_records`]) checks everything that does not
+/// depend on the class: the header, the order of records, query indices, the budget,
+/// and the final record's counts.
+pub trait ClassVerifier {
+    /// Checks one query record (its index is already checked). `in_prefix` says whether
+    /// the certificate's witnesses must agree with it.
+    fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error>;
+    /// Checks the certificate's claim (if any) and judges the ending.
+    fn finish(&mut self, final_line: u64) -> Result<Outcome, Error>;
+}
+
+/// Builds the verifier for the header's class.
+fn class_verifier(
+    header: &Header,
+    final_record: &FinalRecord,
+    final_line: u64,
+) -> Result<Box<dyn ClassVerifier>, Error> {
+    let header_error = |reason: String| Error::Transcript { line: 1, reason };
+    match &header.class {
+        Class::Feasibility(c) => {
+            let class = crate::class::FeasibilityClass::new(c.dim, c.half_width, c.rho, c.promise)
+                .map_err(|e| header_error(e.to_string()))?;
+            Ok(Box::new(feasibility::FeasibilityVerifier::new(
+                class,
+                final_record,
+                final_line,
+            )?))
+        }
+    }
+}
+
+/// Streaming driver: built from the header and the final record, fed the records in
+/// order.
+struct Checker {
+    header: Header,
+    final_record: FinalRecord,
+    final_line: u64,
+    prefix: u64,
+    dim: usize,
+    inner: Box<dyn ClassVerifier>,
+    next_index: u64,
+    finished: bool,
+}
+
+impl Checker {
+    fn new(header: Header, final_record: FinalRecord, final_line: u64) -> Result<Checker, Error> {
+        if header.format != FORMAT_VERSION {
+            return Err(Error::Transcript {
+                line: 1,
+                reason: format!(
+                    "transcript format {} is not supported (this build reads format \
+                     {FORMAT_VERSION})",
+                    header.format
+                ),
+            });
+        }
+        let final_error = |reason: String| Error::Transcript {
+            line: final_line,
+            reason,
+        };
+        if matches!(final_record.ending, Ending::BudgetExhausted)
+            && final_record.queries_used != header.budget
+        {
+            return Err(final_error(format!(
+                "the budget ended the game after {} queries, but the budget is {}",
+                final_record.queries_used, header.budget
+            )));
+        }
+        let dim = header.class.query_dim();
+        if let Ending::Output {
+            output: Output::Point { point },
+        } = &final_record.ending
+        {
+            if point.len() != dim {
+                return Err(final_error(format!(
+                    "output point has {} coordinates, expected {dim}",
+                    point.len(),
+                )));
+            }
+        }
+        let prefix = final_record.certificate.as_ref().map_or(0, |w| w.prefix);
+        if prefix > final_record.queries_used {
+            return Err(final_error(format!(
+                "the certificate claims prefix {prefix}, longer than the {} queries used",
+                final_record.queries_used
+            )));
+        }
+        let inner = class_verifier(&header, &final_record, final_line)?;
+        Ok(Checker {
+            header,
+            final_record,
+            final_line,
+            prefix,
+            dim,
+            inner,
+            next_index: 1,
+            finished: false,
+        })
+    }
+
+    fn record(&mut self, line: u64, record: Record) -> Result<(), Error> {
+        if self.finished {
+            return Err(out_of_order(line, "a record follows the final record"));
+        }
+        match record {
+            Record::Header(_) => Err(out_of_order(line, "a second header")),
+            Record::Final(_) => {
+                if line != self.final_line {
+                    return Err(out_of_order(line, "a final record before the end"));
+                }
+                if self.next_index != self.final_record.queries_used + 1 {
+                    return Err(Error::Transcript {
+                        line,
+                        reason: format!(
+                            "the final record says {} queries were used, but the transcript \
+                             holds {}",
+                            self.final_record.queries_used,
+                            self.next_index - 1
+                        ),
+                    });
+                }
+                self.finished = true;
+                Ok(())
+            }
+            Record::Query(query) => {
+                if query.index != self.next_index {
+                    return Err(out_of_order(
+                        line,
+                        &format!(
+                            "expected query {}, found query {}",
+                            self.next_index, query.index
+                        ),
+                    ));
+                }
+                self.next_index += 1;
+                if query.point.len() != self.dim {
+                    return Err(Error::Transcript {
+                        line,
+                        reason: format!(
+                            "query {} has {} coordinates, expected {}",
+                            query.index,
+                            query.point.len(),
+                            self.dim
+                        ),
+                    });
+                }
+                let in_prefix = query.index <= self.prefix;
+                self.inner.query(line, &query, in_prefix)
+            }
+        }
+    }
+
+    fn finish(mut self, last_line: u64) -> Result<Verdict, Error> {
+        if !self.finished {
+            return Err(Error::Transcript {
+                line: last_line,
+                reason: "the transcript ends without a final record (truncated?)".into(),
+            });
+        }
+        let outcome = self.inner.finish(self.final_line)?;
+        let ending = &self.final_record.ending;
+        Ok(Verdict {
+            censored: matches!(ending, Ending::BudgetExhausted),
+            queries_used: self.final_record.queries_used,
+            certified_prefix: self.final_record.certificate.as_ref().map(|w| w.prefix),
+            ending: ending.clone(),
+            outcome,
+            header: self.header,
+        })
+    }
+}
