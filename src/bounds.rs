@@ -99,6 +99,18 @@ pub fn ellipsoid_upper_bound(class: &FeasibilityClass) -> u64 {
     (numerator / -log_volume_ratio(d)).floor() as u64 + 1
 }
 
+/// Queries the exact centre-of-gravity method needs at most on convex L-Lipschitz f
+/// over [-R, R]^d (l2 norm) to reach accuracy eps: ceil(d ln(2 L R sqrt(d) / eps) /
+/// 0.458675), since each cut keeps at most 1 - 1/e of the volume (Grunbaum 1960) and
+/// the argument of Bubeck 2015, Thm 2.1, with diameter 2R sqrt(d) (THEORY.md 5,
+/// derived; the sqrt(d) is an l2 artefact).
+pub fn first_order_centre_of_gravity_upper_bound(class: &crate::class::FirstOrderClass) -> u64 {
+    let d = class.dim as f64;
+    let shrink = -(-(-1f64).exp()).ln_1p(); // -ln(1 - 1/e) = 0.458675...
+    let n = d * (2.0 * class.lipschitz * class.half_width * d.sqrt() / class.eps).ln() / shrink;
+    n.ceil().max(1.0) as u64
+}
+
 /// Every bound line for a feasibility class, lower bound first.
 pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
     vec![

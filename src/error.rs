@@ -72,6 +72,14 @@ pub enum Error {
         /// What is wrong.
         reason: String,
     },
+    /// A chart could not be drawn.
+    #[error("cannot draw chart {path}: {reason}")]
+    Chart {
+        /// The chart's path stem.
+        path: PathBuf,
+        /// Why.
+        reason: String,
+    },
     /// A transcript record is malformed or out of place.
     #[error("transcript line {line}: {reason}")]
     Transcript {

@@ -7,13 +7,17 @@ pub mod exact;
 pub mod geometry;
 pub mod instance;
 pub mod method;
+pub mod minimax;
 pub mod oracle;
 
 pub use error::Error;
 pub mod bounds;
 pub mod certificate;
+pub mod chart;
 pub mod cli;
+pub mod gallery;
 pub mod game;
+pub mod hunt;
 pub mod runner;
 pub mod scenario;
 pub mod sweep;

@@ -134,6 +134,65 @@ pub enum Answer {
     Inside,
     /// The query lies outside K; the cut separates it strictly.
     Cut(Cut),
+    /// A first-order answer: f(x) and one subgradient of f at x, both exact.
+    FirstOrder(FirstOrderAnswer),
+}
+
+/// f(x) and one subgradient g of f at x (THEORY.md 2), exact.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FirstOrderAnswer {
+    /// f(x).
+    pub value: Exact,
+    /// A subgradient of f at x (length d).
+    pub subgradient: Vec<Exact>,
+}
+
+impl FirstOrderAnswer {
+    /// The objective cut `{y : g.y < g.x}` at query `x`, which keeps every point with
+    /// f(y) < f(x) (a deep enough cut for cutting-plane methods); `None` when g = 0, so
+    /// that x minimises f.
+    pub fn objective_cut(&self, query: &[f64]) -> Option<Cut> {
+        let normal: Vec<f64> = self.subgradient.iter().map(Exact::to_f64).collect();
+        if normal.iter().all(|g| *g == 0.0) || normal.iter().any(|g| !g.is_finite()) {
+            return None;
+        }
+        let offset: BigRational = normal
+            .iter()
+            .zip(query)
+            .filter(|(g, _)| **g != 0.0)
+            .map(|(g, x)| f64_to_rational(*g) * f64_to_rational(*x))
+            .sum();
+        Some(Cut {
+            normal: Normal::Dense(normal),
+            offset: Exact::from_rational(offset),
+        })
+    }
+}
+
+/// A separation view of any answer, for cutting-plane methods that also play
+/// first-order classes.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Separation<'a> {
+    /// The query lies in K (for a first-order answer: the subgradient is zero, so the
+    /// query minimises f).
+    Inside,
+    /// A cut: the answer's own, or a first-order answer's objective cut.
+    Cut(std::borrow::Cow<'a, Cut>),
+}
+
+impl Answer {
+    /// The answer as a separation answer: a first-order answer becomes its objective
+    /// cut, or `Inside` when the subgradient is zero.
+    pub fn to_separation(&self, query: &[f64]) -> Separation<'_> {
+        match self {
+            Answer::Inside => Separation::Inside,
+            Answer::Cut(cut) => Separation::Cut(std::borrow::Cow::Borrowed(cut)),
+            Answer::FirstOrder(fo) => match fo.objective_cut(query) {
+                Some(cut) => Separation::Cut(std::borrow::Cow::Owned(cut)),
+                None => Separation::Inside,
+            },
+        }
+    }
 }
 
 /// What a method finally claims.

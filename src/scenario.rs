@@ -36,7 +36,7 @@ use serde::Deserialize;
 use toml::Spanned;
 
 use crate::adversary::ADVERSARIES;
-use crate::class::{Class, FeasibilityClass, Promise};
+use crate::class::{Class, FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
 use crate::error::Error;
 use crate::method::{self, METHODS};
 
@@ -58,7 +58,14 @@ struct RawClass {
     family: Spanned<String>,
     dims: Spanned<Vec<Spanned<i64>>>,
     half_width: Spanned<f64>,
-    rho: Spanned<Vec<Spanned<f64>>>,
+    #[serde(default)]
+    rho: Option<Spanned<Vec<Spanned<f64>>>>,
+    #[serde(default)]
+    eps: Option<Spanned<Vec<Spanned<f64>>>>,
+    #[serde(default)]
+    lipschitz: Option<Spanned<f64>>,
+    #[serde(default)]
+    norm: Option<Spanned<String>>,
     #[serde(default)]
     promise: Option<Spanned<String>>,
 }
@@ -86,6 +93,8 @@ struct RawCharts {
     dim: Option<Spanned<i64>>,
     #[serde(default)]
     rho: Option<Spanned<f64>>,
+    #[serde(default)]
+    eps: Option<Spanned<f64>>,
 }
 
 /// A validated scenario.
@@ -99,10 +108,10 @@ pub struct Scenario {
     pub dims: Vec<usize>,
     /// Box half-width R.
     pub half_width: f64,
-    /// Accuracies, descending (so R/rho ascends), distinct.
-    pub rhos: Vec<f64>,
-    /// The class promise.
-    pub promise: Promise,
+    /// Accuracies (rho or eps), descending (so R/rho or L R/eps ascends), distinct.
+    pub accuracies: Vec<f64>,
+    /// The family and its fixed parameters.
+    pub family: Family,
     /// Adversary name.
     pub adversary: String,
     /// Method names, in file order.
@@ -115,10 +124,54 @@ pub struct Scenario {
     pub transcripts: bool,
     /// d of the "queries against log2(R/rho)" chart (default: the largest d).
     pub chart_dim: usize,
-    /// rho of the "queries against d" chart (default: the smallest rho).
-    pub chart_rho: f64,
+    /// Accuracy of the "queries against d" chart (default: the smallest).
+    pub chart_accuracy: f64,
     /// The TOML text, for fingerprinting resumed sweeps.
     pub source_text: String,
+}
+
+/// The class of `family` at (d, accuracy), for validation before a [`Scenario`] exists.
+fn class_for(family: &Family, d: usize, half_width: f64, accuracy: f64) -> Result<Class, Error> {
+    Ok(match family {
+        Family::Feasibility { promise } => {
+            Class::Feasibility(FeasibilityClass::new(d, half_width, accuracy, *promise)?)
+        }
+        Family::FirstOrder { lipschitz, norm } => Class::FirstOrder(FirstOrderClass::new(
+            d, half_width, accuracy, *lipschitz, *norm,
+        )?),
+    })
+}
+
+/// The family of a scenario's classes, with the parameters that do not vary.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Family {
+    /// Separation-oracle feasibility (`rho` grid).
+    Feasibility {
+        /// The class promise.
+        promise: Promise,
+    },
+    /// First-order minimisation (`eps` grid).
+    FirstOrder {
+        /// Lipschitz constant L.
+        lipschitz: f64,
+        /// The norm L is measured in.
+        norm: LipschitzNorm,
+    },
+}
+
+impl Scenario {
+    /// The class at dimension `d` and accuracy `accuracy` (rho or eps).
+    pub fn class_at(&self, d: usize, accuracy: f64) -> Result<Class, Error> {
+        class_for(&self.family, d, self.half_width, accuracy)
+    }
+
+    /// The name of the accuracy parameter: "rho" or "eps".
+    pub fn accuracy_name(&self) -> &'static str {
+        match self.family {
+            Family::Feasibility { .. } => "rho",
+            Family::FirstOrder { .. } => "eps",
+        }
+    }
 }
 
 /// One game of a sweep.
@@ -127,7 +180,7 @@ pub struct GridGame {
     /// Position in the canonical order (from 0).
     pub index: u64,
     /// The class.
-    pub class: FeasibilityClass,
+    pub class: Class,
     /// Method name.
     pub method: String,
     /// Seed.
@@ -187,17 +240,21 @@ impl Scenario {
                 "name must be non-empty and use only letters, digits, '-' and '_'",
             ));
         }
-        if raw.class.family.get_ref() != "feasibility" {
+        let family_name = raw.class.family.get_ref().as_str();
+        if family_name != "feasibility" && family_name != "first-order" {
             return Err(at.error(
                 &raw.class.family,
                 format!(
-                    "unknown class family {:?}; known: \"feasibility\"",
-                    raw.class.family.get_ref()
+                    "unknown class family {family_name:?}; known: \"feasibility\", \"first-order\""
                 ),
             ));
         }
+        let first_order = family_name == "first-order";
         let promise = match &raw.class.promise {
             None => Promise::MayBeEmpty,
+            Some(p) if first_order => {
+                return Err(at.error(p, "promise belongs to the feasibility family"))
+            }
             Some(p) => match p.get_ref().as_str() {
                 "may-be-empty" => Promise::MayBeEmpty,
                 "nonempty" => Promise::Nonempty,
@@ -208,6 +265,47 @@ impl Scenario {
                     ))
                 }
             },
+        };
+        let family = if first_order {
+            if let Some(r) = &raw.class.rho {
+                return Err(at.error(r, "the first-order family takes eps, not rho"));
+            }
+            let lipschitz = raw.class.lipschitz.as_ref().map_or(1.0, |l| *l.get_ref());
+            if let Some(l) = &raw.class.lipschitz {
+                if !(lipschitz.is_finite() && lipschitz > 0.0) {
+                    return Err(at.error(l, "lipschitz must be a positive finite number"));
+                }
+            }
+            let norm = match &raw.class.norm {
+                None => LipschitzNorm::L2,
+                Some(n) => match n.get_ref().as_str() {
+                    "l1" => LipschitzNorm::L1,
+                    "l2" => LipschitzNorm::L2,
+                    "linf" => LipschitzNorm::Linf,
+                    other => {
+                        return Err(at.error(
+                            n,
+                            format!("norm must be \"l1\", \"l2\" or \"linf\", not {other:?}"),
+                        ))
+                    }
+                },
+            };
+            Family::FirstOrder { lipschitz, norm }
+        } else {
+            for key in [&raw.class.lipschitz.as_ref().map(|l| l.span())] {
+                if let Some(span) = key {
+                    return Err(
+                        at.error_at(span.start, "lipschitz belongs to the first-order family")
+                    );
+                }
+            }
+            if let Some(e) = &raw.class.eps {
+                return Err(at.error(e, "the feasibility family takes rho, not eps"));
+            }
+            if let Some(n) = &raw.class.norm {
+                return Err(at.error(n, "norm belongs to the first-order family"));
+            }
+            Family::Feasibility { promise }
         };
         let half_width = *raw.class.half_width.get_ref();
         if !(half_width.is_finite() && half_width > 0.0) {
@@ -232,18 +330,41 @@ impl Scenario {
         }
         dims.sort_unstable();
         dims.dedup();
-        if raw.class.rho.get_ref().is_empty() {
-            return Err(at.error(&raw.class.rho, "the grid of accuracies rho is empty"));
+        let (grid, grid_name) = match (&raw.class.rho, &raw.class.eps, first_order) {
+            (Some(r), _, false) => (r, "rho"),
+            (_, Some(e), true) => (e, "eps"),
+            _ => {
+                return Err(at.error(
+                    &raw.class.family,
+                    if first_order {
+                        "the first-order family needs a grid eps = [...]"
+                    } else {
+                        "the feasibility family needs a grid rho = [...]"
+                    },
+                ))
+            }
+        };
+        if grid.get_ref().is_empty() {
+            return Err(at.error(grid, format!("the grid of accuracies {grid_name} is empty")));
         }
-        let mut rhos = Vec::new();
-        for r in raw.class.rho.get_ref() {
+        let mut accuracies = Vec::new();
+        let probe = |value: f64| -> Result<(), Error> {
+            match &family {
+                Family::Feasibility { promise } => {
+                    FeasibilityClass::new(1, half_width, value, *promise).map(|_| ())
+                }
+                Family::FirstOrder { lipschitz, norm } => {
+                    FirstOrderClass::new(1, half_width, value, *lipschitz, *norm).map(|_| ())
+                }
+            }
+        };
+        for r in grid.get_ref() {
             let value = *r.get_ref();
-            FeasibilityClass::new(1, half_width, value, promise)
-                .map_err(|e| at.error(r, format!("rho = {value}: {e}")))?;
-            rhos.push(value);
+            probe(value).map_err(|e| at.error(r, format!("{grid_name} = {value}: {e}")))?;
+            accuracies.push(value);
         }
-        rhos.sort_by(|a, b| b.total_cmp(a));
-        rhos.dedup();
+        accuracies.sort_by(|a, b| b.total_cmp(a));
+        accuracies.dedup();
         let adversary = raw.adversary.name.get_ref().clone();
         if !ADVERSARIES.iter().any(|a| a.name == adversary) {
             return Err(at.error(
@@ -264,8 +385,8 @@ impl Scenario {
                 ));
             }
             let any_dim = dims.iter().any(|&d| {
-                FeasibilityClass::new(d, half_width, rhos[0], promise)
-                    .map(|c| method::supports(name, &Class::Feasibility(c)).is_ok())
+                class_for(&family, d, half_width, accuracies[0])
+                    .map(|c| method::supports(name, &c).is_ok())
                     .unwrap_or(false)
             });
             if !any_dim {
@@ -300,9 +421,9 @@ impl Scenario {
                 format!("budget {budget} must be at least 1"),
             ));
         }
-        let (mut chart_dim, mut chart_rho) = (
+        let (mut chart_dim, mut chart_accuracy) = (
             *dims.last().expect("non-empty"),
-            *rhos.last().expect("non-empty"),
+            *accuracies.last().expect("non-empty"),
         );
         if let Some(charts) = &raw.charts {
             if let Some(d) = &charts.dim {
@@ -315,15 +436,24 @@ impl Scenario {
                 }
                 chart_dim = value as usize;
             }
-            if let Some(r) = &charts.rho {
+            for (key, spanned) in [("rho", &charts.rho), ("eps", &charts.eps)] {
+                let Some(r) = spanned else { continue };
                 let value = *r.get_ref();
-                if !rhos.contains(&value) {
+                if key != grid_name {
                     return Err(at.error(
                         r,
-                        format!("charts.rho = {value} is not in the grid of accuracies"),
+                        format!(
+                            "charts.{key} does not belong to this family (use charts.{grid_name})"
+                        ),
                     ));
                 }
-                chart_rho = value;
+                if !accuracies.contains(&value) {
+                    return Err(at.error(
+                        r,
+                        format!("charts.{key} = {value} is not in the grid of accuracies"),
+                    ));
+                }
+                chart_accuracy = value;
             }
         }
         Ok(Scenario {
@@ -331,32 +461,32 @@ impl Scenario {
             description: raw.description,
             dims,
             half_width,
-            rhos,
-            promise,
+            accuracies,
+            family,
             adversary,
             methods,
             seeds,
             budget: budget as u64,
             transcripts: raw.play.transcripts,
             chart_dim,
-            chart_rho,
+            chart_accuracy,
             source_text: text.to_string(),
         })
     }
 
-    /// Every game in canonical order: d ascending, then rho descending (R/rho
-    /// ascending), then methods in file order, then seeds in file order (deterministic
-    /// methods play the first seed only). Pairs a method does not support are left out.
+    /// Every game in canonical order: d ascending, then accuracy descending (R/rho or
+    /// L R/eps ascending), then methods in file order, then seeds in file order
+    /// (deterministic methods play the first seed only). Pairs a method does not support
+    /// are left out.
     pub fn games(&self) -> Vec<GridGame> {
         let mut games = Vec::new();
         for &d in &self.dims {
-            for &rho in &self.rhos {
-                let Ok(class) = FeasibilityClass::new(d, self.half_width, rho, self.promise) else {
+            for &accuracy in &self.accuracies {
+                let Ok(class) = self.class_at(d, accuracy) else {
                     continue;
                 };
-                let any = Class::Feasibility(class.clone());
                 for name in &self.methods {
-                    if method::supports(name, &any).is_err() {
+                    if method::supports(name, &class).is_err() {
                         continue;
                     }
                     let deterministic = METHODS

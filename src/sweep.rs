@@ -33,21 +33,28 @@ use crate::scenario::{GridGame, Scenario};
 
 /// The columns of `games.csv`, in order. Timing columns (`wall_time_ms`) are the only
 /// ones that differ between two runs of the same sweep.
+///
+/// `accuracy` is rho (feasibility) or eps (first-order); `ratio` is R/rho or L R/eps;
+/// `lipschitz` and `certified_uncertainty` are empty for feasibility classes, `promise`
+/// for first-order ones; bound columns are empty where the class has no proven number.
 pub const COLUMNS: &[&str] = &[
     "game",
     "scenario",
+    "family",
     "adversary",
     "method",
     "seed",
     "dim",
     "half_width",
-    "rho",
+    "accuracy",
     "ratio",
+    "lipschitz",
     "promise",
     "budget",
     "queries_used",
     "censored",
     "certified_lower_bound",
+    "certified_uncertainty",
     "outcome",
     "verified",
     "lower_bound",
@@ -392,7 +399,7 @@ fn play_row(
     transcripts: Option<&Path>,
 ) -> Result<(String, bool), Error> {
     let spec = GameSpec {
-        class: Class::Feasibility(game.class.clone()),
+        class: game.class.clone(),
         adversary: scenario.adversary.clone(),
         method: game.method.clone(),
         seed: game.seed,
@@ -400,40 +407,42 @@ fn play_row(
         transcript: transcripts.map(|t| t.join(format!("game-{}.jsonl", game.index))),
     };
     let report = runner::run(&spec)?;
-    let class = &game.class;
     let censored = matches!(report.record.ending, Ending::BudgetExhausted);
-    let (lower, outcome, verified) = match &report.verdict {
+    let (lower, uncertainty, outcome, verified) = match &report.verdict {
         Ok(v) => (
             v.certified_lower_bound()
                 .map_or(String::new(), |b| b.to_string()),
+            v.certified_uncertainty
+                .map_or(String::new(), |u| u.to_string()),
             outcome_name(&v.outcome).to_string(),
             "yes",
         ),
-        Err(e) => (String::new(), format!("rejected: {e}"), "no"),
+        Err(e) => (String::new(), String::new(), format!("rejected: {e}"), "no"),
     };
+    let facts = ClassFacts::of(&game.class);
     let fields: Vec<String> = vec![
         game.index.to_string(),
         scenario.name.clone(),
+        facts.family.into(),
         scenario.adversary.clone(),
         game.method.clone(),
         game.seed.to_string(),
-        class.dim.to_string(),
-        class.half_width.to_string(),
-        class.rho.to_string(),
-        (class.half_width / class.rho).to_string(),
-        match class.promise {
-            Promise::MayBeEmpty => "may-be-empty".into(),
-            Promise::Nonempty => "nonempty".into(),
-        },
+        facts.dim.to_string(),
+        facts.half_width.to_string(),
+        facts.accuracy.to_string(),
+        facts.ratio.to_string(),
+        facts.lipschitz.map_or(String::new(), |l| l.to_string()),
+        facts.promise.unwrap_or_default().into(),
         scenario.budget.to_string(),
         report.record.queries_used.to_string(),
         censored.to_string(),
         lower,
+        uncertainty,
         outcome,
         verified.into(),
-        halving_lower_bound(class).to_string(),
-        centre_of_gravity_upper_bound(class).to_string(),
-        ellipsoid_upper_bound(class).to_string(),
+        opt(facts.lower_bound),
+        opt(facts.upper_centre_of_gravity),
+        opt(facts.upper_ellipsoid),
         format!("{:.3}", report.wall_time.as_secs_f64() * 1e3),
     ];
     let mut row = fields
@@ -443,6 +452,84 @@ fn play_row(
         .join(",");
     row.push('\n');
     Ok((row, report.verdict.is_ok()))
+}
+
+fn opt(value: Option<u64>) -> String {
+    value.map_or(String::new(), |v| v.to_string())
+}
+
+/// The per-class numbers a games.csv row records.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ClassFacts {
+    /// "feasibility" or "first-order".
+    pub family: &'static str,
+    /// Dimension d.
+    pub dim: usize,
+    /// Half-width R.
+    pub half_width: f64,
+    /// rho or eps.
+    pub accuracy: f64,
+    /// R/rho or L R/eps.
+    pub ratio: f64,
+    /// L (first-order).
+    pub lipschitz: Option<f64>,
+    /// The promise (feasibility).
+    pub promise: Option<&'static str>,
+    /// The proven lower bound, where the class has one with a constant.
+    pub lower_bound: Option<u64>,
+    /// The centre-of-gravity upper bound.
+    pub upper_centre_of_gravity: Option<u64>,
+    /// The ellipsoid upper bound.
+    pub upper_ellipsoid: Option<u64>,
+}
+
+impl ClassFacts {
+    /// The facts of a class.
+    pub fn of(class: &Class) -> ClassFacts {
+        match class {
+            Class::Feasibility(c) => ClassFacts {
+                family: "feasibility",
+                dim: c.dim,
+                half_width: c.half_width,
+                accuracy: c.rho,
+                ratio: c.half_width / c.rho,
+                lipschitz: None,
+                promise: Some(match c.promise {
+                    Promise::MayBeEmpty => "may-be-empty",
+                    Promise::Nonempty => "nonempty",
+                }),
+                lower_bound: Some(halving_lower_bound(c)),
+                upper_centre_of_gravity: Some(centre_of_gravity_upper_bound(c)),
+                upper_ellipsoid: Some(ellipsoid_upper_bound(c)),
+            },
+            Class::FirstOrder(c) => ClassFacts {
+                family: "first-order",
+                dim: c.dim,
+                half_width: c.half_width,
+                accuracy: c.eps,
+                ratio: c.lipschitz * c.half_width / c.eps,
+                lipschitz: Some(c.lipschitz),
+                promise: None,
+                lower_bound: None,
+                upper_centre_of_gravity: Some(
+                    crate::bounds::first_order_centre_of_gravity_upper_bound(c),
+                ),
+                upper_ellipsoid: None,
+            },
+            other => ClassFacts {
+                family: "other",
+                dim: other.query_dim(),
+                half_width: f64::NAN,
+                accuracy: f64::NAN,
+                ratio: f64::NAN,
+                lipschitz: None,
+                promise: None,
+                lower_bound: None,
+                upper_centre_of_gravity: None,
+                upper_ellipsoid: None,
+            },
+        }
+    }
 }
 
 /// A short stable name for an outcome (CSV and charts).

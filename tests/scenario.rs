@@ -8,8 +8,8 @@
 use std::path::Path;
 use std::process::Command;
 
-use naysayer::class::Promise;
-use naysayer::scenario::Scenario;
+use naysayer::class::{Class, Promise};
+use naysayer::scenario::{Family, Scenario};
 use naysayer::Error;
 use tempfile::TempDir;
 
@@ -164,7 +164,7 @@ fn base_scenario_is_valid() {
     assert_eq!(scenario.name, "bad");
     assert_eq!(scenario.dims, vec![1, 2, 4]);
     assert_eq!(scenario.chart_dim, 4);
-    assert_eq!(scenario.chart_rho, 1e-3);
+    assert_eq!(scenario.chart_accuracy, 1e-3);
 }
 
 #[test]
@@ -268,9 +268,14 @@ fn valid_scenario_sorts_grids_and_fills_defaults() {
     assert_eq!(s.description, "Grids given out of order.");
     // Dimensions ascending and distinct, rho descending and distinct (src/scenario.rs).
     assert_eq!(s.dims, vec![1, 2]);
-    assert_eq!(s.rhos, vec![1e-1, 1e-2, 1e-3]);
+    assert_eq!(s.accuracies, vec![1e-1, 1e-2, 1e-3]);
     assert_eq!(s.half_width, 2.0);
-    assert_eq!(s.promise, Promise::Nonempty);
+    assert_eq!(
+        s.family,
+        Family::Feasibility {
+            promise: Promise::Nonempty
+        }
+    );
     assert_eq!(s.adversary, "halving");
     assert_eq!(s.methods, vec!["random", "midpoint", "ellipsoid"]);
     assert_eq!(s.seeds, vec![7, 3]);
@@ -278,7 +283,7 @@ fn valid_scenario_sorts_grids_and_fills_defaults() {
     assert!(!s.transcripts);
     // Without [charts]: the largest d and the smallest rho.
     assert_eq!(s.chart_dim, 2);
-    assert_eq!(s.chart_rho, 1e-3);
+    assert_eq!(s.chart_accuracy, 1e-3);
     assert_eq!(s.source_text, UNSORTED);
 }
 
@@ -286,7 +291,12 @@ fn valid_scenario_sorts_grids_and_fills_defaults() {
 fn promise_defaults_to_may_be_empty() {
     let text = UNSORTED.replace("promise = \"nonempty\"\n", "");
     let s = Scenario::parse(&text, Path::new("order.toml")).unwrap();
-    assert_eq!(s.promise, Promise::MayBeEmpty);
+    assert_eq!(
+        s.family,
+        Family::Feasibility {
+            promise: Promise::MayBeEmpty
+        }
+    );
 }
 
 #[test]
@@ -314,12 +324,20 @@ fn games_are_in_canonical_order_and_deterministic_methods_play_the_first_seed() 
     let games = s.games();
     let got: Vec<(usize, f64, &str, u64)> = games
         .iter()
-        .map(|g| (g.class.dim, g.class.rho, g.method.as_str(), g.seed))
+        .map(|g| {
+            let Class::Feasibility(c) = &g.class else {
+                panic!("feasibility")
+            };
+            (c.dim, c.rho, g.method.as_str(), g.seed)
+        })
         .collect();
     assert_eq!(got, expected);
     for (i, g) in games.iter().enumerate() {
         assert_eq!(g.index, i as u64);
-        assert_eq!(g.class.half_width, 2.0);
-        assert_eq!(g.class.promise, Promise::Nonempty);
+        let Class::Feasibility(c) = &g.class else {
+            panic!("feasibility")
+        };
+        assert_eq!(c.half_width, 2.0);
+        assert_eq!(c.promise, Promise::Nonempty);
     }
 }

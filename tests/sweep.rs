@@ -176,14 +176,17 @@ fn assert_canonical(csv: &Csv, scenario_text: &str) {
     assert_eq!(csv.rows.len(), games.len(), "one row per game");
     let (dim, rho, method, seed) = (
         column("dim"),
-        column("rho"),
+        column("accuracy"),
         column("method"),
         column("seed"),
     );
     for (row, game) in csv.rows.iter().zip(&games) {
         assert_eq!(row[0], game.index.to_string());
-        assert_eq!(row[dim], game.class.dim.to_string());
-        assert_eq!(row[rho].parse::<f64>().unwrap(), game.class.rho);
+        let naysayer::class::Class::Feasibility(class) = &game.class else {
+            panic!("feasibility scenario")
+        };
+        assert_eq!(row[dim], class.dim.to_string());
+        assert_eq!(row[rho].parse::<f64>().unwrap(), class.rho);
         assert_eq!(row[method], game.method);
         assert_eq!(row[seed], game.seed.to_string());
     }

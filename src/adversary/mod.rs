@@ -6,7 +6,11 @@
 //! [`Adversary`], document its construction and the theorem (or the words "ours,
 //! certified per run") it relies on, and register it in [`ADVERSARIES`] and [`build`].
 
+pub mod corner;
 pub mod halving;
+pub mod lattice_half;
+pub mod mixed_corner;
+pub mod orthant;
 
 use serde::{Deserialize, Serialize};
 
@@ -24,13 +28,20 @@ pub use halving::Halving;
 pub enum Undecided {
     /// log2 of the volume of the alive region.
     Log2Volume(f64),
+    /// The number of alive lattice points (lattice classes, THEORY.md 4).
+    AlivePoints(f64),
+    /// log2 of the mixed-integer measure: the sum over integer fibres of the alive
+    /// fibre volume (THEORY.md 4).
+    Log2MixedMeasure(f64),
 }
 
 impl Undecided {
     /// The measure as one number (for charts).
     pub fn value(&self) -> f64 {
         match self {
-            Undecided::Log2Volume(v) => *v,
+            Undecided::Log2Volume(v)
+            | Undecided::AlivePoints(v)
+            | Undecided::Log2MixedMeasure(v) => *v,
         }
     }
 }
@@ -64,16 +75,47 @@ pub struct AdversaryInfo {
 }
 
 /// Every registered adversary.
-pub const ADVERSARIES: &[AdversaryInfo] = &[AdversaryInfo {
-    name: "halving",
-    description: "separation, box: cuts the least-cut axis through the query, keeping the \
-                  larger half (forces d*k + 1 queries; theorem, THEORY.md 1.1)",
-}];
+pub const ADVERSARIES: &[AdversaryInfo] = &[
+    AdversaryInfo {
+        name: "halving",
+        description: "separation, box: cuts the least-cut axis through the query, keeping \
+                      the larger half (forces d*k + 1 queries; theorem, THEORY.md 1.1)",
+    },
+    AdversaryInfo {
+        name: "orthant",
+        description: "first-order, box: nested orthant levels revealing one sign per query \
+                      (ours, THEORY.md 2.3; every run certified by the universal certificate)",
+    },
+    AdversaryInfo {
+        name: "lattice-half",
+        description: "integer, box: cut through the query keeping the most alive lattice \
+                      points it finds, at least (|S| - 1)/2 (forces floor(log2 |S|) + 1; \
+                      THEORY.md 4)",
+    },
+    AdversaryInfo {
+        name: "corner",
+        description: "integer, {0,1}^n: cuts each queried vertex off alone (forces 2^n; ours, \
+                      THEORY.md 4, every run certified)",
+    },
+    AdversaryInfo {
+        name: "mixed-corner",
+        description: "mixed-integer, {0,1}^n x [-R,R]^d: box halving per vertex fibre with \
+                      exact lifted cuts (forces 2^n (d k + 1); ours, THEORY.md 4, every run \
+                      certified)",
+    },
+];
 
 /// Builds the adversary `name` for `class`.
 pub fn build(name: &str, class: &Class) -> Result<Box<dyn Adversary + Send>, Error> {
     match (name, class) {
         ("halving", Class::Feasibility(c)) => Ok(Box::new(Halving::new(c))),
+        ("orthant", Class::FirstOrder(c)) => Ok(Box::new(orthant::Orthant::new(
+            c,
+            orthant::OrthantSettings::default(),
+        )?)),
+        ("lattice-half", Class::Lattice(c)) => Ok(Box::new(lattice_half::LatticeHalf::new(c)?)),
+        ("corner", Class::Lattice(c)) => Ok(Box::new(corner::Corner::new(c)?)),
+        ("mixed-corner", Class::Lattice(c)) => Ok(Box::new(mixed_corner::MixedCorner::new(c)?)),
         _ if ADVERSARIES.iter().any(|a| a.name == name) => Err(Error::Unsupported {
             what: format!("adversary {name:?}"),
             reason: "wrong class".into(),

@@ -156,6 +156,12 @@ impl FeasibilityVerifier {
         let d = self.class.dim;
         let x: Vec<BigRational> = query.point.iter().map(|v| f64_to_rational(*v)).collect();
         match &query.answer {
+            Answer::FirstOrder(_) => {
+                return Err(error(format!(
+                    "answer {}: a first-order answer in a separation-oracle transcript",
+                    query.index
+                )))
+            }
             Answer::Inside => {}
             Answer::Cut(cut) => {
                 if !cut.normal.is_well_formed(d) {
@@ -182,6 +188,7 @@ impl FeasibilityVerifier {
                 (Answer::Inside, Some(ball)) => in_ball(ball, &x),
                 (Answer::Cut(_), None) => true,
                 (Answer::Cut(cut), Some(ball)) => ball_strictly_inside(ball, cut),
+                (Answer::FirstOrder(_), _) => false,
             };
             if !consistent {
                 let what = match &query.answer {
@@ -245,6 +252,8 @@ fn check_membership(
                 Ok(None)
             }
         }
+        Witness::Function(_) => Err("a function is not a feasibility instance".into()),
+        Witness::LatticeHull(_) => Err("a lattice hull is not a feasibility instance".into()),
         Witness::Ball { center, radius } => {
             if center.len() != class.dim {
                 return Err(format!(

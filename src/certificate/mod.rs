@@ -15,6 +15,9 @@
 //! output is wrong for one witness. The certified lower bound is then T* + 1 queries.
 
 pub mod feasibility;
+pub mod first_order;
+pub mod lattice;
+pub mod universal;
 
 use serde::{Deserialize, Serialize};
 
@@ -66,6 +69,9 @@ pub struct Verdict {
     pub certified_prefix: Option<u64>,
     /// How the game ended, judged by the verified witnesses.
     pub outcome: Outcome,
+    /// First-order classes: the certified uncertainty eps_cert of THEORY.md 2.2, a lower
+    /// estimate of the error no method can rule out from the certified prefix of answers.
+    pub certified_uncertainty: Option<f64>,
 }
 
 impl Verdict {
@@ -190,6 +196,11 @@ pub trait ClassVerifier {
     fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error>;
     /// Checks the certificate's claim (if any) and judges the ending.
     fn finish(&mut self, final_line: u64) -> Result<Outcome, Error>;
+    /// For accuracy classes: the largest accuracy the verified witnesses certify as
+    /// unreachable from these answers (THEORY.md 2.2); `None` elsewhere.
+    fn certified_uncertainty(&self) -> Option<f64> {
+        None
+    }
 }
 
 /// Builds the verifier for the header's class.
@@ -204,6 +215,31 @@ fn class_verifier(
             let class = crate::class::FeasibilityClass::new(c.dim, c.half_width, c.rho, c.promise)
                 .map_err(|e| header_error(e.to_string()))?;
             Ok(Box::new(feasibility::FeasibilityVerifier::new(
+                class,
+                final_record,
+                final_line,
+            )?))
+        }
+        Class::FirstOrder(c) => {
+            let class =
+                crate::class::FirstOrderClass::new(c.dim, c.half_width, c.eps, c.lipschitz, c.norm)
+                    .map_err(|e| header_error(e.to_string()))?;
+            Ok(Box::new(first_order::FirstOrderVerifier::new(
+                class,
+                final_record,
+                final_line,
+            )?))
+        }
+        Class::Lattice(c) => {
+            let class = crate::class::LatticeClass::new(
+                c.lower.clone(),
+                c.upper.clone(),
+                c.cont_dim,
+                c.half_width,
+                c.rho,
+            )
+            .map_err(|e| header_error(e.to_string()))?;
+            Ok(Box::new(lattice::LatticeVerifier::new(
                 class,
                 final_record,
                 final_line,
@@ -348,6 +384,7 @@ impl Checker {
             certified_prefix: self.final_record.certificate.as_ref().map(|w| w.prefix),
             ending: ending.clone(),
             outcome,
+            certified_uncertainty: self.inner.certified_uncertainty(),
             header: self.header,
         })
     }

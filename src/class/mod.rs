@@ -4,9 +4,15 @@
 //! accuracy. Validation happens once, at construction; every later stage may rely on
 //! the invariants documented here.
 
+pub mod first_order;
+pub mod lattice;
+
 use serde::{Deserialize, Serialize};
 
 use crate::error::Error;
+
+pub use first_order::{FirstOrderClass, LipschitzNorm};
+pub use lattice::LatticeClass;
 
 /// Largest half-width accepted, so that sums and differences of box coordinates and
 /// doubled radii stay finite in `f64`.
@@ -102,6 +108,10 @@ impl FeasibilityClass {
 pub enum Class {
     /// Separation-oracle feasibility over a box.
     Feasibility(FeasibilityClass),
+    /// First-order (value and subgradient) minimisation over a box.
+    FirstOrder(FirstOrderClass),
+    /// Separation-oracle feasibility over Z^n x R^d (integer and mixed-integer).
+    Lattice(LatticeClass),
 }
 
 impl Class {
@@ -109,6 +119,8 @@ impl Class {
     pub fn query_dim(&self) -> usize {
         match self {
             Class::Feasibility(c) => c.dim,
+            Class::FirstOrder(c) => c.dim,
+            Class::Lattice(c) => c.query_dim(),
         }
     }
 }

@@ -24,6 +24,5 @@ pub fn run(args: &ChartArgs) -> Result<u8, Error> {
 
 /// Draws every chart of a results folder; returns the PNG paths.
 pub fn draw_all(folder: &Path) -> Result<Vec<PathBuf>, Error> {
-    let _ = folder;
-    Ok(Vec::new())
+    crate::gallery::draw_all(folder)
 }

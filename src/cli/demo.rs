@@ -95,7 +95,7 @@ fn print_table(csv: &Path, dim: usize, rho: f64) -> Result<(), Error> {
         let f = split_csv_line(line);
         if f.len() != COLUMNS.len()
             || f[col("dim")] != dim.to_string()
-            || f[col("rho")].parse::<f64>().ok() != Some(rho)
+            || f[col("accuracy")].parse::<f64>().ok() != Some(rho)
         {
             continue;
         }

@@ -10,7 +10,9 @@ pub mod bounds;
 pub mod chart;
 pub mod check;
 pub mod demo;
+pub mod hunt;
 pub mod list;
+pub mod minimax;
 pub mod play;
 pub mod sweep;
 
@@ -61,6 +63,56 @@ pub enum Command {
     Merge(sweep::MergeArgs),
     /// Draw the charts of a sweep's results folder.
     Chart(chart::ChartArgs),
+    /// Exact minimax value of a small integer class over a finite query set (THEORY.md 6).
+    Minimax(minimax::MinimaxArgs),
+    /// Search the answers that make one deterministic method slowest; verify the worst
+    /// game found (or, with --replay FILE, replay a transcript's answers to its method).
+    Hunt(hunt::HuntArgs),
+}
+
+/// Which family of classes a command plays.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum, Default)]
+pub enum Family {
+    /// Separation-oracle feasibility (THEORY.md 1): --rho, --nonempty.
+    #[default]
+    Feasibility,
+    /// First-order minimisation (THEORY.md 2): --eps, --lipschitz, --norm.
+    FirstOrder,
+    /// Integer and mixed-integer feasibility (THEORY.md 4): --int-dim, --int-lower,
+    /// --int-upper, --cont-dim, with --half-width and --rho for the continuous part.
+    Lattice,
+}
+
+/// First-order class parameters, as raw arguments.
+#[derive(Debug, Clone, Args)]
+pub struct FirstOrderArgs {
+    /// Additive accuracy eps (first-order classes).
+    #[arg(long, default_value_t = 1e-4)]
+    pub eps: f64,
+    /// Lipschitz constant L (first-order classes).
+    #[arg(long, default_value_t = 1.0)]
+    pub lipschitz: f64,
+    /// The norm L is measured in: l1, l2 or linf (first-order classes).
+    #[arg(long, default_value = "l2", value_parser = ["l1", "l2", "linf"])]
+    pub norm: String,
+}
+
+impl FirstOrderArgs {
+    /// Validates into a first-order class with the dimension and box of `shape`.
+    pub fn to_class(&self, shape: &ClassArgs) -> Result<crate::class::FirstOrderClass, Error> {
+        let norm = match self.norm.as_str() {
+            "l1" => crate::class::LipschitzNorm::L1,
+            "linf" => crate::class::LipschitzNorm::Linf,
+            _ => crate::class::LipschitzNorm::L2,
+        };
+        crate::class::FirstOrderClass::new(
+            shape.dim,
+            shape.half_width,
+            self.eps,
+            self.lipschitz,
+            norm,
+        )
+    }
 }
 
 /// The separation feasibility class, as raw arguments.
@@ -103,6 +155,8 @@ pub fn run(cli: Cli) -> Result<u8, Error> {
         Command::Sweep(args) => sweep::run(&args),
         Command::Merge(args) => sweep::run_merge(&args),
         Command::Chart(args) => chart::run(&args),
+        Command::Minimax(args) => minimax::run(&args),
+        Command::Hunt(args) => hunt::run(&args),
     }
 }
 
@@ -135,6 +189,16 @@ pub fn describe_class(class: &Class) -> String {
                 Promise::Nonempty => "K promised to contain a rho-ball",
             }
         ),
+        Class::FirstOrder(c) => format!(
+            "first-order, convex {L}-Lipschitz ({norm:?} norm) f on [-{R}, {R}]^{d}, \
+             accuracy eps = {eps}",
+            L = c.lipschitz,
+            norm = c.norm,
+            R = c.half_width,
+            d = c.dim,
+            eps = c.eps
+        ),
+        Class::Lattice(c) => c.describe(),
     }
 }
 

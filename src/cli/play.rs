@@ -5,7 +5,10 @@ use clap::Args;
 use crate::bounds::halving_lower_bound;
 use crate::certificate::{Outcome, Verdict};
 use crate::class::Class;
-use crate::cli::{describe_class, ClassArgs, PathArg, EXIT_METHOD_FAILED, EXIT_OK, EXIT_REJECTED};
+use crate::cli::{
+    describe_class, ClassArgs, Family, FirstOrderArgs, PathArg, EXIT_METHOD_FAILED, EXIT_OK,
+    EXIT_REJECTED,
+};
 use crate::error::Error;
 use crate::game::Ending;
 use crate::runner::{self, GameSpec, Report};
@@ -16,12 +19,21 @@ pub struct PlayArgs {
     /// Built-in method (see `naysayer list`).
     #[arg(short, long, default_value = "midpoint")]
     pub method: String,
-    /// Adversary (see `naysayer list`).
-    #[arg(short, long, default_value = "halving")]
-    pub adversary: String,
-    /// The class.
+    /// Adversary (see `naysayer list`; default: halving, or orthant for first-order).
+    #[arg(short, long)]
+    pub adversary: Option<String>,
+    /// The family of classes.
+    #[arg(long = "class", value_enum, default_value_t = Family::Feasibility)]
+    pub family: Family,
+    /// The class's dimension, box and separation accuracy.
     #[command(flatten)]
     pub class: ClassArgs,
+    /// First-order parameters.
+    #[command(flatten)]
+    pub first_order: FirstOrderArgs,
+    /// Lattice class parameters (`--class lattice`).
+    #[command(flatten)]
+    pub lattice: crate::cli::minimax::LatticeArgs,
     /// Most queries the method may ask.
     #[arg(long, default_value_t = 1_000_000)]
     pub budget: u64,
@@ -35,10 +47,28 @@ pub struct PlayArgs {
 
 /// Runs `play`.
 pub fn run(args: &PlayArgs) -> Result<u8, Error> {
-    let class = Class::Feasibility(args.class.to_class()?);
+    let (class, default_adversary) = match args.family {
+        Family::Feasibility => (Class::Feasibility(args.class.to_class()?), "halving"),
+        Family::FirstOrder => (
+            Class::FirstOrder(args.first_order.to_class(&args.class)?),
+            "orthant",
+        ),
+        Family::Lattice => {
+            let class = args.lattice.to_class(&args.class)?;
+            let adversary = if class.cont_dim == 0 {
+                "corner"
+            } else {
+                "mixed-corner"
+            };
+            (Class::Lattice(class), adversary)
+        }
+    };
     let spec = GameSpec {
         class,
-        adversary: args.adversary.clone(),
+        adversary: args
+            .adversary
+            .clone()
+            .unwrap_or_else(|| default_adversary.to_string()),
         method: args.method.clone(),
         seed: args.seed,
         budget: args.budget,
@@ -92,7 +122,6 @@ pub fn queries_used_text(queries_used: u64, censored: bool) -> String {
 
 fn summary(spec: &GameSpec, report: &Report) -> String {
     let mut out = String::new();
-    let Class::Feasibility(class) = &spec.class;
     out.push_str(&format!(
         "class                  {}\n",
         describe_class(&spec.class)
@@ -117,16 +146,24 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
                 "outcome                {}\n",
                 describe_outcome(&verdict.outcome, &report.record.ending)
             ));
+            if let Some(eps_cert) = verdict.certified_uncertainty {
+                out.push_str(&format!(
+                    "certified uncertainty  {eps_cert:e} (no method can guarantee a smaller \
+                     error from the certified answers; a lower estimate, THEORY.md 2.2)\n"
+                ));
+            }
         }
         Err(_) => {
             out.push_str("certified lower bound  none (certificate rejected)\n");
         }
     }
-    out.push_str(&format!(
-        "theory                 every method needs at least {} queries on this class \
-         (theorem: box halving, THEORY.md 1.1)\n",
-        halving_lower_bound(class)
-    ));
+    if let Class::Feasibility(class) = &spec.class {
+        out.push_str(&format!(
+            "theory                 every method needs at least {} queries on this class \
+             (theorem: box halving, THEORY.md 1.1)\n",
+            halving_lower_bound(class)
+        ));
+    }
     match &report.verdict {
         Ok(_) => out.push_str("verifier               certificate valid (exact rational check)\n"),
         Err(e) => out.push_str(&format!("verifier               REJECTED: {e}\n")),

@@ -5,6 +5,7 @@
 
 pub mod boxes;
 pub mod hit_and_run;
+pub mod lp;
 pub mod polygon;
 pub mod polytope;
 

@@ -4,12 +4,18 @@
 //! ([`crate::certificate`]) checks them against the transcript without trusting the
 //! adversary.
 
+pub mod function;
+pub mod lattice;
+
 use num_rational::BigRational;
 use serde::{Deserialize, Serialize};
 
 use crate::exact::{f64_to_rational, Exact};
 
-/// An explicit feasibility instance.
+pub use function::{AffinePiece, FunctionWitness};
+pub use lattice::{FibreBall, LatticeHull};
+
+/// An explicit instance: a feasibility set or a function.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "kind", rename_all = "kebab-case")]
 #[non_exhaustive]
@@ -23,13 +29,18 @@ pub enum Witness {
         /// The radius (the class's rho).
         radius: f64,
     },
+    /// A convex function: max of affine pieces and an l_inf cone (first-order classes).
+    Function(FunctionWitness),
+    /// A mixed-integer hull conv(F cup {v} x B(c, rho)) (lattice classes, THEORY.md 4).
+    LatticeHull(LatticeHull),
 }
 
 impl Witness {
     /// Exact membership: is x in K? (For a ball: ||x - c||_2^2 <= r^2, decided exactly.)
     pub fn contains(&self, x: &[f64]) -> bool {
         match self {
-            Witness::Empty => false,
+            Witness::Empty | Witness::Function(_) => false,
+            Witness::LatticeHull(hull) => hull.contains(x),
             Witness::Ball { center, radius } => {
                 let r = f64_to_rational(*radius);
                 let dist2: BigRational = center
@@ -50,6 +61,8 @@ impl Witness {
         match self {
             Witness::Empty => "empty set",
             Witness::Ball { .. } => "ball",
+            Witness::Function(_) => "function",
+            Witness::LatticeHull(_) => "lattice hull",
         }
     }
 }

@@ -33,7 +33,7 @@ use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::polytope::{dot, BallTest, Polytope};
 use crate::method::{blame, give_up, unchanged, Method};
-use crate::oracle::{Answer, Output, Step};
+use crate::oracle::{Answer, Output, Separation, Step};
 
 const NAME: &str = "analytic-center";
 
@@ -221,6 +221,10 @@ impl AnalyticCenter {
 }
 
 impl Method for AnalyticCenter {
+    fn fork(&self) -> Option<Box<dyn Method + Send>> {
+        Some(Box::new(self.clone()))
+    }
+
     fn name(&self) -> &str {
         NAME
     }
@@ -272,10 +276,10 @@ impl Method for AnalyticCenter {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
-        match answer {
-            Answer::Inside => self.found = Some(query.to_vec()),
-            Answer::Cut(cut) => {
-                if !self.polytope.add_cut(cut).map_err(|e| blame(e, NAME))? {
+        match answer.to_separation(query) {
+            Separation::Inside => self.found = Some(query.to_vec()),
+            Separation::Cut(cut) => {
+                if !self.polytope.add_cut(&cut).map_err(|e| blame(e, NAME))? {
                     return Err(unchanged(NAME));
                 }
             }

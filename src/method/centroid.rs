@@ -26,7 +26,7 @@ use crate::error::Error;
 use crate::geometry::polygon::Polygon;
 use crate::geometry::polytope::{BallTest, Halfspace, Polytope};
 use crate::method::{blame, give_up, unchanged, Method};
-use crate::oracle::{Answer, Output, Step};
+use crate::oracle::{Answer, Output, Separation, Step};
 
 const NAME: &str = "centroid";
 
@@ -77,6 +77,10 @@ impl Centroid {
 }
 
 impl Method for Centroid {
+    fn fork(&self) -> Option<Box<dyn Method + Send>> {
+        Some(Box::new(self.clone()))
+    }
+
     fn name(&self) -> &str {
         NAME
     }
@@ -126,10 +130,10 @@ impl Method for Centroid {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
-        match answer {
-            Answer::Inside => self.found = Some(query.to_vec()),
-            Answer::Cut(cut) => {
-                let halfspace = self.polytope.halfspace(cut).map_err(|e| blame(e, NAME))?;
+        match answer.to_separation(query) {
+            Separation::Inside => self.found = Some(query.to_vec()),
+            Separation::Cut(cut) => {
+                let halfspace = self.polytope.halfspace(&cut).map_err(|e| blame(e, NAME))?;
                 if let Some(polygon) = &mut self.polygon {
                     match &halfspace {
                         Halfspace::Infeasible => *polygon = Polygon::from_vertices(Vec::new()),

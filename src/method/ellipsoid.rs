@@ -22,7 +22,7 @@ use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
 use crate::method::Method;
-use crate::oracle::{Answer, Normal, Output, Step};
+use crate::oracle::{Answer, Normal, Output, Separation, Step};
 
 /// Central-cut ellipsoid method; bisection when d = 1.
 #[derive(Clone, Debug)]
@@ -176,6 +176,10 @@ pub fn log_volume_ratio(d: usize) -> f64 {
 }
 
 impl Method for Ellipsoid {
+    fn fork(&self) -> Option<Box<dyn Method + Send>> {
+        Some(Box::new(self.clone()))
+    }
+
     fn name(&self) -> &str {
         "ellipsoid"
     }
@@ -201,14 +205,14 @@ impl Method for Ellipsoid {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
-        match answer {
-            Answer::Inside => {
+        match answer.to_separation(query) {
+            Separation::Inside => {
                 self.found = Some(query.to_vec());
                 Ok(())
             }
-            Answer::Cut(cut) => {
+            Separation::Cut(cut) => {
                 if let Some(interval) = &mut self.interval {
-                    interval.apply(cut);
+                    interval.apply(&cut);
                     return Ok(());
                 }
                 self.update(&cut.normal)

@@ -6,7 +6,7 @@ use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
 use crate::method::Method;
-use crate::oracle::{Answer, Output, Step};
+use crate::oracle::{Answer, Output, Separation, Step};
 
 /// Queries the centre of its box; declares "empty" once some side is at most 2 rho.
 /// An `inside` answer ends the game with that point.
@@ -46,6 +46,10 @@ impl Midpoint {
 }
 
 impl Method for Midpoint {
+    fn fork(&self) -> Option<Box<dyn Method + Send>> {
+        Some(Box::new(self.clone()))
+    }
+
     fn name(&self) -> &str {
         "midpoint"
     }
@@ -62,9 +66,9 @@ impl Method for Midpoint {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
-        match answer {
-            Answer::Inside => self.found = Some(query.to_vec()),
-            Answer::Cut(cut) => self.model.apply(cut),
+        match answer.to_separation(query) {
+            Separation::Inside => self.found = Some(query.to_vec()),
+            Separation::Cut(cut) => self.model.apply(&cut),
         }
         Ok(())
     }

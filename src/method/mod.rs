@@ -13,9 +13,14 @@
 pub mod analytic_center;
 pub mod centroid;
 pub mod ellipsoid;
+pub mod enumerate;
+pub mod fibre_bisection;
+pub mod lattice_centerpoint;
 pub mod midpoint;
+pub mod mixed_centerpoint;
 pub mod random;
 pub mod sampled_centroid;
+pub mod subgradient;
 
 #[cfg(test)]
 mod test_support;
@@ -33,6 +38,12 @@ pub trait Method {
     fn next(&mut self, query: &mut [f64]) -> Result<Step, Error>;
     /// Learn the answer to the last query.
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error>;
+    /// An independent copy of the method in its current state, so that a search
+    /// ([`crate::hunt`]) can continue one game in several ways; `None` (the default) when
+    /// the method cannot be copied, and then it is replayed from scratch instead.
+    fn fork(&self) -> Option<Box<dyn Method + Send>> {
+        None
+    }
 }
 
 /// A registered built-in method.
@@ -81,12 +92,51 @@ pub const METHODS: &[MethodInfo] = &[
                       Goffin & Vial 2002, Optim. Methods Softw. 17)",
         deterministic: true,
     },
+    MethodInfo {
+        name: "subgradient",
+        description: "first-order: projected subgradient, fixed step D/(L sqrt(N+1)), best \
+                      point (Shor 1962; Nesterov 2004 sec. 3.2.3)",
+        deterministic: true,
+    },
+    MethodInfo {
+        name: "subgradient-decaying",
+        description: "first-order: projected subgradient, step D/(L sqrt(t+1)), best point",
+        deterministic: true,
+    },
+    MethodInfo {
+        name: "enumerate",
+        description: "integer: queries the lattice points of the box in lexicographic order, \
+                      skipping excluded ones (lattice enumeration; common practice)",
+        deterministic: true,
+    },
+    MethodInfo {
+        name: "lattice-centerpoint",
+        description: "integer: deepest lattice point of the hull of its alive set (Oertel, \
+                      Wagner & Weismantel, Oper. Res. Lett. 2014)",
+        deterministic: true,
+    },
+    MethodInfo {
+        name: "fibre-bisection",
+        description: "mixed-integer: branches on the integer part, bisects each fibre \
+                      (common practice; Basu & Oertel, SIAM J. Optim. 2017)",
+        deterministic: true,
+    },
+    MethodInfo {
+        name: "mixed-centerpoint",
+        description: "mixed-integer: deepest of samples drawn fibre by fibre (sampled \
+                      centerpoint; Basu & Oertel, SIAM J. Optim. 2017)",
+        deterministic: false,
+    },
 ];
 
 /// Builds the built-in method `name` for `class`, seeded with `seed` where it is
 /// randomized.
 pub fn build(name: &str, class: &Class, seed: u64) -> Result<Box<dyn Method + Send>, Error> {
-    let Class::Feasibility(c) = class;
+    let c = match class {
+        Class::Feasibility(c) => c,
+        Class::FirstOrder(c) => return build_first_order(name, c, seed),
+        Class::Lattice(c) => return build_lattice(name, c, seed),
+    };
     match name {
         "midpoint" => Ok(Box::new(midpoint::Midpoint::new(c))),
         "ellipsoid" => Ok(Box::new(ellipsoid::Ellipsoid::new(c))),
@@ -98,9 +148,80 @@ pub fn build(name: &str, class: &Class, seed: u64) -> Result<Box<dyn Method + Se
     }
 }
 
+/// Builds a built-in method for a lattice class (THEORY.md 4).
+fn build_lattice(
+    name: &str,
+    class: &crate::class::LatticeClass,
+    seed: u64,
+) -> Result<Box<dyn Method + Send>, Error> {
+    match name {
+        "enumerate" => Ok(Box::new(enumerate::Enumerate::new(class)?)),
+        "lattice-centerpoint" => Ok(Box::new(lattice_centerpoint::LatticeCenterpoint::new(
+            class,
+        )?)),
+        "fibre-bisection" => Ok(Box::new(fibre_bisection::FibreBisection::new(class)?)),
+        "mixed-centerpoint" => Ok(Box::new(mixed_centerpoint::MixedCenterpoint::new(
+            class, seed,
+        )?)),
+        _ if METHODS.iter().any(|m| m.name == name) => Err(Error::Unsupported {
+            what: format!("method {name:?}"),
+            reason: format!("it does not play {}", class.describe()),
+        }),
+        _ => Err(Error::UnknownMethod { name: name.into() }),
+    }
+}
+
+/// Builds a built-in method for a first-order class.
+fn build_first_order(
+    name: &str,
+    class: &crate::class::FirstOrderClass,
+    seed: u64,
+) -> Result<Box<dyn Method + Send>, Error> {
+    let _ = seed;
+    match name {
+        "subgradient" => {
+            return Ok(Box::new(subgradient::Subgradient::new(
+                class,
+                subgradient::StepRule::Fixed,
+            )))
+        }
+        "subgradient-decaying" => {
+            return Ok(Box::new(subgradient::Subgradient::new(
+                class,
+                subgradient::StepRule::Decaying,
+            )))
+        }
+        _ => {}
+    }
+    if METHODS.iter().any(|m| m.name == name) {
+        return Err(Error::Unsupported {
+            what: format!("method {name:?}"),
+            reason: "it plays separation-oracle classes only".into(),
+        });
+    }
+    Err(Error::UnknownMethod { name: name.into() })
+}
+
+/// Methods that need first-order answers (value and subgradient).
+pub const FIRST_ORDER_METHODS: &[&str] = &["subgradient", "subgradient-decaying"];
+
+/// Cutting-plane methods that also play first-order classes with objective cuts.
+pub const OBJECTIVE_CUT_METHODS: &[&str] = &[];
+
 /// Whether built-in method `name` supports `class`; `Err` says why not. Only
 /// `centroid` is restricted: its exact centre of gravity exists for d <= 2 only.
 pub fn supports(name: &str, class: &Class) -> Result<(), String> {
+    let first_order_only = FIRST_ORDER_METHODS.contains(&name);
+    let objective_cut = OBJECTIVE_CUT_METHODS.contains(&name);
+    match class {
+        Class::FirstOrder(_) if !first_order_only && !objective_cut => {
+            return Err(format!("{name} plays separation-oracle classes only"))
+        }
+        Class::Feasibility(_) if first_order_only => {
+            return Err(format!("{name} needs first-order answers"))
+        }
+        _ => {}
+    }
     if name == "centroid" && class.query_dim() > 2 {
         return Err(format!(
             "centroid is exact only in d <= 2 (d = {}); use sampled-centroid",

@@ -8,7 +8,7 @@ use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
 use crate::method::Method;
-use crate::oracle::{Answer, Output, Step};
+use crate::oracle::{Answer, Output, Separation, Step};
 
 /// Uniform point of its box; "empty" once some side is at most 2 rho.
 #[derive(Clone, Debug)]
@@ -49,6 +49,10 @@ impl RandomPoint {
 }
 
 impl Method for RandomPoint {
+    fn fork(&self) -> Option<Box<dyn Method + Send>> {
+        Some(Box::new(self.clone()))
+    }
+
     fn name(&self) -> &str {
         "random"
     }
@@ -72,9 +76,9 @@ impl Method for RandomPoint {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
-        match answer {
-            Answer::Inside => self.found = Some(query.to_vec()),
-            Answer::Cut(cut) => self.model.apply(cut),
+        match answer.to_separation(query) {
+            Separation::Inside => self.found = Some(query.to_vec()),
+            Separation::Cut(cut) => self.model.apply(&cut),
         }
         Ok(())
     }

@@ -24,7 +24,7 @@ use crate::error::Error;
 use crate::geometry::hit_and_run::HitAndRun;
 use crate::geometry::polytope::{BallTest, Polytope};
 use crate::method::{blame, give_up, unchanged, Method};
-use crate::oracle::{Answer, Output, Step};
+use crate::oracle::{Answer, Output, Separation, Step};
 
 const NAME: &str = "sampled-centroid";
 
@@ -78,6 +78,10 @@ impl SampledCentroid {
 }
 
 impl Method for SampledCentroid {
+    fn fork(&self) -> Option<Box<dyn Method + Send>> {
+        Some(Box::new(self.clone()))
+    }
+
     fn name(&self) -> &str {
         NAME
     }
@@ -137,10 +141,10 @@ impl Method for SampledCentroid {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
-        match answer {
-            Answer::Inside => self.found = Some(query.to_vec()),
-            Answer::Cut(cut) => {
-                if !self.polytope.add_cut(cut).map_err(|e| blame(e, NAME))? {
+        match answer.to_separation(query) {
+            Separation::Inside => self.found = Some(query.to_vec()),
+            Separation::Cut(cut) => {
+                if !self.polytope.add_cut(&cut).map_err(|e| blame(e, NAME))? {
                     return Err(unchanged(NAME));
                 }
             }

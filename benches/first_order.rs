@@ -1,0 +1,179 @@
+//! Criterion benchmarks for first-order games (issue 5 targets in comments; figures
+//! measured on the project's 2-core machine go in DEVELOPERS.md).
+//!
+//! - `orthant_answer_d100`: one answer of the orthant adversary (THEORY.md 2.3) at
+//!   d = 100 with 20 levels open, exact arithmetic included. Target: <= 20 microseconds.
+//! - `certificate_t1000_d10`: the universal certificate search (THEORY.md 2.2, longest
+//!   certified prefix by binary search with constraint generation) plus the exact
+//!   verification of the resulting transcript, T = 1000 queries of `subgradient`
+//!   against `orthant` in d = 10. Target: under 10 seconds.
+
+use std::time::{Duration, Instant};
+
+use criterion::{black_box, criterion_group, criterion_main, Criterion};
+use naysayer::adversary::orthant::{Orthant, OrthantSettings};
+use naysayer::adversary::Adversary;
+use naysayer::certificate::universal::{self, Exchange};
+use naysayer::certificate::verify_records;
+use naysayer::class::{Class, FirstOrderClass, LipschitzNorm};
+use naysayer::game::{Ending, FinalRecord, Header};
+use naysayer::method::subgradient::{StepRule, Subgradient};
+use naysayer::method::Method;
+use naysayer::oracle::{Answer, Step};
+use naysayer::transcript::{QueryRecord, Record, FORMAT_VERSION};
+use rand::{Rng, SeedableRng};
+use rand_chacha::ChaCha8Rng;
+
+/// A query near the current level's centre that reveals the sign of coordinate `i`
+/// (the unfixed term |m_i - y_i| wins because every other coordinate sits at the
+/// centre).
+fn reveal(adversary: &Orthant, centre: &[f64], i: usize, rng: &mut ChaCha8Rng) -> Vec<f64> {
+    let _ = adversary;
+    let mut y = centre.to_vec();
+    let h = 2f64.powi(-30);
+    y[i] += if rng.random::<bool>() { h } else { -h };
+    y
+}
+
+/// An orthant adversary at d = 100 driven until `levels` levels are open (the last one
+/// with half its signs fixed), and the centre of its current level.
+fn orthant_with_levels(class: &FirstOrderClass, levels: usize) -> (Orthant, Vec<f64>) {
+    let d = class.dim;
+    let mut adversary = Orthant::new(class, OrthantSettings::default()).unwrap();
+    let mut rng = ChaCha8Rng::seed_from_u64(7);
+    // The current level's centre, tracked from the revealed signs: m' = m + s h / 2.
+    let mut centre = vec![0.0; d];
+    let mut h = class.half_width;
+    while adversary.levels() < levels {
+        let mut signs = vec![0.0; d];
+        for i in 0..d {
+            let y = reveal(&adversary, &centre, i, &mut rng);
+            let Answer::FirstOrder(a) = adversary.answer(&y) else {
+                unreachable!("first-order answers")
+            };
+            // The answered subgradient is -lambda s_i e_i.
+            signs[i] = -a.subgradient[i].to_f64().signum();
+        }
+        for i in 0..d {
+            centre[i] += signs[i] * h / 2.0;
+        }
+        h /= 2.0;
+    }
+    for i in 0..d / 2 {
+        let y = reveal(&adversary, &centre, i, &mut rng);
+        adversary.answer(&y);
+    }
+    assert_eq!(adversary.levels(), levels);
+    (adversary, centre)
+}
+
+/// Target: <= 20 microseconds per answer at d = 100 with 20 levels open.
+fn orthant_answer(c: &mut Criterion) {
+    let class = FirstOrderClass::new(100, 1.0, 1e-9, 1.0, LipschitzNorm::L2).unwrap();
+    let (adversary, centre) = orthant_with_levels(&class, 20);
+    // A fixed cycle of queries: uniform points of the box (answered by the top levels),
+    // points near the current centre (answered by the current level, fixed or unfixed
+    // coordinates), and points exactly on level centres (exact ties).
+    let mut rng = ChaCha8Rng::seed_from_u64(11);
+    let mut queries: Vec<Vec<f64>> = Vec::new();
+    for k in 0..64 {
+        let y: Vec<f64> = match k % 4 {
+            0 => (0..100).map(|_| rng.random_range(-1.0..1.0)).collect(),
+            1 | 2 => centre
+                .iter()
+                .map(|m| m + rng.random_range(-1e-6..1e-6))
+                .collect(),
+            _ => centre.clone(),
+        };
+        queries.push(y);
+    }
+    let chunk = 32;
+    let mut group = c.benchmark_group("orthant_answer_d100");
+    group.bench_function("20 levels open", |b| {
+        b.iter_custom(|iters| {
+            let mut total = Duration::ZERO;
+            let mut done = 0u64;
+            let mut next = 0usize;
+            while done < iters {
+                // A fresh copy every chunk keeps the state at 20 levels (untimed).
+                let mut fresh = adversary.clone();
+                let n = chunk.min(iters - done);
+                let start = Instant::now();
+                for _ in 0..n {
+                    black_box(fresh.answer(&queries[next % queries.len()]));
+                    next += 1;
+                }
+                total += start.elapsed();
+                done += n;
+            }
+            total
+        })
+    });
+    group.finish();
+}
+
+/// T = 1000 exchanges of `subgradient` against `orthant` at d = 10, with their records.
+fn recorded_game(class: &FirstOrderClass, t: usize) -> (Vec<Exchange>, Vec<Record>) {
+    let mut method = Subgradient::new(class, StepRule::Fixed);
+    let mut adversary = Orthant::new(class, OrthantSettings::default()).unwrap();
+    let mut query = vec![0.0; class.dim];
+    let mut exchanges = Vec::new();
+    let mut records = vec![Record::Header(Header {
+        format: FORMAT_VERSION,
+        tool: "bench".into(),
+        class: Class::FirstOrder(class.clone()),
+        adversary: "orthant".into(),
+        method: "subgradient".into(),
+        seed: 0,
+        budget: t as u64,
+    })];
+    while exchanges.len() < t {
+        match method.next(&mut query).unwrap() {
+            Step::Query => {}
+            Step::Output(_) => panic!("the method plans more than {t} queries"),
+        }
+        let answer = adversary.answer(&query);
+        method.observe(&query, &answer).unwrap();
+        let Answer::FirstOrder(fo) = &answer else {
+            unreachable!("first-order answers")
+        };
+        exchanges.push(Exchange {
+            point: query.clone(),
+            value: fo.value.clone(),
+            gradient: fo.subgradient.clone(),
+        });
+        records.push(Record::Query(QueryRecord {
+            index: exchanges.len() as u64,
+            point: query.clone(),
+            answer,
+        }));
+    }
+    (exchanges, records)
+}
+
+/// Target: certificate search plus exact verification, T = 1000, d = 10: under 10 s.
+fn certificate_search(c: &mut Criterion) {
+    let class = FirstOrderClass::new(10, 1.0, 1e-3, 1.0, LipschitzNorm::L2).unwrap();
+    let (exchanges, records) = recorded_game(&class, 1000);
+    let mut group = c.benchmark_group("certificate_t1000_d10");
+    group.sample_size(10);
+    group.bench_function("search + exact verification", |b| {
+        b.iter(|| {
+            let found = universal::longest_certificate(&class, &exchanges)
+                .unwrap()
+                .expect("a certificate exists");
+            let mut all = records.clone();
+            all.push(Record::Final(FinalRecord {
+                queries_used: exchanges.len() as u64,
+                ending: Ending::BudgetExhausted,
+                certificate: Some(found.witnesses),
+            }));
+            let verdict = verify_records(&all).expect("the verifier accepts");
+            black_box(verdict)
+        })
+    });
+    group.finish();
+}
+
+criterion_group!(benches, orthant_answer, certificate_search);
+criterion_main!(benches);

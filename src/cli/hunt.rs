@@ -1,0 +1,239 @@
+//! `naysayer hunt`: search the answers that make one deterministic method slowest
+//! ([`crate::hunt`]), write and verify the worst game's transcript; or, with
+//! `--replay FILE`, feed a transcript's recorded answers back to the method its header
+//! names and check that it reproduces the same queries, count and ending.
+//!
+//! Exit codes: 0 success (hunt verified, or replay reproduced); 1 the worst game's
+//! certificate was rejected, or the replay did not reproduce the recording; 2 bad
+//! arguments (including a method that is not deterministic); 4 an I/O error.
+
+use clap::Args;
+
+use crate::cli::play::{describe_outcome, lower_bound_text, queries_used_text};
+use crate::cli::{describe_class, ClassArgs, PathArg, EXIT_OK, EXIT_REJECTED};
+use crate::error::Error;
+use crate::hunt::{self, replay, GameFigures, HuntReport, HuntSettings};
+
+/// Arguments of `naysayer hunt`.
+#[derive(Debug, Args)]
+pub struct HuntArgs {
+    /// Built-in method to hunt (see `naysayer list`); it must be deterministic for its
+    /// seed.
+    #[arg(short, long, default_value = "analytic-center")]
+    pub method: String,
+    /// The class.
+    #[command(flatten)]
+    pub class: ClassArgs,
+    /// Seed of the method (randomized methods are deterministic given it).
+    #[arg(long, default_value_t = 0)]
+    pub seed: u64,
+    /// Beam width: lines kept at each depth.
+    #[arg(long, default_value_t = 8)]
+    pub width: usize,
+    /// Search budget: method replays (one replay = one method step driven by the search).
+    #[arg(long, default_value_t = 10_000)]
+    pub replays: u64,
+    /// Seed of the hunt's random candidate directions.
+    #[arg(long = "hunt-seed", default_value_t = 0)]
+    pub hunt_seed: u64,
+    /// Random candidate directions per query.
+    #[arg(long = "random-directions", default_value_t = 4)]
+    pub random_directions: usize,
+    /// Candidate directions from this many of the method's most recent queries.
+    #[arg(long = "recent-queries", default_value_t = 2)]
+    pub recent_queries: usize,
+    /// Most queries the method may ask in one game.
+    #[arg(long, default_value_t = 10_000)]
+    pub budget: u64,
+    /// Write the worst game's transcript here (JSON Lines); it is verified from the file.
+    #[arg(short, long)]
+    pub transcript: Option<PathArg>,
+    /// Do not draw a progress bar.
+    #[arg(long)]
+    pub quiet: bool,
+    /// Instead of hunting: replay the answers recorded in this transcript to the method
+    /// its header names (with its seed) and check that it reproduces them.
+    #[arg(long, value_name = "FILE")]
+    pub replay: Option<PathArg>,
+}
+
+/// Runs `hunt`.
+pub fn run(args: &HuntArgs) -> Result<u8, Error> {
+    if let Some(path) = &args.replay {
+        return run_replay(path);
+    }
+    let class = args.class.to_class()?;
+    let settings = HuntSettings {
+        width: args.width,
+        replays: args.replays,
+        seed: args.hunt_seed,
+        random_directions: args.random_directions,
+        recent_queries: args.recent_queries,
+        game_budget: args.budget,
+    };
+    settings.validate()?;
+    let bar = progress_bar(!args.quiet, args.replays);
+    let mut on_progress = |p: &hunt::HuntProgress| {
+        if let Some(bar) = &bar {
+            bar.set_position(p.replays_used.min(p.replay_budget));
+            bar.set_message(format!(
+                "pass {}, depth {}, worst certified count so far {}",
+                p.pass + 1,
+                p.depth,
+                p.best_certified
+            ));
+        }
+    };
+    let report = hunt::hunt_builtin(
+        &args.method,
+        &class,
+        args.seed,
+        &settings,
+        &mut on_progress,
+        args.transcript.as_deref(),
+    )?;
+    if let Some(bar) = bar {
+        bar.finish_and_clear();
+    }
+    print!("{}", summary(args, &report));
+    Ok(if report.verdict.is_ok() {
+        EXIT_OK
+    } else {
+        EXIT_REJECTED
+    })
+}
+
+fn progress_bar(enabled: bool, total: u64) -> Option<indicatif::ProgressBar> {
+    use std::io::IsTerminal;
+    if !enabled || !std::io::stderr().is_terminal() {
+        return None;
+    }
+    let bar = indicatif::ProgressBar::with_draw_target(
+        Some(total),
+        indicatif::ProgressDrawTarget::stderr(),
+    );
+    if let Ok(style) = indicatif::ProgressStyle::with_template(
+        "{bar:40} {pos}/{len} replays, {elapsed} elapsed, {msg}",
+    ) {
+        bar.set_style(style);
+    }
+    Some(bar)
+}
+
+fn figures_text(f: &GameFigures) -> String {
+    let bound = f
+        .certified_lower_bound
+        .map_or("none".to_string(), |b| b.to_string());
+    format!(
+        "{} queries (certified lower bound {bound})",
+        queries_used_text(f.queries_used, f.censored)
+    )
+}
+
+fn summary(args: &HuntArgs, report: &HuntReport) -> String {
+    let mut out = String::new();
+    let mut line = |label: &str, text: String| out.push_str(&format!("{label:<23}{text}\n"));
+    line("class", describe_class(&report.header.class));
+    line(
+        "method",
+        format!("{} (seed {})", report.header.method, args.seed),
+    );
+    line(
+        "search",
+        format!(
+            "beam search, width {}, {} passes, hunt seed {}",
+            args.width, report.passes, args.hunt_seed
+        ),
+    );
+    line("worst found", figures_text(&report.worst));
+    line("halving adversary", figures_text(&report.generic));
+    line(
+        "lower bound",
+        format!(
+            "{} queries for every method (theorem: box halving, THEORY.md 1.1)",
+            report.lower_bound
+        ),
+    );
+    line(
+        "found by",
+        if report.found_by_search {
+            "the search (longer than the halving game)".into()
+        } else {
+            "the seed line: no searched line beat the halving game".into()
+        },
+    );
+    line(
+        "budget used",
+        format!(
+            "{} of {} replays; {} candidate answers tested, {} rejected by the exact check \
+             after the LP accepted them",
+            report.replays_used,
+            report.replay_budget,
+            report.candidates_tested,
+            report.rejected_by_exact_check
+        ),
+    );
+    if report.method_failures.0 > 0 {
+        line(
+            "method failures",
+            format!(
+                "{} searched lines ended with the method failing; first: {}",
+                report.method_failures.0,
+                report.method_failures.1.as_deref().unwrap_or("?")
+            ),
+        );
+    }
+    match &report.verdict {
+        Ok(verdict) => {
+            line("certified lower bound", lower_bound_text(verdict));
+            line(
+                "outcome",
+                describe_outcome(&verdict.outcome, &verdict.ending),
+            );
+            line(
+                "verifier",
+                "certificate valid (exact rational check)".into(),
+            );
+        }
+        Err(e) => line("verifier", format!("REJECTED: {e}")),
+    }
+    if let Some(path) = &args.transcript {
+        line(
+            "transcript",
+            format!(
+                "{} (replay it with `naysayer hunt --replay {}`)",
+                path.display(),
+                path.display()
+            ),
+        );
+    }
+    out.push_str(
+        "note                   a measured count for this method and seed, not a theorem: \
+         longer lines may exist\n",
+    );
+    out
+}
+
+fn run_replay(path: &std::path::Path) -> Result<u8, Error> {
+    let records = replay::read_records(path)?;
+    let (header, _, _) = replay::split_records(&records)?;
+    let mut method = crate::method::build(&header.method, &header.class, header.seed)?;
+    let report = replay::replay_answers(method.as_mut(), &records)?;
+    println!(
+        "replayed {} against {} recorded answers from {}",
+        header.method,
+        report.original.queries_used,
+        path.display()
+    );
+    println!("{}", report.describe());
+    println!(
+        "method {} after {} queries",
+        replay::ending_words(&report.record.ending),
+        report.record.queries_used
+    );
+    Ok(if report.reproduced() {
+        EXIT_OK
+    } else {
+        EXIT_REJECTED
+    })
+}

@@ -1,0 +1,486 @@
+//! The charts of a sweep's results folder, drawn from `games.csv` and `scenario.toml`.
+//!
+//! For a feasibility scenario:
+//! - `queries-vs-dim`: queries used against d at the scenario's chart rho, one series per
+//!   method (median over seeds with a min-max band; censored games drawn distinctly),
+//!   with the box-halving lower bound and the centre-of-gravity and ellipsoid upper
+//!   bounds;
+//! - `queries-vs-accuracy`: the same against log2(R/rho) at the chart dimension;
+//! - `undecided`: log2 of the alive volume against the query index, one game per method
+//!   (first seed) at the chart dimension and rho;
+//! - `game-2d`: a picture of one two-dimensional game (the first method that supports
+//!   d = 2, at the largest rho of the grid, so the picture stays legible).
+//!
+//! Each chart is written as SVG and PNG with its data beside it as CSV.
+
+use std::collections::BTreeMap;
+use std::io::BufRead;
+use std::path::{Path, PathBuf};
+
+use crate::certificate::universal::{self, Exchange};
+use crate::chart::{self, ChartSpec, Curve, CurveStyle, Cut2d, Game2d, Scale, Series, SeriesPoint};
+use crate::class::{Class, FeasibilityClass, FirstOrderClass};
+use crate::error::Error;
+use crate::game::UndecidedTrace;
+use crate::method;
+use crate::oracle::{Answer, Normal};
+use crate::runner::{self, GameSpec};
+use crate::scenario::{Family, Scenario};
+use crate::sweep::{split_csv_line, ClassFacts, COLUMNS};
+use crate::transcript::{MemoryTranscript, Record};
+
+/// Chart width in pixels.
+pub const WIDTH: u32 = 1000;
+/// Chart height in pixels.
+pub const HEIGHT: u32 = 650;
+
+/// One game's numbers, as read back from `games.csv`.
+#[derive(Clone, Debug, PartialEq)]
+struct Row {
+    method: String,
+    dim: usize,
+    rho: f64,
+    queries_used: u64,
+    censored: bool,
+}
+
+/// Queries used per (method, d, rho), in file order of methods.
+struct Table {
+    methods: Vec<String>,
+    cells: BTreeMap<(String, usize, u64), Vec<(u64, bool)>>,
+}
+
+fn read_table(csv: &Path) -> Result<Table, Error> {
+    let file = std::fs::File::open(csv).map_err(|source| Error::Io {
+        action: "cannot read",
+        path: csv.to_path_buf(),
+        source,
+    })?;
+    let column = |name: &str| {
+        COLUMNS
+            .iter()
+            .position(|c| *c == name)
+            .expect("known column")
+    };
+    let (m, d, r, q, c) = (
+        column("method"),
+        column("dim"),
+        column("accuracy"),
+        column("queries_used"),
+        column("censored"),
+    );
+    let mut table = Table {
+        methods: Vec::new(),
+        cells: BTreeMap::new(),
+    };
+    for (n, line) in std::io::BufReader::new(file).lines().enumerate() {
+        let line = line.map_err(|source| Error::Io {
+            action: "cannot read",
+            path: csv.to_path_buf(),
+            source,
+        })?;
+        if n == 0 {
+            continue;
+        }
+        let fields = split_csv_line(&line);
+        let bad = |what: &str| Error::Results {
+            path: csv.to_path_buf(),
+            reason: format!("line {}: {what}", n + 1),
+        };
+        if fields.len() != COLUMNS.len() {
+            return Err(bad("wrong number of fields"));
+        }
+        let row = Row {
+            method: fields[m].clone(),
+            dim: fields[d].parse().map_err(|_| bad("dim is not a number"))?,
+            rho: fields[r]
+                .parse()
+                .map_err(|_| bad("accuracy is not a number"))?,
+            queries_used: fields[q]
+                .parse()
+                .map_err(|_| bad("queries_used is not a number"))?,
+            censored: fields[c] == "true",
+        };
+        if !table.methods.contains(&row.method) {
+            table.methods.push(row.method.clone());
+        }
+        table
+            .cells
+            .entry((row.method, row.dim, row.rho.to_bits()))
+            .or_default()
+            .push((row.queries_used, row.censored));
+    }
+    Ok(table)
+}
+
+fn summarize(x: f64, values: &[(u64, bool)]) -> SeriesPoint {
+    let mut q: Vec<f64> = values.iter().map(|(v, _)| *v as f64).collect();
+    q.sort_by(f64::total_cmp);
+    let n = q.len();
+    let median = if n % 2 == 1 {
+        q[n / 2]
+    } else {
+        0.5 * (q[n / 2 - 1] + q[n / 2])
+    };
+    SeriesPoint {
+        x,
+        min: q[0],
+        median,
+        max: q[n - 1],
+        censored: values.iter().any(|(_, c)| *c),
+    }
+}
+
+fn bound_curves(classes: &[(f64, Class)]) -> Vec<Curve> {
+    let line = |label: &str, style: CurveStyle, f: &dyn Fn(&Class) -> Option<u64>| Curve {
+        label: label.to_string(),
+        points: classes
+            .iter()
+            .filter_map(|(x, c)| Some((*x, f(c)? as f64)))
+            .collect(),
+        style,
+    };
+    let curves = vec![
+        line(
+            "lower bound d*k+1 (box halving, theorem)",
+            CurveStyle::LowerBound,
+            &|c| ClassFacts::of(c).lower_bound,
+        ),
+        line(
+            "centre of gravity, upper (Grunbaum 1960)",
+            CurveStyle::UpperBound,
+            &|c| ClassFacts::of(c).upper_centre_of_gravity,
+        ),
+        line(
+            "ellipsoid, upper (Bertsimas & Tsitsiklis 1997)",
+            CurveStyle::UpperBound,
+            &|c| ClassFacts::of(c).upper_ellipsoid,
+        ),
+    ];
+    curves
+        .into_iter()
+        .filter(|c| !c.points.is_empty())
+        .collect()
+}
+
+/// eps_cert after T answers (T on a doubling grid) of one recorded first-order game.
+fn uncertainty_series(
+    method: &str,
+    class: &FirstOrderClass,
+    records: &[Record],
+) -> Result<Series, Error> {
+    let exchanges: Vec<Exchange> = records
+        .iter()
+        .filter_map(|r| match r {
+            Record::Query(q) => match &q.answer {
+                Answer::FirstOrder(fo) => Some(Exchange {
+                    point: q.point.clone(),
+                    value: fo.value.clone(),
+                    gradient: fo.subgradient.clone(),
+                }),
+                _ => None,
+            },
+            _ => None,
+        })
+        .collect();
+    // A finer accuracy so that eps_cert is reported even below the class's eps.
+    let probe = FirstOrderClass {
+        eps: class.eps / 16.0,
+        ..class.clone()
+    };
+    let mut points = Vec::new();
+    let mut t = 1usize;
+    while t <= exchanges.len() {
+        if let Some(found) = universal::certificate_for(&probe, &exchanges[..t], true)? {
+            let v = found.certified_uncertainty;
+            points.push(SeriesPoint {
+                x: t as f64,
+                min: v,
+                median: v,
+                max: v,
+                censored: false,
+            });
+        }
+        t = if t * 2 > exchanges.len() && t != exchanges.len() {
+            exchanges.len()
+        } else {
+            t * 2
+        };
+    }
+    Ok(Series {
+        label: method.to_string(),
+        points,
+    })
+}
+
+/// Draws every chart of the results folder `dir`; returns the PNG paths.
+pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
+    let scenario = Scenario::from_file(&dir.join("scenario.toml"))?;
+    let table = read_table(&dir.join("games.csv"))?;
+    let mut pngs = Vec::new();
+    let first_order = matches!(scenario.family, Family::FirstOrder { .. });
+    let acc = scenario.accuracy_name();
+    let ratio_of = |accuracy: f64| match &scenario.family {
+        Family::FirstOrder { lipschitz, .. } => lipschitz * scenario.half_width / accuracy,
+        Family::Feasibility { .. } => scenario.half_width / accuracy,
+    };
+    let subtitle = format!(
+        "{}: adversary {}, box [-{R}, {R}]^d, {} seed(s), budget {}",
+        scenario.name,
+        scenario.adversary,
+        scenario.seeds.len(),
+        scenario.budget,
+        R = scenario.half_width
+    );
+    let subtitle = if first_order {
+        format!(
+            "{subtitle}; lower bound Theta(d log(LR/eps)), constant unspecified (Nemirovski & Yudin 1983)"
+        )
+    } else {
+        subtitle
+    };
+
+    // (a) queries against d at fixed accuracy.
+    let rho = scenario.chart_accuracy;
+    let series = table
+        .methods
+        .iter()
+        .map(|m| Series {
+            label: m.clone(),
+            points: scenario
+                .dims
+                .iter()
+                .filter_map(|&d| {
+                    let cell = table.cells.get(&(m.clone(), d, rho.to_bits()))?;
+                    Some(summarize(d as f64, cell))
+                })
+                .collect(),
+        })
+        .filter(|s| !s.points.is_empty())
+        .collect();
+    let classes: Vec<(f64, Class)> = scenario
+        .dims
+        .iter()
+        .filter_map(|&d| Some((d as f64, scenario.class_at(d, rho).ok()?)))
+        .collect();
+    let spec = ChartSpec {
+        title: format!(
+            "Queries used against dimension d (R/rho = {})",
+            scenario.half_width / rho
+        ),
+        subtitle: Some(subtitle.clone()),
+        x_label: "dimension d".into(),
+        y_label: "queries used".into(),
+        x_scale: Scale::Linear,
+        y_scale: Scale::Log10,
+        series,
+        curves: bound_curves(&classes),
+        width: WIDTH,
+        height: HEIGHT,
+    };
+    pngs.push(chart::draw(&spec, &dir.join("queries-vs-dim"))?.png);
+
+    // (b) queries against log2(R/rho) (or log2(LR/eps)) at fixed d.
+    let d = scenario.chart_dim;
+    let log_ratio = |rho: f64| ratio_of(rho).log2();
+    let series = table
+        .methods
+        .iter()
+        .map(|m| Series {
+            label: m.clone(),
+            points: scenario
+                .accuracies
+                .iter()
+                .filter_map(|&rho| {
+                    let cell = table.cells.get(&(m.clone(), d, rho.to_bits()))?;
+                    Some(summarize(log_ratio(rho), cell))
+                })
+                .collect(),
+        })
+        .filter(|s| !s.points.is_empty())
+        .collect();
+    let classes: Vec<(f64, Class)> = scenario
+        .accuracies
+        .iter()
+        .filter_map(|&rho| Some((log_ratio(rho), scenario.class_at(d, rho).ok()?)))
+        .collect();
+    let spec = ChartSpec {
+        title: format!("Queries used against accuracy, d = {d}"),
+        subtitle: Some(subtitle.clone()),
+        x_label: if first_order {
+            "log2(LR/eps)"
+        } else {
+            "log2(R/rho)"
+        }
+        .into(),
+        y_label: "queries used".into(),
+        x_scale: Scale::Linear,
+        y_scale: Scale::Log10,
+        series,
+        curves: bound_curves(&classes),
+        width: WIDTH,
+        height: HEIGHT,
+    };
+    pngs.push(chart::draw(&spec, &dir.join("queries-vs-accuracy"))?.png);
+
+    // (c) undecided measure against the query index.
+    let class = scenario.class_at(d, rho)?;
+    let mut series = Vec::new();
+    let mut gap_series = Vec::new();
+    for m in &scenario.methods {
+        let any = class.clone();
+        if method::supports(m, &any).is_err() {
+            continue;
+        }
+        let spec = GameSpec {
+            class: any,
+            adversary: scenario.adversary.clone(),
+            method: m.clone(),
+            seed: scenario.seeds[0],
+            budget: scenario.budget,
+            transcript: None,
+        };
+        let mut trace = UndecidedTrace::default();
+        let mut memory = MemoryTranscript::default();
+        let mut player = method::build(m, &spec.class, spec.seed)?;
+        runner::run_with(&spec, player.as_mut(), &mut [&mut trace, &mut memory])?;
+        if let Class::FirstOrder(c) = &class {
+            gap_series.push(uncertainty_series(m, c, &memory.records)?);
+        }
+        series.push(Series {
+            label: m.clone(),
+            points: trace
+                .points
+                .iter()
+                .map(|(i, v)| SeriesPoint {
+                    x: *i as f64,
+                    min: *v,
+                    median: *v,
+                    max: *v,
+                    censored: false,
+                })
+                .collect(),
+        });
+    }
+    let spec = ChartSpec {
+        title: format!("Undecided volume against queries, d = {d}, {acc} = {rho}"),
+        subtitle: Some(format!(
+            "{subtitle}; one game per method (seed {}); log2 of the adversary's alive box",
+            scenario.seeds[0]
+        )),
+        x_label: "query index".into(),
+        y_label: "log2 of the alive volume".into(),
+        x_scale: Scale::Linear,
+        y_scale: Scale::Linear,
+        series,
+        curves: Vec::new(),
+        width: WIDTH,
+        height: HEIGHT,
+    };
+    pngs.push(chart::draw(&spec, &dir.join("undecided"))?.png);
+
+    // (e) first-order: certified uncertainty against T, log-log.
+    if let Class::FirstOrder(c) = &class {
+        let t_max = gap_series
+            .iter()
+            .flat_map(|s| s.points.iter().map(|p| p.x))
+            .fold(1.0, f64::max);
+        let diameter = c.half_width * (c.dim as f64).sqrt();
+        let curve_points: Vec<(f64, f64)> = (0..=40)
+            .map(|k| t_max.powf(f64::from(k) / 40.0))
+            .map(|t| (t, c.lipschitz * diameter / (t + 1.0).sqrt()))
+            .collect();
+        let spec = ChartSpec {
+            title: format!("Certified uncertainty against queries, d = {d}"),
+            subtitle: Some(format!(
+                "{subtitle}; eps_cert: an error no method can rule out from the first T answers (THEORY.md 2.2)"
+            )),
+            x_label: "queries T".into(),
+            y_label: "certified uncertainty eps_cert".into(),
+            x_scale: Scale::Log10,
+            y_scale: Scale::Log10,
+            series: gap_series,
+            curves: vec![Curve {
+                label: "subgradient, upper L R sqrt(d) / sqrt(T+1) (Nesterov 2004)".into(),
+                points: curve_points,
+                style: CurveStyle::UpperBound,
+            }],
+            width: WIDTH,
+            height: HEIGHT,
+        };
+        pngs.push(chart::draw(&spec, &dir.join("uncertainty-vs-queries"))?.png);
+    }
+
+    // (d) a two-dimensional game (feasibility).
+    let picture_rho = scenario.accuracies[0];
+    if let (false, Ok(Class::Feasibility(class))) = (first_order, scenario.class_at(2, picture_rho))
+    {
+        let any = Class::Feasibility(class.clone());
+        if let Some(m) = scenario
+            .methods
+            .iter()
+            .find(|m| method::supports(m, &any).is_ok())
+        {
+            let spec = GameSpec {
+                class: any,
+                adversary: scenario.adversary.clone(),
+                method: m.clone(),
+                seed: scenario.seeds[0],
+                budget: scenario.budget.min(200),
+                transcript: None,
+            };
+            let mut memory = MemoryTranscript::default();
+            let mut player = method::build(m, &spec.class, spec.seed)?;
+            runner::run_with(&spec, player.as_mut(), &mut [&mut memory])?;
+            let picture = game_picture(&memory.records, &class, m, &scenario.adversary);
+            pngs.push(chart::draw_game_2d(&picture, &dir.join("game-2d"))?.png);
+        }
+    }
+    Ok(pngs)
+}
+
+/// The picture of a two-dimensional game: the alive box after each answer is the box
+/// cut by every axis cut so far (exactly the halving adversary's box).
+fn game_picture(
+    records: &[Record],
+    class: &FeasibilityClass,
+    method: &str,
+    adversary: &str,
+) -> Game2d {
+    let r = class.half_width;
+    let mut current = [-r, r, -r, r];
+    let mut boxes = vec![current];
+    let mut queries = Vec::new();
+    let mut cuts = Vec::new();
+    for record in records {
+        let Record::Query(q) = record else { continue };
+        queries.push([q.point[0], q.point[1]]);
+        if let Answer::Cut(cut) = &q.answer {
+            let b = cut.offset.to_f64();
+            let normal = [cut.normal.get(0), cut.normal.get(1)];
+            if let Normal::Axis { axis, sign } = &cut.normal {
+                let (lo, hi) = (2 * axis, 2 * axis + 1);
+                if *sign > 0 {
+                    current[hi] = current[hi].min(b);
+                } else {
+                    current[lo] = current[lo].max(-b);
+                }
+            }
+            cuts.push(Cut2d { normal, offset: b });
+        }
+        boxes.push(current);
+    }
+    Game2d {
+        title: format!(
+            "{method} against {adversary}, d = 2, R/rho = {}: {} queries",
+            class.half_width / class.rho,
+            queries.len()
+        ),
+        half_width: r,
+        boxes,
+        queries,
+        cuts,
+        width: 800,
+        height: 800,
+    }
+}

@@ -1,0 +1,108 @@
+//! The projected subgradient method for convex L-Lipschitz f on X = [-R, R]^d
+//! (Shor 1962; the guarantee as in Nesterov, Introductory Lectures on Convex
+//! Optimization, 2004, sec. 3.2.3, from memory).
+//!
+//! x_0 = 0, x_{t+1} = P_X(x_t - eta_t g_t). With the fixed step eta = D / (L sqrt(N+1)),
+//! D = R sqrt(d) >= ||x_0 - x*||_2, the best of N + 1 points satisfies
+//! min_t f(x_t) - f* <= L D / sqrt(N+1) (L the l2 Lipschitz constant), so N + 1 =
+//! ceil((L D / eps)^2) queries guarantee eps-accuracy; the method plans that many and
+//! outputs the best point seen. The decaying variant uses eta_t = D / (L sqrt(t+1)) and
+//! the same number of queries (it carries a log factor in its guarantee).
+
+use crate::class::FirstOrderClass;
+use crate::error::Error;
+use crate::method::Method;
+use crate::oracle::{Answer, Output, Step};
+
+/// Step-size rule.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum StepRule {
+    /// eta = D / (L sqrt(N+1)).
+    Fixed,
+    /// eta_t = D / (L sqrt(t+1)).
+    Decaying,
+}
+
+/// Projected subgradient method; outputs the best point seen after its planned queries.
+#[derive(Clone, Debug)]
+pub struct Subgradient {
+    rule: StepRule,
+    half_width: f64,
+    /// D / L.
+    scale: f64,
+    planned: u64,
+    asked: u64,
+    point: Vec<f64>,
+    best: Option<(f64, Vec<f64>)>,
+    name: &'static str,
+}
+
+/// The most queries the method plans (more would only be censored by any budget).
+pub const MAX_PLANNED: u64 = 1 << 40;
+
+impl Subgradient {
+    /// Plans ceil((L D / eps)^2) queries with D = R sqrt(d).
+    pub fn new(class: &FirstOrderClass, rule: StepRule) -> Subgradient {
+        let diameter = class.half_width * (class.dim as f64).sqrt();
+        let ratio = class.lipschitz * diameter / class.eps;
+        let planned = (ratio * ratio).ceil().clamp(1.0, MAX_PLANNED as f64) as u64;
+        Subgradient {
+            rule,
+            half_width: class.half_width,
+            scale: diameter / class.lipschitz,
+            planned,
+            asked: 0,
+            point: vec![0.0; class.dim],
+            best: None,
+            name: match rule {
+                StepRule::Fixed => "subgradient",
+                StepRule::Decaying => "subgradient-decaying",
+            },
+        }
+    }
+
+    /// The number of queries the method plans.
+    pub fn planned(&self) -> u64 {
+        self.planned
+    }
+}
+
+impl Method for Subgradient {
+    fn name(&self) -> &str {
+        self.name
+    }
+
+    fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
+        if self.asked >= self.planned {
+            let point = self
+                .best
+                .as_ref()
+                .map_or_else(|| self.point.clone(), |(_, p)| p.clone());
+            return Ok(Step::Output(Output::Point { point }));
+        }
+        query.copy_from_slice(&self.point);
+        Ok(Step::Query)
+    }
+
+    fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
+        let Answer::FirstOrder(fo) = answer else {
+            return Err(Error::MethodFailed {
+                method: self.name.into(),
+                reason: "needs first-order answers (value and subgradient)".into(),
+            });
+        };
+        self.asked += 1;
+        let value = fo.value.to_f64();
+        if self.best.as_ref().is_none_or(|(v, _)| value < *v) {
+            self.best = Some((value, query.to_vec()));
+        }
+        let eta = match self.rule {
+            StepRule::Fixed => self.scale / ((self.planned as f64) + 1.0).sqrt(),
+            StepRule::Decaying => self.scale / ((self.asked as f64) + 1.0).sqrt(),
+        };
+        for (x, g) in self.point.iter_mut().zip(&fo.subgradient) {
+            *x = (*x - eta * g.to_f64()).clamp(-self.half_width, self.half_width);
+        }
+        Ok(())
+    }
+}
