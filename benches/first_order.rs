@@ -24,44 +24,38 @@ use naysayer::transcript::{QueryRecord, Record, FORMAT_VERSION};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 
-/// A query near the current level's centre that reveals the sign of coordinate `i`
-/// (the unfixed term |m_i - y_i| wins because every other coordinate sits at the
-/// centre).
-fn reveal(adversary: &Orthant, centre: &[f64], i: usize, rng: &mut ChaCha8Rng) -> Vec<f64> {
-    let _ = adversary;
+/// The query m - 2^-40 e_i next to the current level's centre m: it reveals s_i = +1
+/// (the unfixed term |m_i - y_i| wins, every other coordinate sitting at the centre).
+/// With every sign +1 the older levels stay below the current one near its centre
+/// (THEORY.md 2.3 with beta = gamma = 0, theta = 1/4: the level-j term there is at most
+/// c_j - lambda_j h_j / 2, below c_k >= c_j - (2/7) lambda_j h_j).
+fn reveal(centre: &[f64], i: usize) -> Vec<f64> {
     let mut y = centre.to_vec();
-    let h = 2f64.powi(-30);
-    y[i] += if rng.random::<bool>() { h } else { -h };
+    y[i] -= 2f64.powi(-40);
     y
 }
 
-/// An orthant adversary at d = 100 driven until `levels` levels are open (the last one
-/// with half its signs fixed), and the centre of its current level.
+/// An orthant adversary driven until `levels` levels are open (the last one with half
+/// its signs fixed), and the centre of its current level.
 fn orthant_with_levels(class: &FirstOrderClass, levels: usize) -> (Orthant, Vec<f64>) {
     let d = class.dim;
     let mut adversary = Orthant::new(class, OrthantSettings::default()).unwrap();
-    let mut rng = ChaCha8Rng::seed_from_u64(7);
-    // The current level's centre, tracked from the revealed signs: m' = m + s h / 2.
+    // The current level's centre: m' = m + s h / 2 with s = +1, h' = h / 2.
     let mut centre = vec![0.0; d];
     let mut h = class.half_width;
     while adversary.levels() < levels {
-        let mut signs = vec![0.0; d];
+        let opened = adversary.levels();
         for i in 0..d {
-            let y = reveal(&adversary, &centre, i, &mut rng);
-            let Answer::FirstOrder(a) = adversary.answer(&y) else {
-                unreachable!("first-order answers")
-            };
-            // The answered subgradient is -lambda s_i e_i.
-            signs[i] = -a.subgradient[i].to_f64().signum();
+            adversary.answer(&reveal(&centre, i));
         }
-        for i in 0..d {
-            centre[i] += signs[i] * h / 2.0;
+        assert_eq!(adversary.levels(), opened + 1, "each round opens a level");
+        for m in &mut centre {
+            *m += h / 2.0;
         }
         h /= 2.0;
     }
     for i in 0..d / 2 {
-        let y = reveal(&adversary, &centre, i, &mut rng);
-        adversary.answer(&y);
+        adversary.answer(&reveal(&centre, i));
     }
     assert_eq!(adversary.levels(), levels);
     (adversary, centre)
@@ -71,44 +65,51 @@ fn orthant_with_levels(class: &FirstOrderClass, levels: usize) -> (Orthant, Vec<
 fn orthant_answer(c: &mut Criterion) {
     let class = FirstOrderClass::new(100, 1.0, 1e-9, 1.0, LipschitzNorm::L2).unwrap();
     let (adversary, centre) = orthant_with_levels(&class, 20);
-    // A fixed cycle of queries: uniform points of the box (answered by the top levels),
-    // points near the current centre (answered by the current level, fixed or unfixed
-    // coordinates), and points exactly on level centres (exact ties).
+    // Three kinds of queries, each a fixed cycle: uniform points of the box (answered
+    // by the top levels), points near the current centre (answered by the current
+    // level, fixed or unfixed coordinates), and the current centre itself (exact ties
+    // between all of its coordinates).
     let mut rng = ChaCha8Rng::seed_from_u64(11);
-    let mut queries: Vec<Vec<f64>> = Vec::new();
-    for k in 0..64 {
-        let y: Vec<f64> = match k % 4 {
-            0 => (0..100).map(|_| rng.random_range(-1.0..1.0)).collect(),
-            1 | 2 => centre
+    let uniform: Vec<Vec<f64>> = (0..64)
+        .map(|_| (0..100).map(|_| rng.random_range(-1.0..1.0)).collect())
+        .collect();
+    let near: Vec<Vec<f64>> = (0..64)
+        .map(|_| {
+            centre
                 .iter()
                 .map(|m| m + rng.random_range(-1e-6..1e-6))
-                .collect(),
-            _ => centre.clone(),
-        };
-        queries.push(y);
-    }
-    let chunk = 32;
-    let mut group = c.benchmark_group("orthant_answer_d100");
-    group.bench_function("20 levels open", |b| {
-        b.iter_custom(|iters| {
-            let mut total = Duration::ZERO;
-            let mut done = 0u64;
-            let mut next = 0usize;
-            while done < iters {
-                // A fresh copy every chunk keeps the state at 20 levels (untimed).
-                let mut fresh = adversary.clone();
-                let n = chunk.min(iters - done);
-                let start = Instant::now();
-                for _ in 0..n {
-                    black_box(fresh.answer(&queries[next % queries.len()]));
-                    next += 1;
-                }
-                total += start.elapsed();
-                done += n;
-            }
-            total
+                .collect()
         })
-    });
+        .collect();
+    let exact_centre = vec![centre.clone()];
+    let chunk = 32;
+    let mut group = c.benchmark_group("orthant_answer_d100_20_levels");
+    for (name, queries) in [
+        ("uniform", &uniform),
+        ("near centre", &near),
+        ("at centre", &exact_centre),
+    ] {
+        group.bench_function(name, |b| {
+            b.iter_custom(|iters| {
+                let mut total = Duration::ZERO;
+                let mut done = 0u64;
+                let mut next = 0usize;
+                while done < iters {
+                    // A fresh copy every chunk keeps the state at 20 levels (untimed).
+                    let mut fresh = adversary.clone();
+                    let n = chunk.min(iters - done);
+                    let start = Instant::now();
+                    for _ in 0..n {
+                        black_box(fresh.answer(&queries[next % queries.len()]));
+                        next += 1;
+                    }
+                    total += start.elapsed();
+                    done += n;
+                }
+                total
+            })
+        });
+    }
     group.finish();
 }
 

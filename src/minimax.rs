@@ -520,6 +520,21 @@ fn enumerate_traces(points: &[Vec<i64>]) -> Vec<Trace> {
     traces
 }
 
+/// The traces on `points` (integer coordinates, at most 128 points spanning R^n,
+/// n <= 3) of every open halfspace, as bit masks of the points strictly inside; exact
+/// (module docs). Used for exact halfspace depth: the depth of a point z of a set S is
+/// |S| minus the largest trace not containing z.
+pub fn halfspace_traces(points: &[Vec<i64>]) -> Vec<u128> {
+    enumerate_traces(points).into_iter().map(|t| t.mask).collect()
+}
+
+fn gcd(mut a: i64, mut b: i64) -> i64 {
+    while b != 0 {
+        (a, b) = (b, a % b);
+    }
+    a
+}
+
 fn dot(a: &[i64], p: &[i64]) -> i64 {
     a.iter().zip(p).map(|(x, y)| x * y).sum()
 }
@@ -566,6 +581,7 @@ fn functionals(points: &[Vec<i64>]) -> Vec<(Vec<i64>, i64)> {
         }
         f
     };
+    let mut planes: std::collections::HashSet<(Vec<i64>, i64)> = std::collections::HashSet::new();
     for frame in frames {
         let base = &points[frame[0]];
         let diffs: Vec<Vec<i64>> = frame[1..]
@@ -583,6 +599,18 @@ fn functionals(points: &[Vec<i64>]) -> Vec<(Vec<i64>, i64)> {
             ]
         };
         if normal.iter().all(|v| *v == 0) {
+            continue;
+        }
+        // Each hyperplane once: primitive normal with a positive leading entry.
+        let g = normal.iter().fold(0i64, |g, v| gcd(g, v.abs())).max(1);
+        let sign = if normal.iter().find(|v| **v != 0).is_some_and(|v| *v < 0) {
+            -1
+        } else {
+            1
+        };
+        let key: Vec<i64> = normal.iter().map(|v| sign * v / g).collect();
+        let level = dot(&key, base);
+        if !planes.insert((key, level)) {
             continue;
         }
         let on: Vec<usize> = (0..points.len())

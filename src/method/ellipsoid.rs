@@ -17,10 +17,26 @@
 //! column by column, then mirrored), the step uses `a^T P a` recomputed from the
 //! current P, and a non-positive `a^T P a` (loss of definiteness) is reported as a
 //! method failure rather than silently continued. No allocation per step.
+//!
+//! First-order classes ([`Ellipsoid::first_order`]; the ellipsoid method for convex
+//! minimisation of Yudin & Nemirovski 1976, as in Bubeck 2015, sec. 2.2, from memory):
+//! each answer becomes its objective cut `g.y < g.x` ([`Answer::to_separation`]), which
+//! keeps every point better than the query. A centre outside X is not queried: the
+//! violated box face is used as the cut instead (it keeps all of X; no query spent). The
+//! method keeps its best point and the lower bound
+//!   f* >= min(f_best, f(x_t) - sqrt(g_t^T P_t g_t))
+//! at every query x_t = c_t (in d = 1: f(x_t) - |g_t| (u - l) / 2 on the interval
+//! [l, u]): a minimiser either left E_t through an earlier objective cut, so its value is
+//! at least that cut's query value, or lies in E_t, where f >= f(x_t) + g_t.(y - x_t) >=
+//! f(x_t) - max_{y in E_t} g_t.(x_t - y) (derived). It stops with its best point once
+//! f_best minus the largest such bound is at most eps, or once vol(E) falls below the
+//! volume of a ball of radius [`crate::method::kelley::volume_radius`] (then no
+//! eps-optimal point remains in E beyond the best one). It never answers "empty".
 
-use crate::class::{FeasibilityClass, Promise};
+use crate::class::{FeasibilityClass, FirstOrderClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
+use crate::method::kelley::{volume_radius, Bundle};
 use crate::method::Method;
 use crate::oracle::{Answer, Normal, Output, Separation, Step};
 
@@ -46,18 +62,51 @@ pub struct Ellipsoid {
     rho: f64,
     promise: Promise,
     found: Option<Vec<f64>>,
+    /// First-order classes: best point and lower bound (module doc).
+    objective: Option<Objective>,
 }
+
+/// What the ellipsoid method tracks on a first-order class.
+#[derive(Clone, Debug)]
+struct Objective {
+    bundle: Bundle,
+    eps: f64,
+    half_width: f64,
+}
+
+/// Most box cuts in a row before a centre is back in X (a guard; each cut moves the
+/// centre by a fixed fraction of the ellipsoid's width, so a few suffice).
+const MAX_BOX_CUTS: usize = 1000;
 
 impl Ellipsoid {
     /// Starts from the ball of radius R sqrt(d) around the origin.
     pub fn new(class: &FeasibilityClass) -> Ellipsoid {
-        let d = class.dim;
-        let radius2 = class.half_width * class.half_width * d as f64;
+        Ellipsoid::start(class.dim, class.half_width, class.rho, class.promise)
+    }
+
+    /// The method on a first-order class, with objective cuts (module doc).
+    pub fn first_order(class: &FirstOrderClass) -> Ellipsoid {
+        let mut method = Ellipsoid::start(
+            class.dim,
+            class.half_width,
+            volume_radius(class),
+            Promise::Nonempty,
+        );
+        method.objective = Some(Objective {
+            bundle: Bundle::new(class),
+            eps: class.eps,
+            half_width: class.half_width,
+        });
+        method
+    }
+
+    fn start(d: usize, half_width: f64, rho: f64, promise: Promise) -> Ellipsoid {
+        let radius2 = half_width * half_width * d as f64;
         let mut shape = vec![0.0; d * d];
         for i in 0..d {
             shape[i * d + i] = radius2;
         }
-        let log_radius = class.half_width.ln() + 0.5 * (d as f64).ln();
+        let log_radius = half_width.ln() + 0.5 * (d as f64).ln();
         Ellipsoid {
             dim: d,
             center: vec![0.0; d],
@@ -66,14 +115,59 @@ impl Ellipsoid {
             dense: vec![0.0; d],
             log_volume: d as f64 * log_radius,
             // A relative margin so rounding in the running sum never claims too early.
-            log_volume_floor: d as f64 * class.rho.ln()
-                - 1e-9 * (1.0 + d as f64 * log_radius.abs()),
+            log_volume_floor: d as f64 * rho.ln() - 1e-9 * (1.0 + d as f64 * log_radius.abs()),
             log_ratio: if d >= 2 { log_volume_ratio(d) } else { 0.0 },
-            interval: (d == 1).then(|| BoxModel::cube(1, class.half_width)),
-            rho: class.rho,
-            promise: class.promise,
+            interval: (d == 1).then(|| BoxModel::cube(1, half_width)),
+            rho,
+            promise,
             found: None,
+            objective: None,
         }
+    }
+
+    /// First-order classes: the best value seen and the best lower bound on f* (module
+    /// doc); `None` on a feasibility class or before the first answer.
+    pub fn bounds(&self) -> Option<(f64, f64)> {
+        let objective = self.objective.as_ref()?;
+        Some((
+            objective.bundle.best_value()?,
+            objective.bundle.lower_bound(),
+        ))
+    }
+
+    /// max over y in E of g.(c - y) = sqrt(g^T P g) (d = 1: over the interval, from the
+    /// query `x`).
+    fn support_width(&self, g: &[f64], x: &[f64]) -> f64 {
+        let d = self.dim;
+        if let Some(interval) = &self.interval {
+            let g = g[0].abs();
+            return (g * (x[0] - interval.lower[0])).max(g * (interval.upper[0] - x[0]));
+        }
+        let mut quadratic = 0.0;
+        for j in 0..d {
+            if g[j] == 0.0 {
+                continue;
+            }
+            let column = &self.shape[j * d..(j + 1) * d];
+            let pg: f64 = column.iter().zip(g).map(|(p, gi)| p * gi).sum();
+            quadratic += g[j] * pg;
+        }
+        quadratic.max(0.0).sqrt()
+    }
+
+    /// First-order classes: the first coordinate where the centre leaves X, as the axis
+    /// normal of the violated face.
+    fn outside_box(&self) -> Option<Normal> {
+        let r = self.objective.as_ref()?.half_width;
+        self.center.iter().enumerate().find_map(|(i, c)| {
+            if *c > r {
+                Some(Normal::axis(i, true))
+            } else if *c < -r {
+                Some(Normal::axis(i, false))
+            } else {
+                None
+            }
+        })
     }
 
     /// The current centre.
@@ -92,7 +186,13 @@ impl Ellipsoid {
     }
 
     /// "Empty" when the class allows it; under the nonempty promise, `centre` (a guess).
+    /// On a first-order class: the best point (module doc).
     fn give_up(&self, centre: Vec<f64>) -> Output {
+        if let Some(objective) = &self.objective {
+            return Output::Point {
+                point: objective.bundle.best_point(),
+            };
+        }
         match self.promise {
             Promise::MayBeEmpty => Output::Empty,
             Promise::Nonempty => Output::Point { point: centre },
@@ -188,6 +288,24 @@ impl Method for Ellipsoid {
         if let Some(point) = self.found.take() {
             return Ok(Step::Output(Output::Point { point }));
         }
+        if let Some(objective) = &self.objective {
+            if objective.bundle.gap() <= objective.eps {
+                return Ok(Step::Output(Output::Point {
+                    point: objective.bundle.best_point(),
+                }));
+            }
+            let mut cuts = 0;
+            while let Some(normal) = self.outside_box() {
+                if cuts == MAX_BOX_CUTS {
+                    return Err(Error::MethodFailed {
+                        method: "ellipsoid".into(),
+                        reason: format!("the centre stayed outside X after {cuts} box cuts"),
+                    });
+                }
+                self.update(&normal)?;
+                cuts += 1;
+            }
+        }
         if let Some(interval) = &self.interval {
             if interval.too_thin_for(self.rho) {
                 let mut centre = vec![0.0];
@@ -205,6 +323,26 @@ impl Method for Ellipsoid {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
+        if self.objective.is_some() {
+            let Answer::FirstOrder(fo) = answer else {
+                return Err(Error::MethodFailed {
+                    method: "ellipsoid".into(),
+                    reason: "a first-order class needs first-order answers".into(),
+                });
+            };
+            let g: Vec<f64> = fo.subgradient.iter().map(|v| v.to_f64()).collect();
+            let width = if g.len() == self.dim {
+                self.support_width(&g, query)
+            } else {
+                f64::INFINITY
+            };
+            if let Some(objective) = &mut self.objective {
+                objective.bundle.add(query, fo)?;
+                objective
+                    .bundle
+                    .raise_lower_bound(fo.value.to_f64() - width);
+            }
+        }
         match answer.to_separation(query) {
             Separation::Inside => {
                 self.found = Some(query.to_vec());

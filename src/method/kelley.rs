@@ -24,6 +24,7 @@
 use crate::class::{FirstOrderClass, LipschitzNorm};
 use crate::error::Error;
 use crate::geometry::lp::{self, LpOutcome, Row};
+use crate::geometry::polytope::Polytope;
 use crate::method::Method;
 use crate::oracle::{Answer, FirstOrderAnswer, Output, Step};
 
@@ -259,6 +260,98 @@ impl Bundle {
     pub fn minimise_over_box(&self) -> Result<ModelMinimum, Error> {
         let r = self.half_width;
         self.minimise(&vec![-r; self.dim], &vec![r; self.dim], &[])
+    }
+}
+
+/// A radius rho such that, when eps < f(best) - f*, the set {y in X : f(y) < f(best)}
+/// contains a Euclidean ball of radius 2 rho; so a method whose own model (which contains
+/// that set) provably holds no rho-ball may stop with its best point (the volume argument
+/// of the centre-of-gravity and ellipsoid methods; Nemirovski & Yudin 1983, from memory).
+///
+/// Derivation: |f(y) - f(x*)| <= L' ||y - x*||_2 with L' = L (l2 and l_inf classes) or
+/// L sqrt(d) (l1 class), so {f <= f* + eps} contains X intersected with B(x*, r),
+/// r = eps / L'; that set contains the ball B(x* + s sigma, s), s = r / (1 + sqrt d),
+/// sigma_i = -sign(x*_i) (+1 at 0), whenever s <= R / 2 (derived). rho = min(s, R/2) / 2.
+pub fn volume_radius(class: &FirstOrderClass) -> f64 {
+    let d = class.dim as f64;
+    let lipschitz = match class.norm {
+        LipschitzNorm::L1 => class.lipschitz * d.sqrt(),
+        LipschitzNorm::L2 | LipschitzNorm::Linf => class.lipschitz,
+    };
+    let s = class.eps / lipschitz / (1.0 + d.sqrt());
+    0.5 * s.min(0.5 * class.half_width)
+}
+
+/// Objective-cut bookkeeping for a polytope-model cutting-plane method playing a
+/// first-order class (`sampled-centroid`, `analytic-center`).
+///
+/// The model P is the box cut by every objective cut `g_s . y < g_s . x_s`, so it
+/// contains every point of X better than all queries. A minimiser x* of f either lies
+/// outside P, and then f* >= f(x_s) >= f_best for the cut s that excluded it, or lies in
+/// P, and then f* >= M_t(x*) >= min_P M_t (an LP, [`Bundle::minimise`]). Hence
+/// f* >= min(f_best, min_P M_t) (derived; the bound of Kelley's method restricted to the
+/// localisation set). An empty model (or an LP the solver finds infeasible) gives
+/// f* >= f_best.
+#[derive(Clone, Debug)]
+pub struct PolytopeObjective {
+    bundle: Bundle,
+    eps: f64,
+}
+
+impl PolytopeObjective {
+    /// Nothing recorded yet.
+    pub fn new(class: &FirstOrderClass) -> PolytopeObjective {
+        PolytopeObjective {
+            bundle: Bundle::new(class),
+            eps: class.eps,
+        }
+    }
+
+    /// Records the answer to `query`; `method` names the caller in errors. Anything but a
+    /// first-order answer is an error.
+    pub fn record(&mut self, method: &str, query: &[f64], answer: &Answer) -> Result<(), Error> {
+        let Answer::FirstOrder(fo) = answer else {
+            return Err(Error::MethodFailed {
+                method: method.into(),
+                reason: "a first-order class needs first-order answers".into(),
+            });
+        };
+        self.bundle.add(query, fo)
+    }
+
+    /// Raises the lower bound by the LP min_P M_t over `polytope` (struct doc).
+    pub fn update_bound(&mut self, polytope: &Polytope) -> Result<(), Error> {
+        let Some(best) = self.bundle.best_value() else {
+            return Ok(());
+        };
+        if polytope.is_known_empty() {
+            self.bundle.raise_lower_bound(best);
+            return Ok(());
+        }
+        let (lower, upper) = polytope.bounding_box();
+        let rows: Vec<(Vec<f64>, f64)> = (0..polytope.num_rows())
+            .map(|i| (polytope.row(i).to_vec(), polytope.offset(i)))
+            .collect();
+        match self.bundle.minimise(lower, upper, &rows)? {
+            ModelMinimum::Optimal { lower_bound, .. } => self.bundle.raise_lower_bound(lower_bound),
+            ModelMinimum::Infeasible => self.bundle.raise_lower_bound(best),
+        }
+        Ok(())
+    }
+
+    /// True once f_best - f_low <= eps.
+    pub fn done(&self) -> bool {
+        self.bundle.gap() <= self.eps
+    }
+
+    /// The best point seen (the box centre before the first answer).
+    pub fn best_point(&self) -> Vec<f64> {
+        self.bundle.best_point()
+    }
+
+    /// The answers, best value and lower bound.
+    pub fn bundle(&self) -> &Bundle {
+        &self.bundle
     }
 }
 

@@ -15,7 +15,9 @@ pub mod centroid;
 pub mod ellipsoid;
 pub mod enumerate;
 pub mod fibre_bisection;
+pub mod kelley;
 pub mod lattice_centerpoint;
+pub mod level;
 pub mod midpoint;
 pub mod mixed_centerpoint;
 pub mod random;
@@ -104,6 +106,19 @@ pub const METHODS: &[MethodInfo] = &[
         deterministic: true,
     },
     MethodInfo {
+        name: "kelley",
+        description: "first-order: cutting-plane method, next query minimises the \
+                      max-of-affine model by LP (Kelley 1960, J. SIAM 8)",
+        deterministic: true,
+    },
+    MethodInfo {
+        name: "level",
+        description: "first-order: level method, projects the last query onto the model's \
+                      level set at the gap midpoint (Lemarechal, Nemirovskii & Nesterov \
+                      1995, Math. Program. 69)",
+        deterministic: true,
+    },
+    MethodInfo {
         name: "enumerate",
         description: "integer: queries the lattice points of the box in lexicographic order, \
                       skipping excluded ones (lattice enumeration; common practice)",
@@ -177,7 +192,6 @@ fn build_first_order(
     class: &crate::class::FirstOrderClass,
     seed: u64,
 ) -> Result<Box<dyn Method + Send>, Error> {
-    let _ = seed;
     match name {
         "subgradient" => {
             return Ok(Box::new(subgradient::Subgradient::new(
@@ -191,6 +205,19 @@ fn build_first_order(
                 subgradient::StepRule::Decaying,
             )))
         }
+        "kelley" => return Ok(Box::new(kelley::Kelley::new(class))),
+        "level" => return Ok(Box::new(level::Level::new(class))),
+        "ellipsoid" => return Ok(Box::new(ellipsoid::Ellipsoid::first_order(class))),
+        "sampled-centroid" => {
+            return Ok(Box::new(sampled_centroid::SampledCentroid::first_order(
+                class, seed,
+            )?))
+        }
+        "analytic-center" => {
+            return Ok(Box::new(analytic_center::AnalyticCenter::first_order(
+                class,
+            )?))
+        }
         _ => {}
     }
     if METHODS.iter().any(|m| m.name == name) {
@@ -203,10 +230,11 @@ fn build_first_order(
 }
 
 /// Methods that need first-order answers (value and subgradient).
-pub const FIRST_ORDER_METHODS: &[&str] = &["subgradient", "subgradient-decaying"];
+pub const FIRST_ORDER_METHODS: &[&str] =
+    &["subgradient", "subgradient-decaying", "kelley", "level"];
 
 /// Cutting-plane methods that also play first-order classes with objective cuts.
-pub const OBJECTIVE_CUT_METHODS: &[&str] = &[];
+pub const OBJECTIVE_CUT_METHODS: &[&str] = &["ellipsoid", "sampled-centroid", "analytic-center"];
 
 /// Whether built-in method `name` supports `class`; `Err` says why not. Only
 /// `centroid` is restricted: its exact centre of gravity exists for d <= 2 only.

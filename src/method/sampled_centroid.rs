@@ -18,11 +18,19 @@
 //! (P far thinner than its bounding box, beyond about 1e-10 of its scale), or a cut
 //! leaves the model unchanged (outward rounding swallowed it), the method stops with
 //! [`crate::error::Error::MethodFailed`] rather than repeat a query or claim anything.
+//!
+//! First-order classes ([`SampledCentroid::first_order`]): each answer becomes its objective cut
+//! `g.y < g.x`, which keeps every point better than the query, so the model P contains
+//! all of them; the method keeps its best point and the lower bound
+//! f* >= min(f_best, min_P M_t) of [`PolytopeObjective`] (an LP over P of the
+//! cutting-plane model, Kelley 1960), and outputs its best point once that gap is at most
+//! eps or once P holds no ball of radius [`volume_radius`] (the volume argument).
 
-use crate::class::{FeasibilityClass, Promise};
+use crate::class::{FeasibilityClass, FirstOrderClass, Promise};
 use crate::error::Error;
 use crate::geometry::hit_and_run::HitAndRun;
 use crate::geometry::polytope::{BallTest, Polytope};
+use crate::method::kelley::{volume_radius, PolytopeObjective};
 use crate::method::{blame, give_up, unchanged, Method};
 use crate::oracle::{Answer, Output, Separation, Step};
 
@@ -41,6 +49,8 @@ pub struct SampledCentroid {
     mean: Vec<f64>,
     fallbacks: u64,
     found: Option<Vec<f64>>,
+    /// First-order classes: objective-cut bookkeeping (best point, lower bound).
+    objective: Option<PolytopeObjective>,
 }
 
 impl SampledCentroid {
@@ -58,7 +68,31 @@ impl SampledCentroid {
             mean: vec![0.0; d],
             fallbacks: 0,
             found: None,
+            objective: None,
         })
+    }
+
+    /// The method on a first-order class (module doc): objective cuts `g.y < g.x`
+    /// ([`Answer::to_separation`]), the best point kept, and a stop with that point once
+    /// the LP bound of [`PolytopeObjective`] leaves a gap of at most eps or the model
+    /// holds no ball of radius [`volume_radius`]; never "empty".
+    pub fn first_order(class: &FirstOrderClass, seed: u64) -> Result<SampledCentroid, Error> {
+        let relaxed = FeasibilityClass::new(
+            class.dim,
+            class.half_width,
+            volume_radius(class),
+            Promise::Nonempty,
+        )?;
+        let mut method = SampledCentroid::new(&relaxed, seed)?;
+        method.objective = Some(PolytopeObjective::new(class));
+        Ok(method)
+    }
+
+    /// First-order classes: the best value seen and the best lower bound on f*; `None`
+    /// on a feasibility class or before the first answer.
+    pub fn bounds(&self) -> Option<(f64, f64)> {
+        let bundle = self.objective.as_ref()?.bundle();
+        Some((bundle.best_value()?, bundle.lower_bound()))
     }
 
     /// Samples N averaged per query (10 d + 20).
@@ -90,6 +124,11 @@ impl Method for SampledCentroid {
         if let Some(point) = self.found.take() {
             return Ok(Step::Output(Output::Point { point }));
         }
+        if let Some(objective) = self.objective.as_ref().filter(|o| o.done()) {
+            return Ok(Step::Output(Output::Point {
+                point: objective.best_point(),
+            }));
+        }
         if query.len() != self.polytope.dim() {
             return Err(Error::MethodFailed {
                 method: NAME.into(),
@@ -106,6 +145,11 @@ impl Method for SampledCentroid {
             .map_err(|e| blame(e, NAME))?
         {
             BallTest::NoBall => {
+                if let Some(objective) = &self.objective {
+                    return Ok(Step::Output(Output::Point {
+                        point: objective.best_point(),
+                    }));
+                }
                 let (lower, upper) = self.polytope.bounding_box();
                 let guess = || {
                     lower
@@ -141,6 +185,9 @@ impl Method for SampledCentroid {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
+        if let Some(objective) = &mut self.objective {
+            objective.record(NAME, query, answer)?;
+        }
         match answer.to_separation(query) {
             Separation::Inside => self.found = Some(query.to_vec()),
             Separation::Cut(cut) => {
@@ -148,6 +195,11 @@ impl Method for SampledCentroid {
                     return Err(unchanged(NAME));
                 }
             }
+        }
+        if let Some(objective) = &mut self.objective {
+            objective
+                .update_bound(&self.polytope)
+                .map_err(|e| blame(e, NAME))?;
         }
         Ok(())
     }
