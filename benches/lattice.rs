@@ -76,8 +76,8 @@ fn lattice_half_answer(c: &mut Criterion) {
     group.finish();
 }
 
-/// minimax on {0..2}^2 with half-integer queries (the {0..3}^2 figure is measured with
-/// `naysayer minimax`, see DEVELOPERS.md: too slow for repeated sampling).
+/// minimax on {0,1}^2 with half-integer queries (the larger classes are timed with
+/// `naysayer minimax`, which prints the search time: too slow for repeated sampling).
 fn minimax_small(c: &mut Criterion) {
     let class = LatticeClass::integer(2, 0, 1).unwrap();
     let mut group = c.benchmark_group("minimax");
@@ -91,5 +91,10 @@ fn minimax_small(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, mixed_corner_answers, lattice_half_answer, minimax_small);
+criterion_group!(
+    benches,
+    mixed_corner_answers,
+    lattice_half_answer,
+    minimax_small
+);
 criterion_main!(benches);

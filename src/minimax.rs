@@ -525,7 +525,10 @@ fn enumerate_traces(points: &[Vec<i64>]) -> Vec<Trace> {
 /// (module docs). Used for exact halfspace depth: the depth of a point z of a set S is
 /// |S| minus the largest trace not containing z.
 pub fn halfspace_traces(points: &[Vec<i64>]) -> Vec<u128> {
-    enumerate_traces(points).into_iter().map(|t| t.mask).collect()
+    enumerate_traces(points)
+        .into_iter()
+        .map(|t| t.mask)
+        .collect()
 }
 
 fn gcd(mut a: i64, mut b: i64) -> i64 {

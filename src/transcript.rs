@@ -18,6 +18,17 @@
 //!    first `T*` answers. A witness is `{"kind":"empty"}` or
 //!    `{"kind":"ball","center":[c_1,...],"radius":rho}`.
 //!
+//! Lattice classes (THEORY.md 4): the class is `{"kind":"lattice","lower":[l_1,...],
+//! "upper":[u_1,...],"cont_dim":d,"half_width":R,"rho":rho}` (integer box
+//! prod {l_i..u_i}, continuous box [-R, R]^d; d = 0 is pure integer feasibility). Query
+//! points have n + d coordinates, integer part first; answers are `inside` or cuts as
+//! above (lifted cuts are dense normals of exact `f64` powers of two with an exact
+//! offset). A lattice witness is `{"kind":"empty"}` or `{"kind":"lattice-hull",
+//! "points":[[...],...],"fibre":F}`: K = conv(points cup fibre), with `F` either `null`
+//! or `{"integer":[v_1,...],"center":[c_1,...],"radius":rho}` (the fibre ball
+//! {v} x B(c, rho); `center` is empty when d = 0). Its claim: its mixed-integer points
+//! are exactly the fibre ball (none when `F` is `null`).
+//!
 //! Numbers: every JSON number is the exact value of the `f64` it parses to (writers use
 //! shortest round-trip formatting). Adversary-computed numbers that no `f64` holds
 //! (offsets, centres) are `{"exact":"p/q","approx":f}` with `approx` the nearest `f64`

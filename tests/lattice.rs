@@ -57,7 +57,12 @@ fn corner_forces_two_to_the_n_on_every_method() {
             assert_eq!(certified, bound, "n = {n}, {method}");
             assert!(used >= bound, "n = {n}, {method}: {used}");
             assert!(
-                matches!(ending, Ending::Output { output: Output::Empty }),
+                matches!(
+                    ending,
+                    Ending::Output {
+                        output: Output::Empty
+                    }
+                ),
                 "n = {n}, {method}: {ending:?}"
             );
             if method == "enumerate" {
@@ -77,12 +82,24 @@ fn mixed_corner_forces_its_count() {
             assert_eq!(class.halvings(), k);
             let bound = (1u64 << n) * (d as u64 * u64::from(k) + 1);
             let (used, certified, _) = play(&class, "mixed-corner", "fibre-bisection", 100_000);
-            assert_eq!((used, certified), (bound, bound), "n = {n}, d = {d}, R/rho = {ratio}");
+            assert_eq!(
+                (used, certified),
+                (bound, bound),
+                "n = {n}, d = {d}, R/rho = {ratio}"
+            );
             let (used, certified, ending) =
                 play(&class, "mixed-corner", "mixed-centerpoint", 100_000);
-            assert!(certified >= bound, "mixed-centerpoint n = {n}, d = {d}: {certified}");
+            assert!(
+                certified >= bound,
+                "mixed-centerpoint n = {n}, d = {d}: {certified}"
+            );
             assert!(used >= bound);
-            assert!(matches!(ending, Ending::Output { output: Output::Empty }));
+            assert!(matches!(
+                ending,
+                Ending::Output {
+                    output: Output::Empty
+                }
+            ));
         }
     }
 }
@@ -95,7 +112,10 @@ fn lattice_half_forces_log_count() {
         let bound = u64::from(63 - size.leading_zeros()) + 1;
         for method in ["enumerate", "lattice-centerpoint", "fibre-bisection"] {
             let (used, certified, _) = play(&class, "lattice-half", method, 100_000);
-            assert!(certified >= bound, "n = {n}, |S| = {size}, {method}: {certified}");
+            assert!(
+                certified >= bound,
+                "n = {n}, |S| = {size}, {method}: {certified}"
+            );
             assert!(used >= certified - 1);
         }
     }
@@ -123,9 +143,18 @@ fn check_answer(alive: &[Vec<i64>], x: &[f64], answer: &Answer, kept: &[Vec<i64>
             .zip(s)
             .map(|(ai, si)| f64_to_rational(*ai) * f64_to_rational(*si as f64))
             .sum();
-        assert_eq!(as_ < b, kept.contains(s), "kept set differs from the cut at {s:?}");
+        assert_eq!(
+            as_ < b,
+            kept.contains(s),
+            "kept set differs from the cut at {s:?}"
+        );
     }
-    assert!(2 * kept.len() + 1 >= alive.len(), "kept {} of {}", kept.len(), alive.len());
+    assert!(
+        2 * kept.len() + 1 >= alive.len(),
+        "kept {} of {}",
+        kept.len(),
+        alive.len()
+    );
 }
 
 fn coordinate() -> impl Strategy<Value = f64> {
@@ -192,18 +221,29 @@ fn spans(points: &[Vec<i64>]) -> bool {
     // with a nonzero determinant.
     let n = points[0].len();
     let m = points.len();
-    let diff = |i: usize, j: usize| -> Vec<i64> { (0..n).map(|c| points[j][c] - points[i][c]).collect() };
+    let diff =
+        |i: usize, j: usize| -> Vec<i64> { (0..n).map(|c| points[j][c] - points[i][c]).collect() };
     match n {
         1 => m >= 2,
-        2 => (1..m).any(|j| (j + 1..m).any(|k| {
-            let (u, v) = (diff(0, j), diff(0, k));
-            u[0] * v[1] - u[1] * v[0] != 0
-        })),
-        _ => (1..m).any(|j| (j + 1..m).any(|k| (k + 1..m).any(|l| {
-            let (u, v, w) = (diff(0, j), diff(0, k), diff(0, l));
-            let c = [u[1] * v[2] - u[2] * v[1], u[2] * v[0] - u[0] * v[2], u[0] * v[1] - u[1] * v[0]];
-            c[0] * w[0] + c[1] * w[1] + c[2] * w[2] != 0
-        }))),
+        2 => (1..m).any(|j| {
+            (j + 1..m).any(|k| {
+                let (u, v) = (diff(0, j), diff(0, k));
+                u[0] * v[1] - u[1] * v[0] != 0
+            })
+        }),
+        _ => (1..m).any(|j| {
+            (j + 1..m).any(|k| {
+                (k + 1..m).any(|l| {
+                    let (u, v, w) = (diff(0, j), diff(0, k), diff(0, l));
+                    let c = [
+                        u[1] * v[2] - u[2] * v[1],
+                        u[2] * v[0] - u[0] * v[2],
+                        u[0] * v[1] - u[1] * v[0],
+                    ];
+                    c[0] * w[0] + c[1] * w[1] + c[2] * w[2] != 0
+                })
+            })
+        }),
     }
 }
 
@@ -227,7 +267,11 @@ fn integer_centerpoint_depth_matches_oertel_wagner_weismantel() {
                 .map(|z| exact_depth(&traces, points.len(), z))
                 .max()
                 .unwrap();
-            assert!(deepest >= need, "n = {n}, |S| = {}: depth {deepest} < {need}", points.len());
+            assert!(
+                deepest >= need,
+                "n = {n}, |S| = {}: depth {deepest} < {need}",
+                points.len()
+            );
             if n == 2 {
                 // The adversary's angular sweep is exact: it matches the traces.
                 for (z, p) in points.iter().enumerate() {
@@ -253,7 +297,10 @@ fn integer_centerpoint_depth_matches_oertel_wagner_weismantel() {
 #[test]
 fn exact_sign_sees_below_rounding() {
     // 1e16 + 1 - 1e16 would be 0 in floating point; the exact side is +1.
-    assert_eq!(side(&[1.0, 1.0], &[1, 0], &[-1e16, 1e16]), std::cmp::Ordering::Greater);
+    assert_eq!(
+        side(&[1.0, 1.0], &[1, 0], &[-1e16, 1e16]),
+        std::cmp::Ordering::Greater
+    );
 }
 
 // ---------------------------------------------------------------------------------
@@ -307,7 +354,9 @@ fn verifier_rejects_tampered_mixed_transcripts() {
     let records = scripted(&class, &[vec![0.0, 0.0], vec![1.0, 0.0]]);
     verify_records(&records).expect("the original is valid");
     let mut tampered = records.clone();
-    let Record::Query(q) = &mut tampered[1] else { unreachable!() };
+    let Record::Query(q) = &mut tampered[1] else {
+        unreachable!()
+    };
     q.answer = Answer::Cut(Cut {
         normal: Normal::axis(1, true),
         offset: naysayer::exact::Exact::Float(-0.5 + 1.0 / 32.0),
@@ -322,10 +371,14 @@ fn verifier_rejects_tampered_mixed_transcripts() {
     verify_records(&records).expect("the original is valid");
     let moved = vec![0.01, 0.9];
     let mut tampered = records.clone();
-    let Record::Query(q) = &mut tampered[2] else { unreachable!() };
+    let Record::Query(q) = &mut tampered[2] else {
+        unreachable!()
+    };
     assert_eq!(q.answer, Answer::Inside);
     q.point = moved.clone();
-    let Record::Final(f) = &mut tampered[3] else { unreachable!() };
+    let Record::Final(f) = &mut tampered[3] else {
+        unreachable!()
+    };
     for w in &mut f.certificate.as_mut().unwrap().instances {
         if let naysayer::instance::Witness::LatticeHull(h) = w {
             h.points = vec![moved.clone()];
@@ -337,8 +390,12 @@ fn verifier_rejects_tampered_mixed_transcripts() {
     // (c) A witness holding an extra mixed-integer point: add (1, 0) as a generating
     // point of the hull with the fibre ball.
     let mut tampered = records.clone();
-    let Record::Final(f) = &mut tampered[3] else { unreachable!() };
-    if let naysayer::instance::Witness::LatticeHull(h) = &mut f.certificate.as_mut().unwrap().instances[1] {
+    let Record::Final(f) = &mut tampered[3] else {
+        unreachable!()
+    };
+    if let naysayer::instance::Witness::LatticeHull(h) =
+        &mut f.certificate.as_mut().unwrap().instances[1]
+    {
         h.points.push(vec![1.0, 0.0]);
     }
     let reason = rejected_at(&tampered, 4);
@@ -351,8 +408,12 @@ fn verifier_rejects_tampered_mixed_transcripts() {
     let records = scripted(&wide, &[vec![0.0, 0.0], vec![0.5, 0.3]]);
     verify_records(&records).expect("the original is valid");
     let mut tampered = records.clone();
-    let Record::Final(f) = &mut tampered[3] else { unreachable!() };
-    if let naysayer::instance::Witness::LatticeHull(h) = &mut f.certificate.as_mut().unwrap().instances[1] {
+    let Record::Final(f) = &mut tampered[3] else {
+        unreachable!()
+    };
+    if let naysayer::instance::Witness::LatticeHull(h) =
+        &mut f.certificate.as_mut().unwrap().instances[1]
+    {
         h.points.push(vec![1.5, 0.0]);
     }
     let reason = rejected_at(&tampered, 4);

@@ -51,7 +51,10 @@ fn values_sit_between_the_adversary_and_the_methods() {
         assert!(value > 63 - size.leading_zeros());
         for method in ["enumerate", "lattice-centerpoint"] {
             let worst = worst_case(n, upper, queries, method);
-            assert!(value <= worst, "n = {n}, upper = {upper}, {method}: {value} > {worst}");
+            assert!(
+                value <= worst,
+                "n = {n}, upper = {upper}, {method}: {value} > {worst}"
+            );
         }
     }
 }

@@ -80,6 +80,10 @@ struct Fibre {
     alive: bool,
 }
 
+/// The state at the longest certified prefix once every fibre has died: the prefix, the
+/// number of declared points then, the last vertex alive and its box before its last cut.
+type Frozen = (u64, usize, u64, Vec<f64>, Vec<f64>);
+
 /// The mixed-corner resisting oracle.
 #[derive(Clone, Debug)]
 pub struct MixedCorner {
@@ -97,7 +101,7 @@ pub struct MixedCorner {
     dead: u64,
     answered: u64,
     /// When the last fibre died: prefix, declared count, vertex, its box before the cut.
-    frozen: Option<(u64, usize, u64, Vec<f64>, Vec<f64>)>,
+    frozen: Option<Frozen>,
 }
 
 /// 2^e as an exact `f64` (normal or subnormal), for -1074 <= e <= 1023.

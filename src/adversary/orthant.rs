@@ -25,14 +25,15 @@
 //! is O(levels * d), independent of the number of earlier queries; the answers are also
 //! kept so that [`Adversary::witnesses`] can run the universal certificate search.
 
+use num_bigint::BigInt;
 use num_rational::BigRational;
-use num_traits::{One, Signed, Zero};
+use num_traits::{One, Signed, ToPrimitive, Zero};
 
 use crate::adversary::{Adversary, Undecided};
 use crate::certificate::universal;
 use crate::class::FirstOrderClass;
 use crate::error::Error;
-use crate::exact::{f64_to_rational, nearest_f64, Exact};
+use crate::exact::{f64_to_rational, nearest_f64, two_diff, Exact};
 use crate::instance::Witnesses;
 use crate::oracle::{Answer, FirstOrderAnswer};
 
@@ -85,26 +86,274 @@ impl OrthantSettings {
 #[derive(Clone, Debug)]
 struct Level {
     center: Vec<BigRational>,
-    center_f: Vec<f64>,
+    /// The nearest `f64` of each centre coordinate, and the nearest `f64` of what is
+    /// left; `center_exact[i]` says that `center_hi[i] + center_lo[i]` is the centre
+    /// exactly.
+    center_hi: Vec<f64>,
+    center_lo: Vec<f64>,
+    center_exact: Vec<bool>,
+    /// Every centre coordinate is exactly an `f64` (`center_lo` all zero), so every
+    /// term is an exact pair (the fast path of [`Orthant::select`]).
+    pairs_exact: bool,
     half_width: BigRational,
     base: BigRational,
-    base_f: f64,
     slope: BigRational,
     slope_f: f64,
+    /// |slope - slope_f|, bounded above.
+    slope_err: f64,
+    /// base - (the current level's base) as a double-double `rel_hi + rel_lo` within
+    /// `rel_err`, refreshed whenever a level opens.
+    rel_hi: f64,
+    rel_lo: f64,
+    rel_err: f64,
+    /// The same parameters as dyadic rationals (always present: see [`Dyadic`]; the
+    /// rational path stays as the fallback).
+    dyadic: Option<DyadicLevel>,
+    /// The answered subgradient entries -slope and +slope.
+    minus_slope: Exact,
+    plus_slope: Exact,
     /// 0 while unfixed, else +1 or -1.
     signs: Vec<i8>,
     fixed: usize,
 }
 
-/// One candidate term: `(rank, level, coordinate)` orders ties.
+#[derive(Clone, Debug)]
+struct DyadicLevel {
+    center: Vec<Dyadic>,
+    base: Dyadic,
+    slope: Dyadic,
+}
+
+impl DyadicLevel {
+    fn new(center: &[BigRational], base: &BigRational, slope: &BigRational) -> Option<Self> {
+        Some(DyadicLevel {
+            center: center
+                .iter()
+                .map(Dyadic::from_rational)
+                .collect::<Option<Vec<_>>>()?,
+            base: Dyadic::from_rational(base)?,
+            slope: Dyadic::from_rational(slope)?,
+        })
+    }
+}
+
+/// The unit roundoff 2^-53.
+const U: f64 = f64::EPSILON / 2.0;
+/// An absolute pad that covers the rounding of subnormal results.
+const TINY: f64 = 1e-300;
+
+impl Level {
+    fn new(
+        center: Vec<BigRational>,
+        half_width: BigRational,
+        base: BigRational,
+        slope: BigRational,
+        d: usize,
+    ) -> Level {
+        let mut center_hi = Vec::with_capacity(d);
+        let mut center_lo = Vec::with_capacity(d);
+        let mut center_exact = Vec::with_capacity(d);
+        for m in &center {
+            let (hi, lo, exact) = split(m);
+            center_hi.push(hi);
+            center_lo.push(lo);
+            center_exact.push(exact);
+        }
+        let slope_f = nearest_f64(&slope);
+        let slope_err = if f64_to_rational(slope_f) == slope {
+            0.0
+        } else {
+            U * slope_f.abs() + TINY
+        };
+        let pairs_exact = center_exact
+            .iter()
+            .zip(&center_lo)
+            .all(|(e, lo)| *e && *lo == 0.0);
+        let dyadic = DyadicLevel::new(&center, &base, &slope);
+        Level {
+            dyadic,
+            minus_slope: Exact::from_rational(-slope.clone()),
+            plus_slope: Exact::from_rational(slope.clone()),
+            pairs_exact,
+            center,
+            center_hi,
+            center_lo,
+            center_exact,
+            half_width,
+            base,
+            slope,
+            slope_f,
+            slope_err,
+            rel_hi: 0.0,
+            rel_lo: 0.0,
+            rel_err: 0.0,
+            signs: vec![0; d],
+            fixed: 0,
+        }
+    }
+
+    /// Sets base - `reference` as a double-double with an error bound.
+    fn set_relative(&mut self, reference: &BigRational) {
+        let (hi, lo, exact) = split(&(&self.base - reference));
+        self.rel_hi = hi;
+        self.rel_lo = lo;
+        self.rel_err = if exact { 0.0 } else { U * lo.abs() + TINY };
+    }
+}
+
+/// `x` as `hi + lo` (each the nearest `f64` of what is left) and whether that is exact.
+fn split(x: &BigRational) -> (f64, f64, bool) {
+    let hi = nearest_f64(x);
+    let rest = x - f64_to_rational(hi);
+    if rest.is_zero() {
+        return (hi, 0.0, true);
+    }
+    let lo = nearest_f64(&rest);
+    let exact = f64_to_rational(lo) == rest;
+    (hi, lo, exact)
+}
+
+/// One candidate term c_j + lambda_j t with t = sign (m_{j,i} - y_i): `(rank, level,
+/// coordinate)` orders ties. `t` is approximated by `t_approx` within `t_err`; when
+/// `pair` is set, t = pair.0 + pair.1 exactly with pair.0 = fl(t), so pairs compare
+/// exactly (rounding to nearest is monotone).
 #[derive(Clone, Copy, Debug)]
 struct Candidate {
     rank: u8,
     level: usize,
     coordinate: usize,
     sign: i8,
-    approx: f64,
-    error: f64,
+    t_approx: f64,
+    t_err: f64,
+    pair: Option<(f64, f64)>,
+}
+
+impl Candidate {
+    fn key(&self) -> (u8, usize, usize) {
+        (self.rank, self.level, self.coordinate)
+    }
+}
+
+/// Exact order of two exact pairs (hi, lo) with hi = fl(hi + lo).
+fn cmp_pairs(a: (f64, f64), b: (f64, f64)) -> std::cmp::Ordering {
+    a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1))
+}
+
+/// An exact dyadic rational `mant * 2^exp`. Every number of the construction is one
+/// (queries are `f64`, and the level parameters come from `f64` settings by +, -, *
+/// and halving), and dyadic arithmetic needs no gcd, unlike [`BigRational`].
+#[derive(Clone, Debug, PartialEq)]
+struct Dyadic {
+    mant: BigInt,
+    exp: i64,
+}
+
+impl Dyadic {
+    /// The exact value of a finite `f64`.
+    fn from_f64(x: f64) -> Dyadic {
+        let bits = x.to_bits();
+        let negative = bits >> 63 == 1;
+        let biased = ((bits >> 52) & 0x7ff) as i64;
+        let fraction = bits & ((1u64 << 52) - 1);
+        let (m, e) = if biased == 0 {
+            (fraction, -1074)
+        } else {
+            (fraction | (1u64 << 52), biased - 1075)
+        };
+        let mant = BigInt::from(m);
+        Dyadic {
+            mant: if negative { -mant } else { mant },
+            exp: e,
+        }
+    }
+
+    /// The value of a rational whose denominator is a power of two; `None` otherwise.
+    fn from_rational(r: &BigRational) -> Option<Dyadic> {
+        let denom = r.denom();
+        let k = denom.trailing_zeros().unwrap_or(0);
+        if *denom != (BigInt::one() << k) {
+            return None;
+        }
+        Some(Dyadic {
+            mant: r.numer().clone(),
+            exp: -i64::try_from(k).ok()?,
+        })
+    }
+
+    fn align(&self, other: &Dyadic) -> (BigInt, BigInt, i64) {
+        let exp = self.exp.min(other.exp);
+        // The shifts are bounded by the exponent range of the inputs (f64 and the
+        // level parameters), so they fit in usize.
+        let a = &self.mant << ((self.exp - exp) as usize);
+        let b = &other.mant << ((other.exp - exp) as usize);
+        (a, b, exp)
+    }
+
+    fn sub(&self, other: &Dyadic) -> Dyadic {
+        let (a, b, exp) = self.align(other);
+        Dyadic { mant: a - b, exp }
+    }
+
+    fn add(&self, other: &Dyadic) -> Dyadic {
+        let (a, b, exp) = self.align(other);
+        Dyadic { mant: a + b, exp }
+    }
+
+    fn mul(&self, other: &Dyadic) -> Dyadic {
+        Dyadic {
+            mant: &self.mant * &other.mant,
+            exp: self.exp + other.exp,
+        }
+    }
+
+    fn neg(self) -> Dyadic {
+        Dyadic {
+            mant: -self.mant,
+            exp: self.exp,
+        }
+    }
+
+    fn cmp(&self, other: &Dyadic) -> std::cmp::Ordering {
+        let (a, b, _) = self.align(other);
+        a.cmp(&b)
+    }
+
+    /// The exact value as an [`Exact`]: an `f64` when one holds it, else a reduced
+    /// rational (odd numerator over a power of two, or an integer).
+    fn to_exact(&self) -> Exact {
+        if self.mant.is_zero() {
+            return Exact::ZERO;
+        }
+        let tz = self.mant.trailing_zeros().unwrap_or(0);
+        let mant = &self.mant >> tz;
+        let exp = self.exp + i64::try_from(tz).unwrap_or(0);
+        let bits = mant.bits();
+        // mant * 2^exp with |mant| < 2^53 is an f64 iff exp >= -1074 and
+        // exp + bits <= 1024 (its last bit is then at or above its ulp).
+        if bits <= 53 && exp >= -1074 && exp + bits as i64 <= 1024 {
+            if let Some(m) = mant.to_i64() {
+                let m = m as f64; // exact: |m| < 2^53
+                let value = if exp < -1022 {
+                    // Two exact steps: the intermediate m 2^-1022 is normal.
+                    m * f64::from_bits(1u64 << 52) * pow2(exp + 1022)
+                } else {
+                    m * pow2(exp)
+                };
+                return Exact::Float(value);
+            }
+        }
+        let ratio = if exp >= 0 {
+            BigRational::from_integer(mant << (exp as usize))
+        } else {
+            BigRational::new_raw(mant, BigInt::one() << ((-exp) as usize))
+        };
+        Exact::Ratio(Box::new(ratio))
+    }
+}
+
+/// 2^e for -1022 <= e <= 1023, exactly.
+fn pow2(e: i64) -> f64 {
+    f64::from_bits(((e + 1023) as u64) << 52)
 }
 
 /// The orthant-level resisting oracle.
@@ -114,6 +363,8 @@ pub struct Orthant {
     settings: OrthantSettings,
     levels: Vec<Level>,
     answers: Vec<universal::Exchange>,
+    /// Scratch buffers reused by every answer.
+    group: Vec<Candidate>,
     candidates: Vec<Candidate>,
 }
 
@@ -122,22 +373,19 @@ impl Orthant {
     pub fn new(class: &FirstOrderClass, settings: OrthantSettings) -> Result<Orthant, Error> {
         settings.validate()?;
         let d = class.dim;
-        let level = Level {
-            center: vec![BigRational::zero(); d],
-            center_f: vec![0.0; d],
-            half_width: f64_to_rational(class.half_width),
-            base: BigRational::zero(),
-            base_f: 0.0,
-            slope: f64_to_rational(class.lipschitz),
-            slope_f: class.lipschitz,
-            signs: vec![0; d],
-            fixed: 0,
-        };
+        let level = Level::new(
+            vec![BigRational::zero(); d],
+            f64_to_rational(class.half_width),
+            BigRational::zero(),
+            f64_to_rational(class.lipschitz),
+            d,
+        );
         Ok(Orthant {
             class: class.clone(),
             settings,
             levels: vec![level],
             answers: Vec::new(),
+            group: Vec::new(),
             candidates: Vec::new(),
         })
     }
@@ -170,59 +418,261 @@ impl Orthant {
             .map(|(m, s)| if *s > 0 { m + &step } else { m - &step })
             .collect();
         let base = &current.base - (&current.slope * &beta * h + &two * &slope_next * &h_next);
-        let level = Level {
-            center_f: center.iter().map(nearest_f64).collect(),
-            center,
-            half_width: h_next,
-            base_f: nearest_f64(&base),
-            base,
-            slope_f: nearest_f64(&slope_next),
-            slope: slope_next,
-            signs: vec![0; self.class.dim],
-            fixed: 0,
-        };
+        let level = Level::new(center, h_next, base, slope_next, self.class.dim);
         self.levels.push(level);
-    }
-
-    /// Collects every candidate with its f64 value and a rigorous error bound.
-    fn collect_candidates(&mut self, y: &[f64]) {
-        self.candidates.clear();
-        let current = self.levels.len() - 1;
-        const U: f64 = f64::EPSILON;
-        for (j, level) in self.levels.iter().enumerate() {
-            // Completed levels: only the best coordinate in f64 plus its near-ties matter,
-            // but the f64 filter below handles ties; keep the best few per level.
-            for (i, &yi) in y.iter().enumerate() {
-                let diff = level.center_f[i] - yi;
-                let (rank, sign, term) = match (j == current, level.signs[i]) {
-                    (false, s) => (0u8, s, f64::from(s) * diff),
-                    (true, 0) => {
-                        let s = if diff >= 0.0 { 1 } else { -1 };
-                        (2u8, s, diff.abs())
-                    }
-                    (true, s) => (1u8, s, f64::from(s) * diff),
-                };
-                let approx = level.base_f + level.slope_f * term;
-                let magnitude =
-                    level.base_f.abs() + level.slope_f.abs() * (level.center_f[i].abs() + yi.abs());
-                let error = 8.0 * U * magnitude + 1e-300;
-                self.candidates.push(Candidate {
-                    rank,
-                    level: j,
-                    coordinate: i,
-                    sign,
-                    approx,
-                    error,
-                });
-            }
+        let reference = self.levels.last().expect("just pushed").base.clone();
+        for level in &mut self.levels {
+            level.set_relative(&reference);
         }
     }
 
+    /// The term t = s (m_i - y_i) of level `j`, coordinate `i`, with `sign` s (0: the
+    /// sign of m_i - y_i, +1 on a tie), as a candidate of rank `rank`.
+    fn term(&self, rank: u8, j: usize, i: usize, sign: i8, yi: f64) -> Candidate {
+        let level = &self.levels[j];
+        let (m_hi, m_lo) = (level.center_hi[i], level.center_lo[i]);
+        let (a, b) = two_diff(m_hi, yi);
+        let finite = a.is_finite() && b.is_finite();
+        let exact_pair = finite && m_lo == 0.0 && level.center_exact[i];
+        let sign = if sign != 0 {
+            sign
+        } else if !finite || (a == 0.0 && !(m_lo == 0.0 && level.center_exact[i])) {
+            // Rare: decide the sign of m_i - y_i exactly.
+            if (&level.center[i] - f64_to_rational(yi)).is_negative() {
+                -1
+            } else {
+                1
+            }
+        } else if a != 0.0 {
+            // y != fl(m) and fl(m) is the nearest f64 to m, so m - y has the sign of
+            // fl(m) - y.
+            if a > 0.0 {
+                1
+            } else {
+                -1
+            }
+        } else if m_lo < 0.0 {
+            -1
+        } else {
+            1
+        };
+        let s = f64::from(sign);
+        let (t_approx, t_err, pair) = if exact_pair {
+            (s * a, b.abs(), Some((s * a, s * b)))
+        } else if finite {
+            let inner = b + m_lo;
+            let approx = a + inner;
+            let represent = if level.center_exact[i] {
+                0.0
+            } else {
+                U * m_lo.abs() + TINY
+            };
+            let err = 2.0 * (U * (inner.abs() + approx.abs()) + represent) + TINY;
+            (s * approx, err, None)
+        } else {
+            (0.0, f64::INFINITY, None)
+        };
+        Candidate {
+            rank,
+            level: j,
+            coordinate: i,
+            sign,
+            t_approx,
+            t_err,
+            pair,
+        }
+    }
+
+    /// Reduces `self.group` (candidates of one level and rank) to the ones that may
+    /// hold its largest term, exactly to one when every survivor has an exact pair, and
+    /// appends them to `self.candidates`.
+    fn flush_group(&mut self) {
+        if self.group.is_empty() {
+            return;
+        }
+        let lower = self
+            .group
+            .iter()
+            .map(|c| c.t_approx - c.t_err)
+            .fold(f64::NEG_INFINITY, f64::max);
+        let survivors = self
+            .group
+            .iter()
+            .filter(|c| c.t_approx + c.t_err >= lower || c.t_err.is_nan());
+        if self.group.iter().all(|c| c.pair.is_some()) {
+            // Largest pair; the lowest coordinate on a tie (the group is in order).
+            let mut best: Option<Candidate> = None;
+            for c in survivors {
+                let better = match &best {
+                    None => true,
+                    Some(b) => {
+                        cmp_pairs(c.pair.expect("checked"), b.pair.expect("checked"))
+                            == std::cmp::Ordering::Greater
+                    }
+                };
+                if better {
+                    best = Some(*c);
+                }
+            }
+            self.candidates.extend(best);
+        } else {
+            self.candidates.extend(survivors.copied());
+        }
+        self.group.clear();
+    }
+
+    /// The exact value c_j + lambda_j s (m_i - y_i) of a candidate in dyadic form.
+    fn dyadic_value(&self, c: &Candidate, y: &[f64]) -> Option<Dyadic> {
+        let level = self.levels[c.level].dyadic.as_ref()?;
+        let diff = level.center[c.coordinate].sub(&Dyadic::from_f64(y[c.coordinate]));
+        let term = if c.sign > 0 { diff } else { diff.neg() };
+        Some(level.base.add(&level.slope.mul(&term)))
+    }
+
+    /// Exact order of two candidates' values.
+    fn cmp_exact(&self, a: &Candidate, b: &Candidate, y: &[f64]) -> std::cmp::Ordering {
+        match (self.dyadic_value(a, y), self.dyadic_value(b, y)) {
+            (Some(va), Some(vb)) => va.cmp(&vb),
+            _ => self.exact_value(a, y).cmp(&self.exact_value(b, y)),
+        }
+    }
+
+    /// The exact value c_j + lambda_j s (m_i - y_i) of a candidate.
     fn exact_value(&self, c: &Candidate, y: &[f64]) -> BigRational {
         let level = &self.levels[c.level];
         let diff = &level.center[c.coordinate] - f64_to_rational(y[c.coordinate]);
         let term = if c.sign > 0 { diff } else { -diff };
         &level.base + &level.slope * term
+    }
+
+    /// The candidate's value minus the current base, in `f64`, and an error bound.
+    fn relative_value(&self, c: &Candidate) -> (f64, f64) {
+        let level = &self.levels[c.level];
+        let p = level.slope_f * c.t_approx;
+        let inner = level.rel_lo + p;
+        let approx = level.rel_hi + inner;
+        let p_err = level.slope_f * c.t_err * (1.0 + U)
+            + level.slope_err * (c.t_approx.abs() + c.t_err)
+            + U * p.abs();
+        let err = 2.0 * (level.rel_err + p_err + U * (inner.abs() + approx.abs())) + TINY;
+        if approx.is_finite() && err.is_finite() {
+            (approx, err)
+        } else {
+            (0.0, f64::INFINITY)
+        }
+    }
+
+    /// Fast path for a level whose centre is exactly `f64`: the largest term of rank
+    /// `rank` (0 completed, 1 fixed, 2 unfixed), decided exactly by pairs, the lowest
+    /// coordinate on a tie; `Err(())` when a difference overflows (then the general path
+    /// decides), `Ok(None)` when the level has no term of that rank.
+    fn scan_exact(&self, rank: u8, j: usize, y: &[f64]) -> Result<Option<Candidate>, ()> {
+        let level = &self.levels[j];
+        let mut best: Option<(f64, f64, usize, i8)> = None;
+        for (i, (&m, &yi)) in level.center_hi.iter().zip(y).enumerate() {
+            let fixed = level.signs[i];
+            let sign = match rank {
+                0 => fixed,
+                1 if fixed != 0 => fixed,
+                2 if fixed == 0 => 0,
+                _ => continue,
+            };
+            let (a, b) = two_diff(m, yi);
+            if !(a.is_finite() && b.is_finite()) {
+                return Err(());
+            }
+            // Unfixed: the sign of m - y (+1 on a tie); a = fl(m - y) has that sign.
+            let sign = if sign != 0 {
+                sign
+            } else if a < 0.0 {
+                -1
+            } else {
+                1
+            };
+            let (ta, tb) = if sign > 0 { (a, b) } else { (-a, -b) };
+            let better = match best {
+                None => true,
+                Some((ba, bb, _, _)) => cmp_pairs((ta, tb), (ba, bb)).is_gt(),
+            };
+            if better {
+                best = Some((ta, tb, i, sign));
+            }
+        }
+        Ok(best.map(|(ta, tb, i, sign)| Candidate {
+            rank,
+            level: j,
+            coordinate: i,
+            sign,
+            t_approx: ta,
+            t_err: tb.abs(),
+            pair: Some((ta, tb)),
+        }))
+    }
+
+    /// The winning candidate for query y: the largest value, exactly, ties by key.
+    fn select(&mut self, y: &[f64]) -> Candidate {
+        self.candidates.clear();
+        let current = self.levels.len() - 1;
+        for j in 0..self.levels.len() {
+            let ranks: &[u8] = if j < current { &[0] } else { &[1, 2] };
+            for &rank in ranks {
+                if self.levels[j].pairs_exact {
+                    if let Ok(best) = self.scan_exact(rank, j, y) {
+                        self.candidates.extend(best);
+                        continue;
+                    }
+                }
+                for (i, &yi) in y.iter().enumerate() {
+                    let sign = self.levels[j].signs[i];
+                    let wanted = match rank {
+                        0 => true,
+                        1 => sign != 0,
+                        _ => sign == 0,
+                    };
+                    if wanted {
+                        let c = self.term(rank, j, i, sign, yi);
+                        self.group.push(c);
+                    }
+                }
+                self.flush_group();
+            }
+        }
+        // Across groups: the f64 filter, then exact comparisons among the contenders.
+        let values: Vec<(f64, f64)> = self
+            .candidates
+            .iter()
+            .map(|c| self.relative_value(c))
+            .collect();
+        let lower = values
+            .iter()
+            .map(|(v, e)| v - e)
+            .fold(f64::NEG_INFINITY, f64::max);
+        let contenders: Vec<Candidate> = self
+            .candidates
+            .iter()
+            .zip(&values)
+            .filter(|(_, (v, e))| v + e >= lower || e.is_infinite())
+            .map(|(c, _)| *c)
+            .collect();
+        if contenders.len() == 1 {
+            return contenders[0];
+        }
+        let mut best: Option<Candidate> = None;
+        for c in contenders {
+            let Some(b) = best else {
+                best = Some(c);
+                continue;
+            };
+            let order = match (c.level == b.level, c.pair, b.pair) {
+                // Same level: same base and slope, so the terms decide.
+                (true, Some(pc), Some(pb)) => cmp_pairs(pc, pb),
+                _ => self.cmp_exact(&c, &b, y),
+            };
+            if order.is_gt() || (order.is_eq() && c.key() < b.key()) {
+                best = Some(c);
+            }
+        }
+        best.expect("at least one candidate")
     }
 }
 
@@ -232,66 +682,25 @@ impl Adversary for Orthant {
     }
 
     fn answer(&mut self, y: &[f64]) -> Answer {
-        self.collect_candidates(y);
-        // The largest lower end of the intervals; every candidate whose upper end reaches
-        // it may be the maximum.
-        let floor = self
-            .candidates
-            .iter()
-            .map(|c| c.approx - c.error)
-            .fold(f64::NEG_INFINITY, f64::max);
-        let mut contenders: Vec<Candidate> = self
-            .candidates
-            .iter()
-            .filter(|c| c.approx + c.error >= floor)
-            .copied()
-            .collect();
-        // Sign ties (m_i = y_i exactly) must follow the documented rule: +1.
-        for c in &mut contenders {
-            if c.rank == 2 {
-                let level = &self.levels[c.level];
-                let diff = &level.center[c.coordinate] - f64_to_rational(y[c.coordinate]);
-                c.sign = if diff.is_negative() { -1 } else { 1 };
-            }
-        }
-        let key = |c: &Candidate| (c.rank, c.level, c.coordinate);
-        let winner = if contenders.len() == 1 {
-            contenders[0]
-        } else {
-            let mut best: Option<(BigRational, Candidate)> = None;
-            for c in contenders {
-                let value = self.exact_value(&c, y);
-                best = match best {
-                    None => Some((value, c)),
-                    Some((bv, bc)) => {
-                        if value > bv || (value == bv && key(&c) < key(&bc)) {
-                            Some((value, c))
-                        } else {
-                            Some((bv, bc))
-                        }
-                    }
-                };
-            }
-            best.expect("at least one candidate").1
+        let winner = self.select(y);
+        let value = match self.dyadic_value(&winner, y) {
+            Some(v) => v.to_exact(),
+            None => Exact::from_rational(self.exact_value(&winner, y)),
         };
-        let value = self.exact_value(&winner, y);
         let current = self.levels.len() - 1;
         if winner.rank == 2 {
             let level = &mut self.levels[current];
             level.signs[winner.coordinate] = winner.sign;
             level.fixed += 1;
         }
-        let slope = &self.levels[winner.level].slope;
+        let level = &self.levels[winner.level];
         let mut subgradient = vec![Exact::ZERO; y.len()];
-        subgradient[winner.coordinate] = Exact::from_rational(if winner.sign > 0 {
-            -slope.clone()
+        subgradient[winner.coordinate] = if winner.sign > 0 {
+            level.minus_slope.clone()
         } else {
-            slope.clone()
-        });
-        let answer = FirstOrderAnswer {
-            value: Exact::from_rational(value),
-            subgradient,
+            level.plus_slope.clone()
         };
+        let answer = FirstOrderAnswer { value, subgradient };
         if self.levels[current].fixed == self.class.dim {
             self.open_next_level();
         }

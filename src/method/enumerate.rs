@@ -36,8 +36,33 @@ fn dot_fast(cut: &Cut, p: &[f64]) -> Option<f64> {
 
 /// True when the strict cut excludes the point p (`a.p >= b`), decided exactly.
 pub(crate) fn cut_excludes(cut: &Cut, p: &[f64]) -> bool {
+    cut_excludes_view(cut, cut.offset.to_f64(), p)
+}
+
+/// [`cut_excludes`] with the offset's nearest `f64` computed once by the caller.
+pub(crate) fn cut_excludes_view(cut: &Cut, b: f64, p: &[f64]) -> bool {
     if let (Some(v), crate::exact::Exact::Float(b)) = (dot_fast(cut, p), &cut.offset) {
         return v >= *b;
+    }
+    // Filter: the floating sum is within (len + 2) 2^-52 sum|a_i p_i| of a.p, and the
+    // offset's f64 view within 2^-52 |b| of b; decide exactly only inside that margin.
+    let mut approx = 0.0f64;
+    let mut magnitude = 0.0f64;
+    for (i, pi) in p.iter().enumerate() {
+        let t = cut.normal.get(i) * pi;
+        approx += t;
+        magnitude += t.abs();
+    }
+    let margin = (p.len() as f64 + 2.0) * f64::EPSILON * magnitude
+        + f64::EPSILON * b.abs()
+        + 4.0 * f64::MIN_POSITIVE;
+    if approx.is_finite() && margin.is_finite() {
+        if approx - b > margin {
+            return true;
+        }
+        if b - approx > margin {
+            return false;
+        }
     }
     let x: Vec<BigRational> = p.iter().map(|v| f64_to_rational(*v)).collect();
     cut.normal.dot_exact(&x) >= cut.offset.to_rational()

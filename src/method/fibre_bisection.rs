@@ -26,6 +26,19 @@ use crate::method::enumerate::{cut_excludes, lattice_of};
 use crate::method::Method;
 use crate::oracle::{Answer, Cut, Normal, Output, Separation, Step};
 
+/// The neighbouring `f64` of a finite `t` in the direction of `toward` (+-infinity).
+fn step_toward(t: f64, toward: f64) -> f64 {
+    if t == 0.0 {
+        return f64::from_bits(1).copysign(toward);
+    }
+    let bits = t.to_bits();
+    if (t > 0.0) == (toward > 0.0) {
+        f64::from_bits(bits + 1)
+    } else {
+        f64::from_bits(bits - 1)
+    }
+}
+
 /// The restriction of a cut to the fibre x = z, applied to a box model of that fibre;
 /// returns false when the cut drops the whole fibre.
 pub(crate) fn restrict(cut: &Cut, z: &[f64], model: &mut BoxModel) -> bool {
@@ -48,13 +61,13 @@ pub(crate) fn restrict(cut: &Cut, z: &[f64], model: &mut BoxModel) -> bool {
             if a_y[j] > 0.0 {
                 // y_j < bound: an upper bound, rounded up.
                 if f64_to_rational(t) < bound {
-                    t = t.next_up();
+                    t = step_toward(t, f64::INFINITY);
                 }
                 model.upper[j] = model.upper[j].min(t);
             } else {
                 // y_j > bound: a lower bound, rounded down.
                 if f64_to_rational(t) > bound {
-                    t = t.next_down();
+                    t = step_toward(t, f64::NEG_INFINITY);
                 }
                 model.lower[j] = model.lower[j].max(t);
             }

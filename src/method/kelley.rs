@@ -152,7 +152,11 @@ impl Bundle {
         let Some(best) = self.best_value() else {
             return;
         };
-        let bound = if bound.is_nan() { f64::NEG_INFINITY } else { bound };
+        let bound = if bound.is_nan() {
+            f64::NEG_INFINITY
+        } else {
+            bound
+        };
         self.lower = self.lower.max(bound.min(best));
     }
 
@@ -411,7 +415,7 @@ impl Method for Kelley {
         match self.bundle.minimise_over_box()? {
             ModelMinimum::Optimal { point, lower_bound } => {
                 self.bundle.raise_lower_bound(lower_bound);
-                if self.bundle.points().iter().any(|p| *p == point) {
+                if self.bundle.points().contains(&point) {
                     self.done = true;
                 }
                 self.next_point = point;

@@ -151,7 +151,7 @@ impl Level {
     pub fn level(&self) -> Option<f64> {
         let up = self.bundle.best_value()?;
         let low = self.bundle.lower_bound();
-        low.is_finite().then(|| low + LAMBDA * (up - low))
+        low.is_finite().then_some(low + LAMBDA * (up - low))
     }
 }
 
@@ -182,9 +182,7 @@ impl Method for Level {
         };
         self.bundle.add(query, fo)?;
         match self.bundle.minimise_over_box()? {
-            ModelMinimum::Optimal { lower_bound, .. } => {
-                self.bundle.raise_lower_bound(lower_bound)
-            }
+            ModelMinimum::Optimal { lower_bound, .. } => self.bundle.raise_lower_bound(lower_bound),
             ModelMinimum::Infeasible => {
                 return Err(fail(
                     "the model LP over the box reported infeasibility".into(),

@@ -23,7 +23,7 @@ use rand_chacha::ChaCha8Rng;
 use crate::class::LatticeClass;
 use crate::error::Error;
 use crate::geometry::BoxModel;
-use crate::method::enumerate::{cut_excludes, lattice_of};
+use crate::method::enumerate::{cut_excludes, cut_excludes_view, lattice_of};
 use crate::method::fibre_bisection::restrict;
 use crate::method::Method;
 use crate::oracle::{Answer, Cut, Output, Separation, Step};
@@ -42,7 +42,8 @@ pub struct MixedCenterpoint {
     rho: f64,
     /// Per lattice point: its box model, `None` once ruled out.
     models: Vec<Option<BoxModel>>,
-    cuts: Vec<Cut>,
+    /// Cuts with their offsets' nearest `f64`.
+    cuts: Vec<(Cut, f64)>,
     rng: ChaCha8Rng,
     found: Option<Vec<f64>>,
 }
@@ -106,7 +107,11 @@ impl MixedCenterpoint {
                     let t: f64 = self.rng.random();
                     point.push((l + t * (u - l)).clamp(*l, *u));
                 }
-                if !self.cuts.iter().any(|c| cut_excludes(c, &point)) {
+                if !self
+                    .cuts
+                    .iter()
+                    .any(|(c, b)| cut_excludes_view(c, *b, &point))
+                {
                     out.push(point);
                 }
             }
@@ -187,7 +192,8 @@ impl Method for MixedCenterpoint {
                         self.models[k] = None;
                     }
                 }
-                self.cuts.push(cut);
+                let view = cut.offset.to_f64();
+                self.cuts.push((cut, view));
             }
         }
         Ok(())
