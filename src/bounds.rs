@@ -151,6 +151,41 @@ pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
     ]
 }
 
+/// Every bound line for a first-order class (THEORY.md 2, 5).
+pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
+    let diameter = class.half_width * (class.dim as f64).sqrt();
+    let ratio = class.lipschitz * diameter / class.eps;
+    let subgradient = (ratio * ratio).ceil().min(u64::MAX as f64) as u64;
+    vec![
+        Bound {
+            label: "lower bound (information complexity)",
+            side: Side::Lower,
+            queries: None,
+            formula: "Theta(d log(L R / eps)) for d large enough relative to log(LR/eps); \
+                      constant unspecified (measured runs are certified per game)",
+            status: Status::Guide,
+            source: "Nemirovski & Yudin 1983; randomized methods: Braun, Guzman & Pokutta, \
+                     IEEE Trans. Inf. Theory 63(7), 2017",
+        },
+        Bound {
+            label: "centre of gravity",
+            side: Side::Upper,
+            queries: Some(first_order_centre_of_gravity_upper_bound(class)),
+            formula: "ceil(d ln(2 L R sqrt(d) / eps) / 0.458675), l2 norm",
+            status: Status::Proven,
+            source: "Grunbaum 1960; Bubeck 2015, Thm 2.1 (derived, THEORY.md 5)",
+        },
+        Bound {
+            label: "subgradient method",
+            side: Side::Upper,
+            queries: Some(subgradient),
+            formula: "ceil((L D / eps)^2), D = R sqrt(d), step D / (L sqrt(N+1)), l2 norm",
+            status: Status::Proven,
+            source: "Nesterov 2004, sec. 3.2.3 (from memory)",
+        },
+    ]
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -188,39 +223,4 @@ mod tests {
             }
         }
     }
-}
-
-/// Every bound line for a first-order class (THEORY.md 2, 5).
-pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
-    let diameter = class.half_width * (class.dim as f64).sqrt();
-    let ratio = class.lipschitz * diameter / class.eps;
-    let subgradient = (ratio * ratio).ceil().min(u64::MAX as f64) as u64;
-    vec![
-        Bound {
-            label: "lower bound (information complexity)",
-            side: Side::Lower,
-            queries: None,
-            formula: "Theta(d log(L R / eps)) for d large enough relative to log(LR/eps); \
-                      constant unspecified (measured runs are certified per game)",
-            status: Status::Guide,
-            source: "Nemirovski & Yudin 1983; randomized methods: Braun, Guzman & Pokutta, \
-                     IEEE Trans. Inf. Theory 63(7), 2017",
-        },
-        Bound {
-            label: "centre of gravity",
-            side: Side::Upper,
-            queries: Some(first_order_centre_of_gravity_upper_bound(class)),
-            formula: "ceil(d ln(2 L R sqrt(d) / eps) / 0.458675), l2 norm",
-            status: Status::Proven,
-            source: "Grunbaum 1960; Bubeck 2015, Thm 2.1 (derived, THEORY.md 5)",
-        },
-        Bound {
-            label: "subgradient method",
-            side: Side::Upper,
-            queries: Some(subgradient),
-            formula: "ceil((L D / eps)^2), D = R sqrt(d), step D / (L sqrt(N+1)), l2 norm",
-            status: Status::Proven,
-            source: "Nesterov 2004, sec. 3.2.3 (from memory)",
-        },
-    ]
 }

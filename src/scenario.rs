@@ -292,12 +292,8 @@ impl Scenario {
             };
             Family::FirstOrder { lipschitz, norm }
         } else {
-            for key in [&raw.class.lipschitz.as_ref().map(|l| l.span())] {
-                if let Some(span) = key {
-                    return Err(
-                        at.error_at(span.start, "lipschitz belongs to the first-order family")
-                    );
-                }
+            if let Some(l) = &raw.class.lipschitz {
+                return Err(at.error(l, "lipschitz belongs to the first-order family"));
             }
             if let Some(e) = &raw.class.eps {
                 return Err(at.error(e, "the feasibility family takes rho, not eps"));

@@ -234,9 +234,11 @@ impl Candidate {
     }
 }
 
-/// Exact order of two exact pairs (hi, lo) with hi = fl(hi + lo).
+/// Exact order of two exact pairs (hi, lo) with hi = fl(hi + lo), all finite (-0 and
+/// +0 are equal).
 fn cmp_pairs(a: (f64, f64), b: (f64, f64)) -> std::cmp::Ordering {
-    a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1))
+    let cmp = |x: f64, y: f64| x.partial_cmp(&y).unwrap_or(std::cmp::Ordering::Equal);
+    cmp(a.0, b.0).then(cmp(a.1, b.1))
 }
 
 /// An exact dyadic rational `mant * 2^exp`. Every number of the construction is one

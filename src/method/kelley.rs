@@ -44,7 +44,8 @@ pub const LP_MARGIN: f64 = 1e-8;
 pub struct Bundle {
     dim: usize,
     half_width: f64,
-    /// L R d (or L R d sqrt d for the l1 class): the scale of the LP margin.
+    /// L R d, a bound on |g . y| over X in every norm the class allows: the scale of the
+    /// LP margin.
     scale: f64,
     points: Vec<Vec<f64>>,
     values: Vec<f64>,
@@ -53,7 +54,7 @@ pub struct Bundle {
     lower: f64,
 }
 
-/// The minimum of the cutting-plane model over a polytope.
+/// The minimum of the cutting-plane model of Kelley (1960) over a polytope.
 #[derive(Clone, Debug, PartialEq)]
 pub enum ModelMinimum {
     /// A minimiser (as the LP solver found it, clamped into the box) and a lower bound on
@@ -71,17 +72,13 @@ pub enum ModelMinimum {
 impl Bundle {
     /// An empty bundle for `class`.
     pub fn new(class: &FirstOrderClass) -> Bundle {
+        // |g . y| <= ||g||_* ||y|| <= L R d on X whatever the norm (l2: L R sqrt d; l_inf
+        // class, ||g||_1 <= L: L R; l1 class, ||g||_inf <= L: L R d; derived).
         let d = class.dim as f64;
-        // |g_i| <= L in every norm the class allows except l1, where ||g||_inf <= L and
-        // ||g||_1 <= L d; L R d bounds |g . y| on the box in both cases.
-        let norm_factor = match class.norm {
-            LipschitzNorm::L1 => d,
-            LipschitzNorm::L2 | LipschitzNorm::Linf => 1.0,
-        };
         Bundle {
             dim: class.dim,
             half_width: class.half_width,
-            scale: class.lipschitz * class.half_width * d * norm_factor,
+            scale: class.lipschitz * class.half_width * d,
             points: Vec::new(),
             values: Vec::new(),
             gradients: Vec::new(),
@@ -359,7 +356,7 @@ impl PolytopeObjective {
     }
 }
 
-/// Kelley's cutting-plane method (module doc).
+/// Kelley's cutting-plane method (Kelley 1960, J. SIAM 8; module doc).
 #[derive(Clone, Debug)]
 pub struct Kelley {
     bundle: Bundle,

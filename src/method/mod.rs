@@ -163,6 +163,14 @@ pub fn build(name: &str, class: &Class, seed: u64) -> Result<Box<dyn Method + Se
     }
 }
 
+/// The built-in methods of the lattice classes (THEORY.md 4).
+pub const LATTICE_METHODS: &[&str] = &[
+    "enumerate",
+    "lattice-centerpoint",
+    "fibre-bisection",
+    "mixed-centerpoint",
+];
+
 /// Builds a built-in method for a lattice class (THEORY.md 4).
 fn build_lattice(
     name: &str,
@@ -241,7 +249,22 @@ pub const OBJECTIVE_CUT_METHODS: &[&str] = &["ellipsoid", "sampled-centroid", "a
 pub fn supports(name: &str, class: &Class) -> Result<(), String> {
     let first_order_only = FIRST_ORDER_METHODS.contains(&name);
     let objective_cut = OBJECTIVE_CUT_METHODS.contains(&name);
+    let lattice_only = LATTICE_METHODS.contains(&name);
     match class {
+        Class::Lattice(c) if !lattice_only => {
+            return Err(format!(
+                "{name} does not play lattice classes ({})",
+                c.describe()
+            ))
+        }
+        Class::Lattice(c)
+            if c.cont_dim > 0 && (name == "enumerate" || name == "lattice-centerpoint") =>
+        {
+            return Err(format!("{name} plays pure integer classes (d = 0) only"))
+        }
+        _ if lattice_only && !matches!(class, Class::Lattice(_)) => {
+            return Err(format!("{name} plays lattice classes only"))
+        }
         Class::FirstOrder(_) if !first_order_only && !objective_cut => {
             return Err(format!("{name} plays separation-oracle classes only"))
         }
