@@ -43,11 +43,14 @@ fn live(header: &Header, class: &FeasibilityClass, method: &mut dyn Method) -> V
     memory.records
 }
 
+/// Builds a method for a class.
+type MakeMethod = fn(&FeasibilityClass) -> Box<dyn Method>;
+
 /// Live play of 1000 queries against halving versus replaying the 1000 recorded answers.
 fn replay_overhead(c: &mut Criterion) {
     // Midpoint: d = 60, R/rho = 1e6 needs 60 * 19 + 1 > 1000 queries; the budget stops
     // it at 1000. Ellipsoid: d = 20, far more than 1000 queries needed.
-    let cases: [(&str, usize, fn(&FeasibilityClass) -> Box<dyn Method>); 2] = [
+    let cases: [(&str, usize, MakeMethod); 2] = [
         ("midpoint", 60, |c| Box::new(Midpoint::new(c))),
         ("ellipsoid", 20, |c| Box::new(Ellipsoid::new(c))),
     ];
