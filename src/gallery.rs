@@ -265,8 +265,9 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         .collect();
     let spec = ChartSpec {
         title: format!(
-            "Queries used against dimension d (R/rho = {})",
-            scenario.half_width / rho
+            "Queries used against dimension d ({} = {})",
+            if first_order { "LR/eps" } else { "R/rho" },
+            ratio_of(rho)
         ),
         subtitle: Some(subtitle.clone()),
         x_label: "dimension d".into(),

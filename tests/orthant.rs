@@ -42,10 +42,16 @@ struct RefLevel {
     signs: Vec<i8>,
 }
 
-/// THEORY.md 2.3 transcribed literally, in exact rationals, with no filter.
+/// THEORY.md 2.3 transcribed literally, in exact rationals, with no filter; with
+/// `fix_outside`, plus the adversary's correction for queries outside X (the base of a
+/// new level is lowered to min over earlier outside queries of v_t - lambda' max_i
+/// |m'_i - y_{t,i}|; see `src/adversary/orthant.rs`).
 #[derive(Clone, Debug)]
 struct Reference {
     d: usize,
+    half_width: BigRational,
+    fix_outside: bool,
+    outside: Vec<(Vec<BigRational>, BigRational)>,
     beta: BigRational,
     gamma: BigRational,
     theta: BigRational,
@@ -56,6 +62,9 @@ impl Reference {
     fn new(class: &FirstOrderClass, settings: &OrthantSettings) -> Reference {
         Reference {
             d: class.dim,
+            half_width: f64_to_rational(class.half_width),
+            fix_outside: true,
+            outside: Vec::new(),
             beta: f64_to_rational(settings.beta),
             gamma: f64_to_rational(settings.gamma),
             theta: f64_to_rational(settings.theta),
@@ -103,6 +112,9 @@ impl Reference {
         let slope = self.levels[j].slope.clone();
         let mut subgradient = vec![Exact::ZERO; self.d];
         subgradient[i] = Exact::from_rational(if sign > 0 { -slope } else { slope });
+        if yr.iter().any(|v| v.abs() > self.half_width) {
+            self.outside.push((yr.clone(), value.clone()));
+        }
         if rank == 2 {
             self.levels[k].signs[i] = sign;
             if self.levels[k].signs.iter().all(|s| *s != 0) {
@@ -123,14 +135,25 @@ impl Reference {
         let h_next = (&one - &self.beta - &self.gamma) * &cur.half_width / &two;
         let slope_next = &self.theta * &cur.slope;
         let step = (&one + &self.beta - &self.gamma) * &cur.half_width / &two;
-        let center = cur
+        let center: Vec<BigRational> = cur
             .center
             .iter()
             .zip(&cur.signs)
             .map(|(m, s)| if *s > 0 { m + &step } else { m - &step })
             .collect();
-        let base =
+        let mut base =
             &cur.base - (&cur.slope * &self.beta * &cur.half_width + &two * &slope_next * &h_next);
+        if self.fix_outside {
+            for (y, v) in &self.outside {
+                let reach = y
+                    .iter()
+                    .zip(&center)
+                    .map(|(yi, m): (&BigRational, &BigRational)| (m - yi).abs())
+                    .max()
+                    .unwrap();
+                base = base.min(v - &slope_next * reach);
+            }
+        }
         self.levels.push(RefLevel {
             center,
             half_width: h_next,
@@ -165,7 +188,10 @@ enum Move {
 fn coord_strategy() -> impl Strategy<Value = Coord> {
     prop_oneof![
         2 => (-2.0f64..2.0).prop_map(Coord::Uniform),
-        2 => (-64i32..=64, 0u32..=6).prop_map(|(j, k)| Coord::Grid(j, k)),
+        // Up to 2R: the grid reaches outside the box too.
+        2 => (0u32..=6)
+            .prop_flat_map(|k| (-(2i32 << k)..=(2i32 << k), Just(k)))
+            .prop_map(|(j, k)| Coord::Grid(j, k)),
         3 => (-1i8..=1).prop_map(Coord::Centre),
         1 => (-1e-3f64..1e-3).prop_map(Coord::NearCentre),
     ]
@@ -408,4 +434,45 @@ fn huge_queries_are_answered_exactly() {
         });
     }
     assert_eq!(first_inconsistent_pair(&exchanges), None);
+}
+
+/// THEORY.md 2.3 as written is inconsistent once a query lies outside X; the adversary
+/// corrects it. The counterexample (defaults, d = 2, R = L = 1): y1 = (0, 2), y2 =
+/// (0, -1.7) (both outside X; y2 completes level 0), y3 = (0.5, -0.6). The literal
+/// construction answers y3 with a piece that exceeds the answer at y2 by about 0.05;
+/// the adversary (and the corrected reference) stays consistent and the verifier
+/// accepts its transcript.
+#[test]
+fn theory_2_3_breaks_outside_the_box_and_the_adversary_does_not() {
+    let class = FirstOrderClass::new(2, 1.0, 1e-2, 1.0, LipschitzNorm::L2).unwrap();
+    let queries = [[0.0, 2.0], [0.0, -1.7], [0.5, -0.6]];
+    let exchanges_of = |answers: Vec<FirstOrderAnswer>| -> Vec<Exchange> {
+        queries
+            .iter()
+            .zip(answers)
+            .map(|(y, a)| Exchange {
+                point: y.to_vec(),
+                value: a.value,
+                gradient: a.subgradient,
+            })
+            .collect()
+    };
+    let mut literal = Reference::new(&class, &OrthantSettings::default());
+    literal.fix_outside = false;
+    let answers: Vec<FirstOrderAnswer> = queries.iter().map(|y| literal.answer(y)).collect();
+    assert_eq!(answers[2].subgradient, [Exact::ZERO, Exact::Float(-0.25)]);
+    // Piece 3 at y2: -0.225 + 0.275 = 0.05 > 0 = v2 (0-based pair (2, 1)).
+    assert_eq!(
+        first_inconsistent_pair(&exchanges_of(answers)),
+        Some((2, 1))
+    );
+
+    let mut game = Game::new(class, OrthantSettings::default());
+    for y in queries {
+        game.ask(&Move::Point(y.iter().map(|v| Coord::Uniform(*v)).collect()))
+            .unwrap();
+    }
+    assert_eq!(first_inconsistent_pair(&game.exchanges), None);
+    let verdict = verify_records(&game.transcript()).expect("the verifier accepts");
+    assert!(verdict.certified_prefix.is_some());
 }

@@ -19,11 +19,28 @@
 //!   h' = (1 - beta - gamma) h / 2, lambda' = theta lambda, m' = m + s (1 + beta - gamma) h / 2,
 //!   c' = c - (lambda beta h + 2 lambda' h').
 //!
-//! Exactness: every level parameter is an exact rational; the winner is chosen in `f64`
-//! with a rigorous error bound and decided exactly whenever two candidates are within
-//! it, and the answered value is computed exactly (THEORY.md section 0). Cost per answer
-//! is O(levels * d), independent of the number of earlier queries; the answers are also
-//! kept so that [`Adversary::witnesses`] can run the universal certificate search.
+//! Queries outside X (a correction to THEORY.md 2.3, which as written is inconsistent
+//! there). A later level's piece grows without bound away from X, so it can exceed an
+//! answer given earlier at a point outside X. Counterexample with the defaults, d = 2,
+//! R = L = 1: y1 = (0, 2) is answered (2, (0, 1)) and fixes s_1 = -1; y2 = (0, -1.7) is
+//! answered (0, (-1, 0)) and fixes s_0 = +1, opening level 1 with m' = (0.5, -0.5),
+//! c' = -1/4, lambda' = 1/4; y3 = (0.5, -0.6) is answered (-0.225, (0, -1/4)), whose
+//! piece is 0.05 > 0 at y2. So when a level opens, its base is lowered to
+//!   c' = min(c' above, min over earlier queries y_t outside X of
+//!            v_t - lambda' max_i |m'_i - y_{t,i}|),
+//! which puts the new piece, whatever its signs, at or below every answer given outside
+//! X (deeper levels inherit the lowered base). Games whose queries stay in X are
+//! unchanged.
+//!
+//! Exactness: every level parameter is an exact dyadic rational (the settings are
+//! `f64`, and levels use only +, -, * and halving); the winner is chosen in `f64` with a
+//! rigorous error bound (terms as exact TwoSum pairs when the centre is an `f64`, values
+//! relative to the current base as double-doubles) and decided exactly whenever the
+//! bound cannot separate two candidates; the answered value is computed exactly in
+//! dyadic arithmetic (THEORY.md section 0). Cost per answer is O(levels * d),
+//! independent of the number of earlier queries (opening a level also costs O(levels)
+//! exact operations, plus O(d) per earlier query outside X); the answers are kept so
+//! that [`Adversary::witnesses`] can run the universal certificate search.
 
 use num_bigint::BigInt;
 use num_rational::BigRational;
@@ -365,6 +382,8 @@ pub struct Orthant {
     settings: OrthantSettings,
     levels: Vec<Level>,
     answers: Vec<universal::Exchange>,
+    /// Indices (into `answers`) of the queries that lie outside X.
+    outside: Vec<usize>,
     /// Scratch buffers reused by every answer.
     group: Vec<Candidate>,
     candidates: Vec<Candidate>,
@@ -387,6 +406,7 @@ impl Orthant {
             settings,
             levels: vec![level],
             answers: Vec::new(),
+            outside: Vec::new(),
             group: Vec::new(),
             candidates: Vec::new(),
         })
@@ -419,7 +439,22 @@ impl Orthant {
             .zip(&current.signs)
             .map(|(m, s)| if *s > 0 { m + &step } else { m - &step })
             .collect();
-        let base = &current.base - (&current.slope * &beta * h + &two * &slope_next * &h_next);
+        let mut base = &current.base - (&current.slope * &beta * h + &two * &slope_next * &h_next);
+        // Queries outside X: the new piece, whatever its signs, must stay at or below
+        // every answer given there (see the module docs); lower the base if needed.
+        for &t in &self.outside {
+            let answer = &self.answers[t];
+            let reach = answer
+                .point
+                .iter()
+                .zip(&center)
+                .map(|(y, m)| (m - f64_to_rational(*y)).abs())
+                .fold(BigRational::zero(), |a, b| if b > a { b } else { a });
+            let bound = answer.value.to_rational() - &slope_next * reach;
+            if bound < base {
+                base = bound;
+            }
+        }
         let level = Level::new(center, h_next, base, slope_next, self.class.dim);
         self.levels.push(level);
         let reference = self.levels.last().expect("just pushed").base.clone();
@@ -703,14 +738,18 @@ impl Adversary for Orthant {
             level.plus_slope.clone()
         };
         let answer = FirstOrderAnswer { value, subgradient };
-        if self.levels[current].fixed == self.class.dim {
-            self.open_next_level();
+        let r = self.class.half_width;
+        if y.iter().any(|v| v.abs() > r) {
+            self.outside.push(self.answers.len());
         }
         self.answers.push(universal::Exchange {
             point: y.to_vec(),
             value: answer.value.clone(),
             gradient: answer.subgradient.clone(),
         });
+        if self.levels[current].fixed == self.class.dim {
+            self.open_next_level();
+        }
         Answer::FirstOrder(answer)
     }
 

@@ -457,7 +457,12 @@ pub fn longest_certificate(
             }
         }
     }
-    certificate_for(class, &exchanges[..lo], true)
+    // The exhaustive pass can fail numerically where the first-fit pass succeeded; keep
+    // the first-fit certificate then.
+    match certificate_for(class, &exchanges[..lo], true)? {
+        Some(found) => Ok(Some(found)),
+        None => certificate_for(class, &exchanges[..lo], false),
+    }
 }
 
 /// Checks that a transcript is consistent with some convex L-Lipschitz function
