@@ -80,8 +80,12 @@ pub struct Minimax {
     lattice: u128,
     all: u128,
     traces: Vec<Trace>,
+    /// For each point of Q, the traces that do not contain it.
+    avoiding: Vec<Vec<u32>>,
     symmetries: Vec<Vec<usize>>,
     memo: HashMap<(u128, u128), (u32, bool)>,
+    /// conv(D) cap Q by D.
+    hulls: HashMap<u128, u128>,
 }
 
 /// Most points of Q.
@@ -134,14 +138,23 @@ impl Minimax {
         };
         let traces = enumerate_traces(&points);
         let symmetries = symmetries(class, &points);
+        let avoiding = (0..points.len())
+            .map(|k| {
+                (0..traces.len() as u32)
+                    .filter(|&t| traces[t as usize].mask >> k & 1 == 0)
+                    .collect()
+            })
+            .collect();
         Ok(Minimax {
             n,
             points,
             lattice,
             all,
             traces,
+            avoiding,
             symmetries,
             memo: HashMap::new(),
+            hulls: HashMap::new(),
         })
     }
 
@@ -180,8 +193,22 @@ impl Minimax {
         hull
     }
 
-    fn terminal(&self, excluded: u128, inside: u128) -> bool {
-        self.lattice & !excluded == 0 || self.hull(inside) & self.lattice != 0
+    fn terminal(&mut self, excluded: u128, inside: u128) -> bool {
+        if self.lattice & !excluded == 0 {
+            return true;
+        }
+        if inside == 0 {
+            return false;
+        }
+        let hull = match self.hulls.get(&inside) {
+            Some(h) => *h,
+            None => {
+                let h = self.hull(inside);
+                self.hulls.insert(inside, h);
+                h
+            }
+        };
+        hull & self.lattice != 0
     }
 
     /// Adversary moves after query k: `None` for `inside` ending the game (a lattice
@@ -192,16 +219,15 @@ impl Minimax {
         if self.lattice & bit == 0 {
             out.push(((excluded, inside | bit), None));
         }
-        let mut seen: HashMap<u128, ()> = HashMap::new();
-        for (t, trace) in self.traces.iter().enumerate() {
-            if trace.mask & bit != 0 || trace.mask & inside != inside {
-                continue;
-            }
-            let next = excluded | (self.all & !trace.mask);
-            if seen.insert(next, ()).is_none() {
-                out.push(((next, inside), Some(t)));
-            }
-        }
+        let mut cuts: Vec<(u128, usize)> = self.avoiding[k]
+            .iter()
+            .map(|&t| t as usize)
+            .filter(|&t| self.traces[t].mask & inside == inside)
+            .map(|t| (excluded | (self.all & !self.traces[t].mask), t))
+            .collect();
+        cuts.sort_unstable_by_key(|(next, _)| *next);
+        cuts.dedup_by_key(|(next, _)| *next);
+        out.extend(cuts.into_iter().map(|(next, t)| ((next, inside), Some(t))));
         out
     }
 

@@ -82,6 +82,8 @@ impl Reference {
         self.levels.last().unwrap()
     }
 
+    // Index loops mirror the construction's formulas, coordinate by coordinate.
+    #[allow(clippy::needless_range_loop)]
     fn answer(&mut self, y: &[f64]) -> FirstOrderAnswer {
         let yr: Vec<BigRational> = y.iter().map(|v| f64_to_rational(*v)).collect();
         let k = self.levels.len() - 1;

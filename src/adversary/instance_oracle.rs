@@ -126,7 +126,13 @@ impl InstanceOracle {
             .pieces
             .iter()
             .map(|p| p.approx_at(y).unwrap_or((f64::NAN, f64::INFINITY)))
-            .map(|(v, e)| if v.is_finite() { v - e } else { f64::NEG_INFINITY })
+            .map(|(v, e)| {
+                if v.is_finite() {
+                    v - e
+                } else {
+                    f64::NEG_INFINITY
+                }
+            })
             .collect();
         let lower = approx
             .iter()

@@ -8,6 +8,7 @@
 
 pub mod corner;
 pub mod halving;
+pub mod instance_oracle;
 pub mod lattice_half;
 pub mod mixed_corner;
 pub mod orthant;

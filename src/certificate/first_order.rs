@@ -62,6 +62,21 @@ impl FilteredPiece {
         &self.exact
     }
 
+    /// The piece's value at `x` in `f64` and a rigorous bound on its error; `None` when
+    /// the sum overflows.
+    pub fn approx_at(&self, x: &[f64]) -> Option<(f64, f64)> {
+        let mut approx = self.intercept;
+        let mut magnitude = self.intercept.abs();
+        for (i, a) in &self.terms {
+            let t = a * x[*i];
+            approx += t;
+            magnitude += t.abs();
+        }
+        let n = self.terms.len() as f64;
+        let err = (n + 4.0) * f64::EPSILON * magnitude + (n + 2.0) * 1e-300;
+        (approx.is_finite() && err.is_finite()).then_some((approx, err))
+    }
+
     /// Compares the piece's value at `x` with `value`, exactly (`x` as f64 and, lazily,
     /// as rationals).
     pub fn cmp_at(&self, x: &[f64], value: &Exact) -> std::cmp::Ordering {
@@ -268,12 +283,34 @@ impl FirstOrderVerifier {
                 });
             }
         }
-        best.map(|b| crate::exact::nearest_f64(&b))
+        // Rounded down, so that every eps below the reported figure is certified.
+        best.map(|b| f64_at_most(&b))
     }
 }
 
-/// Class membership of a function witness.
-fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<(), String> {
+/// The largest `f64` at most `value` (saturating at -`f64::MAX`), exactly decided: a
+/// certified lower estimate must not round up.
+pub fn f64_at_most(value: &BigRational) -> f64 {
+    let f = crate::exact::nearest_f64(value);
+    if f.is_finite() && f64_to_rational(f) > *value {
+        let down = if f == 0.0 {
+            -f64::from_bits(1)
+        } else if f > 0.0 {
+            f64::from_bits(f.to_bits() - 1)
+        } else {
+            f64::from_bits(f.to_bits() + 1)
+        };
+        if down.is_finite() {
+            return down;
+        }
+    }
+    f
+}
+
+/// Class membership of a function witness: centre in X, 0 < slope <= L, every piece's
+/// gradient within L in the class's dual norm, no piece above the floor at the centre
+/// (so the minimum is the floor, at the centre). `Err` says what fails.
+pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<(), String> {
     let d = class.dim;
     if w.center.len() != d {
         return Err(format!(

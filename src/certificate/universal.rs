@@ -351,7 +351,10 @@ fn try_sigma(
                 m
             }
         });
-    let eps_cert = crate::exact::nearest_f64(&(&distance * f64_to_rational(sigma))) / 2.0;
+    // Rounded down: every eps below eps_cert is certified by these two centres.
+    let eps_cert = crate::certificate::first_order::f64_at_most(
+        &(&distance * f64_to_rational(sigma) / BigRational::from_integer(2.into())),
+    );
     let pieces: Vec<AffinePiece> = data.pieces.iter().map(|p| p.exact().clone()).collect();
     let make = |(c, floor): &(Vec<f64>, BigRational)| FunctionWitness {
         pieces: pieces.clone(),
