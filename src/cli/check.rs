@@ -1,4 +1,6 @@
-//! `naysayer check FILE`: re-verify a transcript.
+//! `naysayer check FILE`: re-verify a transcript; on a first-order transcript, also
+//! audit its answers ([`crate::cli::audit`]: consistency, eps_cert, and whether the
+//! method's output claims more accuracy than the answers allow).
 
 use clap::Args;
 
@@ -12,10 +14,52 @@ use crate::error::Error;
 pub struct CheckArgs {
     /// The transcript file (JSON Lines).
     pub file: PathArg,
+    /// First-order transcripts: judge the method's output against this accuracy
+    /// instead of the class's eps.
+    #[arg(long)]
+    pub eps: Option<f64>,
+    /// First-order transcripts: write the audit's two witness functions (JSON) here.
+    #[arg(long)]
+    pub witnesses: Option<PathArg>,
+    /// Skip the first-order audit (it solves linear programs).
+    #[arg(long)]
+    pub no_audit: bool,
+    /// Exit 1 also when the audit finds the answers inconsistent or flags the claim.
+    #[arg(long)]
+    pub strict: bool,
 }
 
-/// Runs `check`: prints the verdict; exit 0 when valid, 1 when rejected.
+/// Runs `check`: prints the verdict (and the audit of a first-order transcript); exit 0
+/// when valid, 1 when rejected (with `--strict`, also when the audit finds the answers
+/// inconsistent or flags the claim).
 pub fn run(args: &CheckArgs) -> Result<u8, Error> {
+    let code = verify(args)?;
+    if args.no_audit {
+        return Ok(code);
+    }
+    let audit = match crate::cli::audit::audit_file(&args.file, args.eps) {
+        Ok(Some(audit)) => audit,
+        Ok(None) => return Ok(code),
+        // The verifier has reported what is wrong with the file.
+        Err(Error::Transcript { .. }) if code == EXIT_REJECTED => return Ok(code),
+        Err(error) => return Err(error),
+    };
+    if let Some(path) = &args.witnesses {
+        crate::cli::audit::write_witnesses(path, &audit)?;
+    }
+    print!(
+        "{}",
+        crate::cli::audit::describe(&audit, args.witnesses.as_ref())
+    );
+    let failed = audit.violation.is_some() || audit.claim == crate::cli::audit::Claim::Flagged;
+    Ok(if args.strict && failed {
+        EXIT_REJECTED
+    } else {
+        code
+    })
+}
+
+fn verify(args: &CheckArgs) -> Result<u8, Error> {
     match certificate::verify_file(&args.file) {
         Ok(verdict) => {
             println!("valid certificate: {}", args.file.display());

@@ -6,6 +6,7 @@
 //! input (a file that cannot be read or parsed, an invalid class); 3 the method failed;
 //! 4 an I/O error while writing output.
 
+pub mod audit;
 pub mod bounds;
 pub mod chart;
 pub mod check;
@@ -14,6 +15,7 @@ pub mod hunt;
 pub mod list;
 pub mod minimax;
 pub mod play;
+pub mod replay;
 pub mod sweep;
 
 use std::path::PathBuf;
@@ -65,6 +67,9 @@ pub enum Command {
     Chart(chart::ChartArgs),
     /// Exact minimax value of a small integer class over a finite query set (THEORY.md 6).
     Minimax(minimax::MinimaxArgs),
+    /// Play a built-in method against one saved first-order witness function (from a
+    /// transcript's final record or an audit's witness file) with its exact oracle.
+    Replay(replay::ReplayArgs),
     /// Search the answers that make one deterministic method slowest; verify the worst
     /// game found (or, with --replay FILE, replay a transcript's answers to its method).
     Hunt(hunt::HuntArgs),
@@ -157,6 +162,7 @@ pub fn run(cli: Cli) -> Result<u8, Error> {
         Command::Chart(args) => chart::run(&args),
         Command::Minimax(args) => minimax::run(&args),
         Command::Hunt(args) => hunt::run(&args),
+        Command::Replay(args) => replay::run(&args),
     }
 }
 
