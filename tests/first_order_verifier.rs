@@ -397,3 +397,33 @@ fn a_witness_with_a_piece_above_its_floor_at_the_centre_is_rejected() {
         }
     }
 }
+
+/// Regression for a once non-monotone certificate search: with the two answers below
+/// (d = 1, eps = 1e-2; Kelley's first two queries against `orthant`) no certificate was
+/// found for the first answer alone although every centre in [0, 1] is admissible by
+/// hand (the first answer says only f(0) = 0 with slope -1), so the prefix search stopped
+/// at the empty prefix. Existence is monotone in the prefix: both prefixes must certify.
+#[test]
+fn the_first_answer_alone_is_certified_when_two_are() {
+    use naysayer::certificate::universal::{certificate_for, longest_certificate};
+    use naysayer::class::{FirstOrderClass, LipschitzNorm};
+    let class = FirstOrderClass::new(1, 1.0, 1e-2, 1.0, LipschitzNorm::L2).unwrap();
+    let exact = |v: f64| Exact::from_f64(v).unwrap();
+    let first = Exchange {
+        point: vec![0.0],
+        value: exact(0.0),
+        gradient: vec![exact(-1.0)],
+    };
+    let second = Exchange {
+        point: vec![0.999_999_999_999_790_4],
+        value: exact(-0.125),
+        gradient: vec![exact(0.25)],
+    };
+    let both = [first.clone(), second];
+    let one = certificate_for(&class, &both[..1], false).unwrap();
+    assert!(one.is_some(), "no certificate for the first answer alone");
+    let two = certificate_for(&class, &both, false).unwrap();
+    assert!(two.is_some(), "no certificate for both answers");
+    let longest = longest_certificate(&class, &both).unwrap().unwrap();
+    assert_eq!(longest.witnesses.prefix, 2);
+}

@@ -32,6 +32,22 @@
 //! X (deeper levels inherit the lowered base). Games whose queries stay in X are
 //! unchanged.
 //!
+//! A known weakness: turn-backs (found by testing; it makes the adversary weaker than the
+//! prototype figures of THEORY.md 2.3 against some methods, never unsound). When level k's
+//! signs point back toward level k-1's centre, level k+1's box lies where level k-1's
+//! piece, already fully revealed, is larger than anything level k+1 can reach, so the
+//! minimiser is pinned by known pieces. Counterexample, d = 2, L = R = 1, eps = 1e-6,
+//! Kelley's method: y1 = (0, 0) and y2 = (1, 0) fix level 0's signs (+, +) (ties give +1);
+//! y3 = (1, 1) and y4 = (0.3, 0.524) fix level 1's signs (-, -), opening level 2 at
+//! m = (1/4, 1/4) with base c = -9/32, where level 0's piece max(-y_1, -y_2) is -1/4 > c.
+//! y5 = (0.3, 0.3) fixes level 2's s_1 = -1 and reveals the piece -9/32 + (y_1 - 1/4)/16;
+//! it meets level 0's -y_1 at y_1 = y_2 = 0.27941..., which Kelley queries 7th: every
+//! completion of the function is at least max(-y_1, -9/32 + (y_1 - 1/4)/16) there, so that
+//! point is an exact minimiser and the method stops with a correct output (certified
+//! lower bound 7, against 17 for the level method). Margins beta, gamma > 0 do not
+//! remove this (measured: still 7), and theta = 1/8 only delays it (9 at d = 2, 13 at
+//! d = 3); the defaults stay theta = 1/4, beta = gamma = 0 as the issue specifies.
+//!
 //! Exactness: every level parameter is an exact dyadic rational (the settings are
 //! `f64`, and levels use only +, -, * and halving); the winner is chosen in `f64` with a
 //! rigorous error bound (terms as exact TwoSum pairs when the centre is an `f64`, values
