@@ -76,8 +76,8 @@ fn lattice_half_answer(c: &mut Criterion) {
     group.finish();
 }
 
-/// minimax on {0,1}^2 with half-integer queries (the larger classes are timed with
-/// `naysayer minimax`, which prints the search time: too slow for repeated sampling).
+/// minimax on {0,1}^2 and {0..3}^2 with half-integer queries (target: {0..3}^2 under 60 s
+/// on one core; run with `cargo bench --bench lattice -- minimax`).
 fn minimax_small(c: &mut Criterion) {
     let class = LatticeClass::integer(2, 0, 1).unwrap();
     let mut group = c.benchmark_group("minimax");
@@ -85,6 +85,13 @@ fn minimax_small(c: &mut Criterion) {
     group.bench_function("{0,1}^2 half-integer Q", |b| {
         b.iter(|| {
             let mut search = Minimax::new(&class, QuerySet::HalfInteger).unwrap();
+            black_box(search.solve().value)
+        })
+    });
+    let square = LatticeClass::integer(2, 0, 3).unwrap();
+    group.bench_function("{0..3}^2 half-integer Q", |b| {
+        b.iter(|| {
+            let mut search = Minimax::new(&square, QuerySet::HalfInteger).unwrap();
             black_box(search.solve().value)
         })
     });

@@ -10,6 +10,7 @@
 
 use serde::Serialize;
 
+use crate::class::LatticeClass;
 use crate::class::{FeasibilityClass, Promise};
 use crate::method::ellipsoid::log_volume_ratio;
 
@@ -31,6 +32,9 @@ pub enum Status {
     Proven,
     /// An order of growth only; the constant is unspecified.
     Guide,
+    /// Our construction: the count is forced in every run the verifier certified, with
+    /// no general proof (THEORY.md 4 marks it "ours").
+    Construction,
 }
 
 /// One bound line.
@@ -186,6 +190,141 @@ pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
     ]
 }
 
+/// |S| for the lattice points S of a pure integer class's box, as f64 (exact up to 2^53).
+fn lattice_size(class: &LatticeClass) -> f64 {
+    class
+        .lower
+        .iter()
+        .zip(&class.upper)
+        .map(|(l, u)| (u - l + 1) as f64)
+        .product()
+}
+
+/// Every method needs at least floor(log2 |S|) + 1 queries on a pure integer class with
+/// S the lattice points of the box, when "none" is a possible answer (THEORY.md 4,
+/// derived: some strict cut through any query keeps at least (|S| - 1)/2 points of the
+/// alive set). `None` for mixed-integer classes.
+pub fn lattice_half_lower_bound(class: &LatticeClass) -> Option<u64> {
+    if class.cont_dim != 0 {
+        return None;
+    }
+    Some(u64::from(63 - class.lattice_count().leading_zeros()) + 1)
+}
+
+/// What the corner constructions force when the box holds {0,1}^n: 2^n (pure integer,
+/// `corner`) or 2^n (d k + 1) with k as in THEORY.md 1.1 (`mixed-corner`). Ours,
+/// certified run by run; not a theorem.
+pub fn corner_count(class: &LatticeClass) -> Option<u64> {
+    if !class.contains_unit_cube() || class.int_dim() > 62 {
+        return None;
+    }
+    let cube = 1u64 << class.int_dim();
+    let fibre = (class.cont_dim as u64)
+        .checked_mul(u64::from(class.halvings()))?
+        .checked_add(1)?;
+    cube.checked_mul(fibre)
+}
+
+/// Queries an exact centerpoint method needs at most. Pure integer: a lattice point of
+/// the alive set with depth at least |S|/2^n exists (Oertel, Wagner & Weismantel, Oper.
+/// Res. Lett. 2014: S stays all lattice points of a convex set under strict cuts), so
+/// each cut removes at least that fraction: floor(ln|S| / -ln(1 - 2^-n)) + 1 queries
+/// empty S. Mixed-integer (THEORY.md 4, derived from the depth 1/(2^n (d+1)) of Basu &
+/// Oertel, SIAM J. Optim. 2017): ceil(ln(mu_0 / mu_min) / -ln(1 - 1/(2^n (d+1)))) with
+/// mu_0 = |S| (2R)^d and mu_min = kappa_d rho^d.
+pub fn centerpoint_upper_bound(class: &LatticeClass) -> u64 {
+    let n = class.int_dim() as i32;
+    let size = lattice_size(class);
+    if class.cont_dim == 0 {
+        let shrink = -(-(0.5f64.powi(n))).ln_1p();
+        return (size.ln() / shrink).floor() as u64 + 1;
+    }
+    let d = class.cont_dim;
+    let ln_mu0 = size.ln() + d as f64 * (2.0 * class.half_width).ln();
+    let ln_mu_min = ln_unit_ball_volume(d) + d as f64 * class.rho.ln();
+    let depth = 0.5f64.powi(n) / (d as f64 + 1.0);
+    let shrink = -(-depth).ln_1p();
+    ((ln_mu0 - ln_mu_min) / shrink).ceil().max(1.0) as u64
+}
+
+/// Every bound line for an integer or mixed-integer class (THEORY.md 4).
+pub fn lattice_bounds(class: &LatticeClass) -> Vec<Bound> {
+    let mut out = Vec::new();
+    if let Some(lower) = lattice_half_lower_bound(class) {
+        out.push(Bound {
+            label: "lower bound (lattice halving)",
+            side: Side::Lower,
+            queries: Some(lower),
+            formula: "floor(log2 |S|) + 1, S the lattice points of the box, when \"none\" \
+                      is a possible answer; strict cuts",
+            status: Status::Proven,
+            source: "THEORY.md 4 (derived: a strict cut through any query keeps at least \
+                     (|S| - 1)/2 points)",
+        });
+    }
+    if let Some(count) = corner_count(class) {
+        out.push(Bound {
+            label: if class.cont_dim == 0 {
+                "corner construction"
+            } else {
+                "mixed-corner construction"
+            },
+            side: Side::Lower,
+            queries: Some(count),
+            formula: if class.cont_dim == 0 {
+                "2^n on {0,1}^n inside the box"
+            } else {
+                "2^n (d k + 1), k = max{j >= 0 : R 2^-j > rho}, {0,1}^n inside the box"
+            },
+            status: Status::Construction,
+            source: "ours (THEORY.md 4); forced in every certified run, no general proof",
+        });
+    }
+    if class.cont_dim > 0 {
+        out.push(Bound {
+            label: "lower bound (information complexity)",
+            side: Side::Lower,
+            queries: None,
+            formula: "of order 2^n d log(R/rho)",
+            status: Status::Guide,
+            source: "Basu, Jiang, Kerger & Molinaro, information complexity of mixed-integer \
+                     convex optimization; Basu, Math. Program. 2023 (from memory)",
+        });
+    }
+    out.push(Bound {
+        label: if class.cont_dim == 0 {
+            "integer centerpoint method"
+        } else {
+            "mixed-integer centerpoint method"
+        },
+        side: Side::Upper,
+        queries: Some(centerpoint_upper_bound(class)),
+        formula: if class.cont_dim == 0 {
+            "floor(ln |S| / -ln(1 - 2^-n)) + 1 (depth |S| / 2^n per query)"
+        } else {
+            "ceil(ln(mu_0 / mu_min) / -ln(1 - 1/(2^n (d+1)))), mu_0 = |S| (2R)^d, \
+             mu_min = kappa_d rho^d"
+        },
+        status: Status::Proven,
+        source: if class.cont_dim == 0 {
+            "Oertel, Wagner & Weismantel, Oper. Res. Lett. 2014 (derived)"
+        } else {
+            "Basu & Oertel, SIAM J. Optim. 2017 (derived, THEORY.md 4)"
+        },
+    });
+    if class.cont_dim == 0 {
+        out.push(Bound {
+            label: "enumeration",
+            side: Side::Upper,
+            queries: Some(class.lattice_count()),
+            formula: "|S|: query every lattice point of the box",
+            status: Status::Proven,
+            source: "common practice, no source",
+        });
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -221,6 +360,33 @@ mod tests {
                     "d {d} ratio {ratio}"
                 );
             }
+        }
+    }
+
+    #[test]
+    fn lattice_bounds_are_ordered_and_match_small_cases() {
+        use crate::class::LatticeClass;
+        // {0,1}^2: |S| = 4, lattice halving floor(log2 4) + 1 = 3; corner 2^2 = 4;
+        // centerpoint floor(ln 4 / -ln(3/4)) + 1 = floor(4.82) + 1 = 5 (by hand);
+        // enumeration 4.
+        let c = LatticeClass::integer(2, 0, 1).unwrap();
+        assert_eq!(lattice_half_lower_bound(&c), Some(3));
+        assert_eq!(corner_count(&c), Some(4));
+        assert_eq!(centerpoint_upper_bound(&c), 5);
+        // n = 1, {0..7}: the median halves: floor(ln 8 / ln 2) + 1 = 4 = floor(log2 8) + 1,
+        // bisection is optimal in one dimension (common practice, no source).
+        let line = LatticeClass::integer(1, 0, 7).unwrap();
+        assert_eq!(centerpoint_upper_bound(&line), 4);
+        assert_eq!(lattice_half_lower_bound(&line), Some(4));
+        // Mixed (n, d) = (2, 1), R/rho = 16: k = 3, so 2^2 (1 * 3 + 1) = 16.
+        let m = LatticeClass::mixed(2, 0, 1, 1, 1.0, 1.0 / 16.0).unwrap();
+        assert_eq!(corner_count(&m), Some(16));
+        for n in 1..=6 {
+            let c = LatticeClass::integer(n, 0, 1).unwrap();
+            let lower = lattice_half_lower_bound(&c).unwrap();
+            assert!(lower <= corner_count(&c).unwrap());
+            assert!(corner_count(&c).unwrap() <= c.lattice_count());
+            assert!(lower <= centerpoint_upper_bound(&c));
         }
     }
 }

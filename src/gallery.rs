@@ -11,21 +11,29 @@
 //! - `game-2d`: a picture of one two-dimensional game (the first method that supports
 //!   d = 2, at the largest rho of the grid, so the picture stays legible).
 //!
+//! For a first-order scenario the same (a)-(c) against L R/eps, plus
+//! `uncertainty-vs-queries` (certified uncertainty eps_cert against T, log-log). For a
+//! lattice scenario (a) is against the integer dimension n with the lattice-halving
+//! lower bound, the corner constructions' count and the centerpoint upper bound; (b)
+//! only when there is a continuous part; (c) shows the alive lattice points (or the
+//! mixed-integer measure).
+//!
 //! Each chart is written as SVG and PNG with its data beside it as CSV.
 
 use std::collections::BTreeMap;
 use std::io::BufRead;
 use std::path::{Path, PathBuf};
 
+use crate::bounds;
 use crate::certificate::universal::{self, Exchange};
 use crate::chart::{self, ChartSpec, Curve, CurveStyle, Cut2d, Game2d, Scale, Series, SeriesPoint};
-use crate::class::{Class, FeasibilityClass, FirstOrderClass};
+use crate::class::{Class, FeasibilityClass, FirstOrderClass, LatticeClass};
 use crate::error::Error;
 use crate::game::UndecidedTrace;
 use crate::method;
 use crate::oracle::{Answer, Normal};
 use crate::runner::{self, GameSpec};
-use crate::scenario::{Family, Scenario};
+use crate::scenario::{Family, Scenario, NO_ACCURACY};
 use crate::sweep::{split_csv_line, ClassFacts, COLUMNS};
 use crate::transcript::{MemoryTranscript, Record};
 
@@ -93,9 +101,13 @@ fn read_table(csv: &Path) -> Result<Table, Error> {
         let row = Row {
             method: fields[m].clone(),
             dim: fields[d].parse().map_err(|_| bad("dim is not a number"))?,
-            rho: fields[r]
-                .parse()
-                .map_err(|_| bad("accuracy is not a number"))?,
+            rho: if fields[r].is_empty() {
+                NO_ACCURACY
+            } else {
+                fields[r]
+                    .parse()
+                    .map_err(|_| bad("accuracy is not a number"))?
+            },
             queries_used: fields[q]
                 .parse()
                 .map_err(|_| bad("queries_used is not a number"))?,
@@ -140,11 +152,37 @@ fn bound_curves(classes: &[(f64, Class)]) -> Vec<Curve> {
             .collect(),
         style,
     };
+    let lattice = |f: fn(&LatticeClass) -> Option<u64>| {
+        move |c: &Class| match c {
+            Class::Lattice(c) => f(c),
+            _ => None,
+        }
+    };
+    let mixed = classes
+        .iter()
+        .any(|(_, c)| matches!(c, Class::Lattice(l) if l.cont_dim > 0));
     let curves = vec![
         line(
             "lower bound d*k+1 (box halving, theorem)",
             CurveStyle::LowerBound,
-            &|c| ClassFacts::of(c).lower_bound,
+            &|c| match c {
+                Class::Feasibility(_) => ClassFacts::of(c).lower_bound,
+                _ => None,
+            },
+        ),
+        line(
+            "lower bound floor(log2|S|)+1 (THEORY.md 4)",
+            CurveStyle::LowerBound,
+            &lattice(bounds::lattice_half_lower_bound),
+        ),
+        line(
+            if mixed {
+                "2^n (d k + 1), mixed-corner (ours)"
+            } else {
+                "2^n, corner construction (ours)"
+            },
+            CurveStyle::Guide,
+            &lattice(bounds::corner_count),
         ),
         line(
             "centre of gravity, upper (Grunbaum 1960)",
@@ -155,6 +193,15 @@ fn bound_curves(classes: &[(f64, Class)]) -> Vec<Curve> {
             "ellipsoid, upper (Bertsimas & Tsitsiklis 1997)",
             CurveStyle::UpperBound,
             &|c| ClassFacts::of(c).upper_ellipsoid,
+        ),
+        line(
+            if mixed {
+                "centerpoint, upper (Basu & Oertel 2017)"
+            } else {
+                "centerpoint, upper (Oertel et al. 2014)"
+            },
+            CurveStyle::UpperBound,
+            &lattice(|c| Some(bounds::centerpoint_upper_bound(c))),
         ),
     ];
     curves
@@ -222,8 +269,17 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
     let acc = scenario.accuracy_name();
     let ratio_of = |accuracy: f64| match &scenario.family {
         Family::FirstOrder { lipschitz, .. } => lipschitz * scenario.half_width / accuracy,
-        Family::Feasibility { .. } => scenario.half_width / accuracy,
+        Family::Feasibility { .. } | Family::Lattice { .. } => scenario.half_width / accuracy,
     };
+    let lattice = match scenario.family {
+        Family::Lattice {
+            int_lower,
+            int_upper,
+            cont_dim,
+        } => Some((int_lower, int_upper, cont_dim)),
+        _ => None,
+    };
+    let pure_integer = matches!(lattice, Some((_, _, 0)));
     let subtitle = format!(
         "{}: adversary {}, box [-{R}, {R}]^d, {} seed(s), budget {}",
         scenario.name,
@@ -232,6 +288,24 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         scenario.budget,
         R = scenario.half_width
     );
+    let subtitle = match lattice {
+        Some((lo, hi, 0)) => format!(
+            "{}: adversary {}, box {{{lo}..{hi}}}^n, {} seed(s), budget {}",
+            scenario.name,
+            scenario.adversary,
+            scenario.seeds.len(),
+            scenario.budget
+        ),
+        Some((lo, hi, d)) => format!(
+            "{}: adversary {}, box {{{lo}..{hi}}}^n x [-{R}, {R}]^{d}, {} seed(s), budget {}",
+            scenario.name,
+            scenario.adversary,
+            scenario.seeds.len(),
+            scenario.budget,
+            R = scenario.half_width
+        ),
+        None => subtitle,
+    };
     let subtitle = if first_order {
         format!(
             "{subtitle}; lower bound Theta(d log(LR/eps)), constant unspecified (Nemirovski & Yudin 1983)"
@@ -264,13 +338,27 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         .filter_map(|&d| Some((d as f64, scenario.class_at(d, rho).ok()?)))
         .collect();
     let spec = ChartSpec {
-        title: format!(
-            "Queries used against dimension d ({} = {})",
-            if first_order { "LR/eps" } else { "R/rho" },
-            ratio_of(rho)
-        ),
+        title: if pure_integer {
+            "Queries used against integer dimension n".to_string()
+        } else {
+            format!(
+                "Queries used against {} ({} = {})",
+                if lattice.is_some() {
+                    "integer dimension n"
+                } else {
+                    "dimension d"
+                },
+                if first_order { "LR/eps" } else { "R/rho" },
+                ratio_of(rho)
+            )
+        },
         subtitle: Some(subtitle.clone()),
-        x_label: "dimension d".into(),
+        x_label: if lattice.is_some() {
+            "integer dimension n"
+        } else {
+            "dimension d"
+        }
+        .into(),
         y_label: "queries used".into(),
         x_scale: Scale::Linear,
         y_scale: Scale::Log10,
@@ -281,7 +369,8 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
     };
     pngs.push(chart::draw(&spec, &dir.join("queries-vs-dim"))?.png);
 
-    // (b) queries against log2(R/rho) (or log2(LR/eps)) at fixed d.
+    // (b) queries against log2(R/rho) (or log2(LR/eps)) at fixed d; a pure integer
+    // class has no accuracy, so no such chart.
     let d = scenario.chart_dim;
     let log_ratio = |rho: f64| ratio_of(rho).log2();
     let series = table
@@ -306,7 +395,10 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         .filter_map(|&rho| Some((log_ratio(rho), scenario.class_at(d, rho).ok()?)))
         .collect();
     let spec = ChartSpec {
-        title: format!("Queries used against accuracy, d = {d}"),
+        title: match lattice {
+            Some((_, _, cont)) => format!("Queries used against accuracy, n = {d}, d = {cont}"),
+            None => format!("Queries used against accuracy, d = {d}"),
+        },
         subtitle: Some(subtitle.clone()),
         x_label: if first_order {
             "log2(LR/eps)"
@@ -322,7 +414,9 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         width: WIDTH,
         height: HEIGHT,
     };
-    pngs.push(chart::draw(&spec, &dir.join("queries-vs-accuracy"))?.png);
+    if !pure_integer {
+        pngs.push(chart::draw(&spec, &dir.join("queries-vs-accuracy"))?.png);
+    }
 
     // (c) undecided measure against the query index.
     let class = scenario.class_at(d, rho)?;
@@ -364,13 +458,29 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         });
     }
     let spec = ChartSpec {
-        title: format!("Undecided volume against queries, d = {d}, {acc} = {rho}"),
+        title: match lattice {
+            Some((_, _, 0)) => format!("Alive lattice points against queries, n = {d}"),
+            Some(_) => {
+                format!("Undecided mixed-integer measure against queries, n = {d}, {acc} = {rho}")
+            }
+            None => format!("Undecided volume against queries, d = {d}, {acc} = {rho}"),
+        },
         subtitle: Some(format!(
-            "{subtitle}; one game per method (seed {}); log2 of the adversary's alive box",
-            scenario.seeds[0]
+            "{subtitle}; one game per method (seed {}); {}",
+            scenario.seeds[0],
+            match lattice {
+                Some((_, _, 0)) => "the adversary's alive lattice points |S|",
+                Some(_) => "log2 of the sum over integer fibres of the alive fibre volume",
+                None => "log2 of the adversary's alive box",
+            }
         )),
         x_label: "query index".into(),
-        y_label: "log2 of the alive volume".into(),
+        y_label: match lattice {
+            Some((_, _, 0)) => "alive lattice points |S|",
+            Some(_) => "log2 of the mixed-integer measure",
+            None => "log2 of the alive volume",
+        }
+        .into(),
         x_scale: Scale::Linear,
         y_scale: Scale::Linear,
         series,

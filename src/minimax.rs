@@ -86,6 +86,12 @@ pub struct Minimax {
     memo: HashMap<(u128, u128), (u32, bool)>,
     /// conv(D) cap Q by D.
     hulls: HashMap<u128, u128>,
+    /// For (D, query k): the traces avoiding k and containing D that are maximal, among
+    /// those with the same lattice trace, in the set of points of Q they exclude.
+    dominant: HashMap<(u128, usize), Vec<u32>>,
+    /// Whether V_Q searches drop dominated adversary moves (on by default; off only to
+    /// cross-check the pruning).
+    prune: bool,
 }
 
 /// Most points of Q.
@@ -155,6 +161,8 @@ impl Minimax {
             symmetries,
             memo: HashMap::new(),
             hulls: HashMap::new(),
+            dominant: HashMap::new(),
+            prune: true,
         })
     }
 
@@ -231,6 +239,56 @@ impl Minimax {
         out
     }
 
+    /// The adversary moves that matter for V_Q: among cuts with the same lattice split,
+    /// only those whose set of excluded points of Q is maximal under inclusion. The value
+    /// is nondecreasing in the excluded set for a fixed lattice split and D (the
+    /// method's useful queries only shrink; the terminal test and the adversary's
+    /// options depend on the lattice split and D alone; by induction on the depth), so a
+    /// move excluding a subset of another's points is never better for the adversary.
+    /// (Not for `--method`: a fixed method reacts to the cut itself.)
+    fn dominant_moves(
+        &mut self,
+        excluded: u128,
+        inside: u128,
+        k: usize,
+    ) -> Vec<((u128, u128), Option<usize>)> {
+        if !self.prune {
+            return self.moves(excluded, inside, k);
+        }
+        let traces = match self.dominant.get(&(inside, k)) {
+            Some(list) => list,
+            None => {
+                // Trace-level dominance holds whatever is excluded already: equal lattice
+                // traces stay equal and subsets stay subsets after the union.
+                let candidates: Vec<(u128, u32)> = self.avoiding[k]
+                    .iter()
+                    .filter(|&&t| self.traces[t as usize].mask & inside == inside)
+                    .map(|&t| (self.all & !self.traces[t as usize].mask, t))
+                    .collect();
+                let list = maximal(candidates, self.lattice)
+                    .into_iter()
+                    .map(|(_, t)| t)
+                    .collect();
+                self.dominant.entry((inside, k)).or_insert(list)
+            }
+        };
+        let bit = 1u128 << k;
+        let cuts: Vec<(u128, u32)> = traces
+            .iter()
+            .map(|&t| (excluded | (self.all & !self.traces[t as usize].mask), t))
+            .collect();
+        let mut out: Vec<((u128, u128), Option<usize>)> = Vec::new();
+        if self.lattice & bit == 0 {
+            out.push(((excluded, inside | bit), None));
+        }
+        out.extend(
+            maximal(cuts, self.lattice)
+                .into_iter()
+                .map(|(next, t)| ((next, inside), Some(t as usize))),
+        );
+        out
+    }
+
     /// V_Q of a state when it is below `cap`; otherwise some lower bound >= `cap`
     /// (fail-hard alpha-beta; memoised with the best known lower bound or the value).
     fn value(&mut self, excluded: u128, inside: u128, cap: u32) -> u32 {
@@ -259,7 +317,7 @@ impl Minimax {
         // V <= |S| (query the alive lattice points one by one).
         let mut best = cap.min(alive + 1);
         for k in self.query_order(excluded, inside) {
-            let mut moves = self.moves(excluded, inside, k);
+            let mut moves = self.dominant_moves(excluded, inside, k);
             // Strongest-looking moves first (most alive lattice points kept).
             moves.sort_by_key(|((e, _), _)| std::cmp::Reverse((self.lattice & !e).count_ones()));
             let mut worst = 0;
@@ -314,19 +372,33 @@ impl Minimax {
         order.into_iter().map(|(_, k)| k).collect()
     }
 
+    /// Turns the dominance pruning of adversary moves off (for cross-checks: the value
+    /// must not change, only the search size).
+    pub fn without_pruning(mut self) -> Minimax {
+        self.prune = false;
+        self
+    }
+
     /// V_Q and an optimal first query.
     pub fn solve(&mut self) -> MinimaxReport {
-        let value = self.value(0, 0, u32::MAX);
+        // Iterative deepening on the cap: a search under a tight cap prunes far more, and
+        // every failed pass leaves lower bounds in the memo for the next.
+        let mut cap = 1;
+        let value = loop {
+            let v = self.value(0, 0, cap);
+            if v < cap {
+                break v;
+            }
+            cap = v + 1;
+        };
         let mut first = None;
         if value > 0 {
-            for k in 0..self.points.len() {
-                let worst = self
-                    .moves(0, 0, k)
+            for k in self.query_order(0, 0) {
+                let moves = self.dominant_moves(0, 0, k);
+                if moves
                     .into_iter()
-                    .map(|((e, i), _)| self.value(e, i, u32::MAX))
-                    .max()
-                    .unwrap_or(0);
-                if worst + 1 == value {
+                    .all(|((e, i), _)| self.value(e, i, value) < value)
+                {
                     first = Some(self.real_point(k));
                     break;
                 }
@@ -473,6 +545,27 @@ impl Minimax {
 
 /// The coordinate reflections (and permutations when every side is equal) of the box,
 /// as permutations of Q's indices.
+/// Of (excluded set, trace) pairs, those whose excluded set is maximal under inclusion
+/// among the pairs with the same excluded lattice points; one pair per distinct set.
+fn maximal(mut cuts: Vec<(u128, u32)>, lattice: u128) -> Vec<(u128, u32)> {
+    cuts.sort_unstable_by_key(|(e, _)| (e & lattice, std::cmp::Reverse(e.count_ones()), *e));
+    cuts.dedup_by_key(|(e, _)| *e);
+    let mut kept: Vec<(u128, u32)> = Vec::with_capacity(cuts.len());
+    let mut group_start = 0;
+    for (e, t) in cuts {
+        if kept
+            .get(group_start)
+            .is_none_or(|(f, _)| f & lattice != e & lattice)
+        {
+            group_start = kept.len();
+        }
+        if kept[group_start..].iter().all(|(f, _)| e & !f != 0) {
+            kept.push((e, t));
+        }
+    }
+    kept
+}
+
 fn symmetries(class: &LatticeClass, points: &[Vec<i64>]) -> Vec<Vec<usize>> {
     let n = class.int_dim();
     let uniform = class.lower.iter().all(|l| *l == class.lower[0])

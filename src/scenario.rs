@@ -36,7 +36,9 @@ use serde::Deserialize;
 use toml::Spanned;
 
 use crate::adversary::ADVERSARIES;
-use crate::class::{Class, FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
+use crate::class::{
+    Class, FeasibilityClass, FirstOrderClass, LatticeClass, LipschitzNorm, Promise,
+};
 use crate::error::Error;
 use crate::method::{self, METHODS};
 
@@ -68,6 +70,12 @@ struct RawClass {
     norm: Option<Spanned<String>>,
     #[serde(default)]
     promise: Option<Spanned<String>>,
+    #[serde(default)]
+    int_lower: Option<Spanned<i64>>,
+    #[serde(default)]
+    int_upper: Option<Spanned<i64>>,
+    #[serde(default)]
+    cont_dim: Option<Spanned<i64>>,
 }
 
 #[derive(Deserialize)]
@@ -139,8 +147,31 @@ fn class_for(family: &Family, d: usize, half_width: f64, accuracy: f64) -> Resul
         Family::FirstOrder { lipschitz, norm } => Class::FirstOrder(FirstOrderClass::new(
             d, half_width, accuracy, *lipschitz, *norm,
         )?),
+        Family::Lattice {
+            int_lower,
+            int_upper,
+            cont_dim,
+        } => Class::Lattice(LatticeClass::mixed(
+            d,
+            *int_lower,
+            *int_upper,
+            *cont_dim,
+            half_width,
+            if *cont_dim == 0 {
+                PURE_INTEGER_RHO
+            } else {
+                accuracy
+            },
+        )?),
     })
 }
+
+/// The accuracy of every game of a pure integer scenario, which has none: `games.csv`
+/// leaves the `accuracy` and `ratio` cells empty and reads them back as this value.
+pub const NO_ACCURACY: f64 = f64::NAN;
+
+/// The rho a pure integer class carries (unused: it has no continuous part).
+const PURE_INTEGER_RHO: f64 = 0.5;
 
 /// The family of a scenario's classes, with the parameters that do not vary.
 #[derive(Clone, Debug, PartialEq)]
@@ -157,6 +188,16 @@ pub enum Family {
         /// The norm L is measured in.
         norm: LipschitzNorm,
     },
+    /// Integer and mixed-integer feasibility over {int_lower..int_upper}^n x [-R, R]^d
+    /// (`dims` is the grid of n; a `rho` grid when d > 0, none when d = 0).
+    Lattice {
+        /// Lower bound of every integer coordinate.
+        int_lower: i64,
+        /// Upper bound of every integer coordinate.
+        int_upper: i64,
+        /// Continuous dimension d (0: pure integer).
+        cont_dim: usize,
+    },
 }
 
 impl Scenario {
@@ -168,7 +209,7 @@ impl Scenario {
     /// The name of the accuracy parameter: "rho" or "eps".
     pub fn accuracy_name(&self) -> &'static str {
         match self.family {
-            Family::Feasibility { .. } => "rho",
+            Family::Feasibility { .. } | Family::Lattice { .. } => "rho",
             Family::FirstOrder { .. } => "eps",
         }
     }
@@ -241,20 +282,59 @@ impl Scenario {
             ));
         }
         let family_name = raw.class.family.get_ref().as_str();
-        if family_name != "feasibility" && family_name != "first-order" {
+        if !["feasibility", "first-order", "lattice"].contains(&family_name) {
             return Err(at.error(
                 &raw.class.family,
                 format!(
-                    "unknown class family {family_name:?}; known: \"feasibility\", \"first-order\""
+                    "unknown class family {family_name:?}; known: \"feasibility\", \
+                     \"first-order\", \"lattice\""
                 ),
             ));
         }
         let first_order = family_name == "first-order";
+        let lattice = family_name == "lattice";
+        // Keys that belong to one family only.
+        let owned: [(&str, Option<usize>, &str); 6] = [
+            (
+                "promise",
+                raw.class.promise.as_ref().map(|v| v.span().start),
+                "feasibility",
+            ),
+            (
+                "lipschitz",
+                raw.class.lipschitz.as_ref().map(|v| v.span().start),
+                "first-order",
+            ),
+            (
+                "norm",
+                raw.class.norm.as_ref().map(|v| v.span().start),
+                "first-order",
+            ),
+            (
+                "int_lower",
+                raw.class.int_lower.as_ref().map(|v| v.span().start),
+                "lattice",
+            ),
+            (
+                "int_upper",
+                raw.class.int_upper.as_ref().map(|v| v.span().start),
+                "lattice",
+            ),
+            (
+                "cont_dim",
+                raw.class.cont_dim.as_ref().map(|v| v.span().start),
+                "lattice",
+            ),
+        ];
+        for (key, offset, owner) in owned {
+            if let Some(offset) = offset {
+                if owner != family_name {
+                    return Err(at.error_at(offset, format!("{key} belongs to the {owner} family")));
+                }
+            }
+        }
         let promise = match &raw.class.promise {
             None => Promise::MayBeEmpty,
-            Some(p) if first_order => {
-                return Err(at.error(p, "promise belongs to the feasibility family"))
-            }
             Some(p) => match p.get_ref().as_str() {
                 "may-be-empty" => Promise::MayBeEmpty,
                 "nonempty" => Promise::Nonempty,
@@ -291,15 +371,50 @@ impl Scenario {
                 },
             };
             Family::FirstOrder { lipschitz, norm }
-        } else {
-            if let Some(l) = &raw.class.lipschitz {
-                return Err(at.error(l, "lipschitz belongs to the first-order family"));
+        } else if lattice {
+            if let Some(e) = &raw.class.eps {
+                return Err(at.error(
+                    e,
+                    "the lattice family takes rho (when cont_dim > 0), not eps",
+                ));
             }
+            let int_lower = raw.class.int_lower.as_ref().map_or(0, |v| *v.get_ref());
+            let int_upper = raw.class.int_upper.as_ref().map_or(1, |v| *v.get_ref());
+            let cont_dim = match &raw.class.cont_dim {
+                None => 0,
+                Some(v) if !(0..=1_000_000).contains(v.get_ref()) => {
+                    return Err(at.error(
+                        v,
+                        format!("cont_dim = {} must be between 0 and 1000000", v.get_ref()),
+                    ))
+                }
+                Some(v) => *v.get_ref() as usize,
+            };
+            if let Err(e) = LatticeClass::integer(1, int_lower, int_upper) {
+                let place = raw
+                    .class
+                    .int_upper
+                    .as_ref()
+                    .or(raw.class.int_lower.as_ref())
+                    .map_or(raw.class.family.span().start, |v| v.span().start);
+                return Err(at.error_at(place, e.to_string()));
+            }
+            if cont_dim == 0 {
+                if let Some(r) = &raw.class.rho {
+                    return Err(at.error(
+                        r,
+                        "a pure integer class (cont_dim = 0) has no accuracy; remove rho",
+                    ));
+                }
+            }
+            Family::Lattice {
+                int_lower,
+                int_upper,
+                cont_dim,
+            }
+        } else {
             if let Some(e) = &raw.class.eps {
                 return Err(at.error(e, "the feasibility family takes rho, not eps"));
-            }
-            if let Some(n) = &raw.class.norm {
-                return Err(at.error(n, "norm belongs to the first-order family"));
             }
             Family::Feasibility { promise }
         };
@@ -326,41 +441,36 @@ impl Scenario {
         }
         dims.sort_unstable();
         dims.dedup();
-        let (grid, grid_name) = match (&raw.class.rho, &raw.class.eps, first_order) {
-            (Some(r), _, false) => (r, "rho"),
-            (_, Some(e), true) => (e, "eps"),
-            _ => {
-                return Err(at.error(
-                    &raw.class.family,
-                    if first_order {
-                        "the first-order family needs a grid eps = [...]"
-                    } else {
-                        "the feasibility family needs a grid rho = [...]"
-                    },
-                ))
-            }
-        };
-        if grid.get_ref().is_empty() {
-            return Err(at.error(grid, format!("the grid of accuracies {grid_name} is empty")));
-        }
+        let pure_integer = matches!(family, Family::Lattice { cont_dim: 0, .. });
+        let grid_name = if first_order { "eps" } else { "rho" };
         let mut accuracies = Vec::new();
-        let probe = |value: f64| -> Result<(), Error> {
-            match &family {
-                Family::Feasibility { promise } => {
-                    FeasibilityClass::new(1, half_width, value, *promise).map(|_| ())
+        if pure_integer {
+            accuracies.push(NO_ACCURACY);
+        } else {
+            let grid = match (&raw.class.rho, &raw.class.eps, first_order) {
+                (Some(r), _, false) => r,
+                (_, Some(e), true) => e,
+                _ => {
+                    return Err(at.error(
+                        &raw.class.family,
+                        format!("the {family_name} family needs a grid {grid_name} = [...]"),
+                    ))
                 }
-                Family::FirstOrder { lipschitz, norm } => {
-                    FirstOrderClass::new(1, half_width, value, *lipschitz, *norm).map(|_| ())
-                }
+            };
+            if grid.get_ref().is_empty() {
+                return Err(at.error(grid, format!("the grid of accuracies {grid_name} is empty")));
             }
-        };
-        for r in grid.get_ref() {
-            let value = *r.get_ref();
-            probe(value).map_err(|e| at.error(r, format!("{grid_name} = {value}: {e}")))?;
-            accuracies.push(value);
+            let probe = |value: f64| -> Result<(), Error> {
+                class_for(&family, 1, half_width, value).map(|_| ())
+            };
+            for r in grid.get_ref() {
+                let value = *r.get_ref();
+                probe(value).map_err(|e| at.error(r, format!("{grid_name} = {value}: {e}")))?;
+                accuracies.push(value);
+            }
+            accuracies.sort_by(|a, b| b.total_cmp(a));
+            accuracies.dedup();
         }
-        accuracies.sort_by(|a, b| b.total_cmp(a));
-        accuracies.dedup();
         let adversary = raw.adversary.name.get_ref().clone();
         if !ADVERSARIES.iter().any(|a| a.name == adversary) {
             return Err(at.error(

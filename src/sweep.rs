@@ -34,9 +34,14 @@ use crate::scenario::{GridGame, Scenario};
 /// The columns of `games.csv`, in order. Timing columns (`wall_time_ms`) are the only
 /// ones that differ between two runs of the same sweep.
 ///
-/// `accuracy` is rho (feasibility) or eps (first-order); `ratio` is R/rho or L R/eps;
-/// `lipschitz` and `certified_uncertainty` are empty for feasibility classes, `promise`
-/// for first-order ones; bound columns are empty where the class has no proven number.
+/// `accuracy` is rho (feasibility, mixed-integer) or eps (first-order); `ratio` is R/rho
+/// or L R/eps; both are empty for pure integer classes, which have no accuracy. `dim` is
+/// the grid dimension: d, or the integer dimension n for lattice classes, whose
+/// continuous dimension and integer box are in `cont_dim`, `int_lower`, `int_upper`
+/// (empty for the other families). `lipschitz` and `certified_uncertainty` are empty
+/// for feasibility classes, `promise` for first-order ones; bound columns are empty
+/// where the class has no proven number (for lattice classes `lower_bound` is the
+/// lattice-halving bound of THEORY.md 4, pure integer only).
 pub const COLUMNS: &[&str] = &[
     "game",
     "scenario",
@@ -50,6 +55,9 @@ pub const COLUMNS: &[&str] = &[
     "ratio",
     "lipschitz",
     "promise",
+    "cont_dim",
+    "int_lower",
+    "int_upper",
     "budget",
     "queries_used",
     "censored",
@@ -429,10 +437,19 @@ fn play_row(
         game.seed.to_string(),
         facts.dim.to_string(),
         facts.half_width.to_string(),
-        facts.accuracy.to_string(),
-        facts.ratio.to_string(),
+        number(facts.accuracy),
+        number(facts.ratio),
         facts.lipschitz.map_or(String::new(), |l| l.to_string()),
         facts.promise.unwrap_or_default().into(),
+        facts
+            .lattice
+            .map_or(String::new(), |(d, _, _)| d.to_string()),
+        facts
+            .lattice
+            .map_or(String::new(), |(_, l, _)| l.to_string()),
+        facts
+            .lattice
+            .map_or(String::new(), |(_, _, u)| u.to_string()),
         scenario.budget.to_string(),
         report.record.queries_used.to_string(),
         censored.to_string(),
@@ -452,6 +469,15 @@ fn play_row(
         .join(",");
     row.push('\n');
     Ok((row, report.verdict.is_ok()))
+}
+
+/// A number cell; NaN (no such number) is written as an empty cell.
+fn number(value: f64) -> String {
+    if value.is_nan() {
+        String::new()
+    } else {
+        value.to_string()
+    }
 }
 
 fn opt(value: Option<u64>) -> String {
@@ -475,6 +501,8 @@ pub struct ClassFacts {
     pub lipschitz: Option<f64>,
     /// The promise (feasibility).
     pub promise: Option<&'static str>,
+    /// Continuous dimension, integer lower and upper bound (lattice classes).
+    pub lattice: Option<(usize, i64, i64)>,
     /// The proven lower bound, where the class has one with a constant.
     pub lower_bound: Option<u64>,
     /// The centre-of-gravity upper bound.
@@ -498,6 +526,7 @@ impl ClassFacts {
                     Promise::MayBeEmpty => "may-be-empty",
                     Promise::Nonempty => "nonempty",
                 }),
+                lattice: None,
                 lower_bound: Some(halving_lower_bound(c)),
                 upper_centre_of_gravity: Some(centre_of_gravity_upper_bound(c)),
                 upper_ellipsoid: Some(ellipsoid_upper_bound(c)),
@@ -510,21 +539,35 @@ impl ClassFacts {
                 ratio: c.lipschitz * c.half_width / c.eps,
                 lipschitz: Some(c.lipschitz),
                 promise: None,
+                lattice: None,
                 lower_bound: None,
                 upper_centre_of_gravity: Some(
                     crate::bounds::first_order_centre_of_gravity_upper_bound(c),
                 ),
                 upper_ellipsoid: None,
             },
-            other => ClassFacts {
-                family: "other",
-                dim: other.query_dim(),
-                half_width: f64::NAN,
-                accuracy: f64::NAN,
-                ratio: f64::NAN,
+            Class::Lattice(c) => ClassFacts {
+                family: if c.cont_dim == 0 {
+                    "lattice"
+                } else {
+                    "mixed-integer"
+                },
+                dim: c.int_dim(),
+                half_width: c.half_width,
+                accuracy: if c.cont_dim == 0 {
+                    crate::scenario::NO_ACCURACY
+                } else {
+                    c.rho
+                },
+                ratio: if c.cont_dim == 0 {
+                    f64::NAN
+                } else {
+                    c.half_width / c.rho
+                },
                 lipschitz: None,
                 promise: None,
-                lower_bound: None,
+                lattice: Some((c.cont_dim, c.lower[0], c.upper[0])),
+                lower_bound: crate::bounds::lattice_half_lower_bound(c),
                 upper_centre_of_gravity: None,
                 upper_ellipsoid: None,
             },

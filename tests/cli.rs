@@ -278,3 +278,29 @@ fn no_arguments_or_an_unknown_command_exits_2() {
     assert_eq!(run_in(dir.path(), &[]).status.code(), Some(2));
     assert_eq!(run_in(dir.path(), &["frobnicate"]).status.code(), Some(2));
 }
+
+/// `bounds --class lattice`: the lattice-halving lower bound floor(log2 |S|) + 1 (THEORY.md
+/// 4, derived) and the corner count 2^n, labelled as our construction, not a theorem.
+/// {0..3}^3: |S| = 64, so floor(log2 64) + 1 = 7 (by hand).
+#[test]
+fn bounds_prints_lattice_lines_with_their_status() {
+    let dir = TempDir::new().unwrap();
+    let out = run_in(
+        dir.path(),
+        &[
+            "bounds",
+            "--class",
+            "lattice",
+            "--int-dim",
+            "3",
+            "--int-upper",
+            "3",
+        ],
+    );
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0), "{text}{}", stderr(&out));
+    assert_eq!(field(&text, "lower"), Some("7"), "{text}");
+    assert!(text.contains("corner construction"), "{text}");
+    assert!(text.contains("not a theorem"), "{text}");
+    assert!(text.contains("Oertel, Wagner & Weismantel"), "{text}");
+}

@@ -60,6 +60,13 @@ struct Case {
 }
 
 const CASES: &[Case] = &[
+    Case {
+        what: "a lattice key in the feasibility family",
+        line: 9,
+        text: "cont_dim = 2",
+        column: 12,
+        word: "cont_dim belongs to the lattice family",
+    },
     // Line 3 is the blank line after `description`, still at the top level.
     Case {
         what: "unknown top-level key",
@@ -339,5 +346,69 @@ fn games_are_in_canonical_order_and_deterministic_methods_play_the_first_seed() 
         };
         assert_eq!(c.half_width, 2.0);
         assert_eq!(c.promise, Promise::Nonempty);
+    }
+}
+
+const LATTICE: &str = r#"name = "cube"
+description = "Corner on the unit cubes."
+
+[class]
+family = "lattice"
+dims = [1, 2, 3]
+int_lower = 0
+int_upper = 1
+half_width = 1.0
+
+[adversary]
+name = "corner"
+
+[play]
+methods = ["enumerate", "lattice-centerpoint"]
+seeds = [0]
+budget = 100
+"#;
+
+/// The lattice family: a valid pure integer scenario, and its own mistakes with line
+/// and column.
+#[test]
+fn lattice_scenarios_parse_strictly() {
+    let path = Path::new("cube.toml");
+    let scenario = Scenario::parse(LATTICE, path).unwrap();
+    let games = scenario.games();
+    assert_eq!(games.len(), 6, "3 dimensions x 2 deterministic methods");
+    assert!(
+        scenario.accuracies.iter().all(|a| a.is_nan()),
+        "no accuracy"
+    );
+    let mistakes = [
+        // (replaced line, new text, line, column, word)
+        (
+            9,
+            "half_width = 1.0\nrho = [1e-2]",
+            10,
+            7,
+            "has no accuracy",
+        ),
+        (8, "int_upper = -1", 8, 13, "exceeds upper bound"),
+        (6, "dims = [1, 2, 3]\neps = [1e-2]", 7, 7, "takes rho"),
+        (8, "int_upper = 1\ncont_dim = 2", 5, 10, "needs a grid rho"),
+    ];
+    for (line, text, at_line, at_column, word) in mistakes {
+        let mut lines: Vec<&str> = LATTICE.lines().collect();
+        lines[line - 1] = text;
+        let bad = lines.join("\n");
+        let error = Scenario::parse(&bad, path).expect_err(&bad);
+        match &error {
+            Error::Scenario {
+                line,
+                column,
+                reason,
+                ..
+            } => {
+                assert_eq!((*line, *column), (at_line, at_column), "{error}");
+                assert!(reason.contains(word), "{error}");
+            }
+            other => panic!("not a scenario error: {other:?}"),
+        }
     }
 }

@@ -2,7 +2,7 @@
 
 use clap::Args;
 
-use crate::bounds::{feasibility_bounds, first_order_bounds, Side, Status};
+use crate::bounds::{feasibility_bounds, first_order_bounds, lattice_bounds, Side, Status};
 use crate::class::Class;
 use crate::cli::{describe_class, ClassArgs, Family, FirstOrderArgs, EXIT_OK};
 use crate::error::Error;
@@ -19,6 +19,9 @@ pub struct BoundsArgs {
     /// First-order parameters.
     #[command(flatten)]
     pub first_order: FirstOrderArgs,
+    /// Lattice class parameters (`--class lattice`).
+    #[command(flatten)]
+    pub lattice: crate::cli::minimax::LatticeArgs,
 }
 
 /// Runs `bounds`.
@@ -41,13 +44,14 @@ pub fn run(args: &BoundsArgs) -> Result<u8, Error> {
             )
         }
         Family::Lattice => {
-            return Err(Error::Unsupported {
-                what: "naysayer bounds".into(),
-                reason: "no bound lines for lattice classes yet; the corner and mixed-corner \
-                         counts are in `naysayer list`, exact small values in \
-                         `naysayer minimax`"
-                    .into(),
-            })
+            let class = args.lattice.to_class(&args.class)?;
+            (
+                describe_class(&Class::Lattice(class.clone())),
+                "separation with strict cuts over Z^n x R^d; a method outputs a mixed-integer \
+                 point of K or declares none; rho is the radius of the fibre ball K holds \
+                 when it has a mixed-integer point",
+                lattice_bounds(&class),
+            )
         }
     };
     println!("class: {described}");
@@ -61,6 +65,7 @@ pub fn run(args: &BoundsArgs) -> Result<u8, Error> {
         let status = match bound.status {
             Status::Proven => "proven",
             Status::Guide => "guide only, constant unspecified",
+            Status::Construction => "ours, forced in every certified run, not a theorem",
         };
         let value = bound
             .queries
