@@ -14,6 +14,7 @@ pub use error::Error;
 pub mod bounds;
 pub mod certificate;
 pub mod chart;
+pub mod expect;
 pub mod cli;
 pub mod gallery;
 pub mod game;
