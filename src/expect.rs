@@ -329,7 +329,11 @@ fn range_of(raw: &Spanned<RawRange>, error: &dyn Fn(usize, &str) -> Error) -> Re
             }
         }
     };
-    if [range.min, range.max].iter().flatten().any(|v| !v.is_finite()) {
+    if [range.min, range.max]
+        .iter()
+        .flatten()
+        .any(|v| !v.is_finite())
+    {
         return Err(bad("expected values must be finite"));
     }
     if range.min.is_none() && range.max.is_none() {

@@ -67,7 +67,8 @@ certified_lower_bound = { min = 28 }
 
 #[test]
 fn a_method_one_query_short_of_its_expectation_fails_the_gate() {
-    let class = Class::Feasibility(FeasibilityClass::new(3, 1.0, 1e-3, Promise::MayBeEmpty).unwrap());
+    let class =
+        Class::Feasibility(FeasibilityClass::new(3, 1.0, 1e-3, Promise::MayBeEmpty).unwrap());
     let spec = GameSpec {
         class: class.clone(),
         adversary: "halving".into(),
@@ -97,8 +98,10 @@ fn a_method_one_query_short_of_its_expectation_fails_the_gate() {
     let text: Vec<String> = drifts.iter().map(|d| d.to_string()).collect();
     assert_eq!(
         text,
-        ["midpoint.expect.toml:2: game (method midpoint against halving, d = 3, accuracy \
-          0.001, seed 0): queries used 27, expected exactly 28"]
+        [
+            "midpoint.expect.toml:2: game (method midpoint against halving, d = 3, accuracy \
+          0.001, seed 0): queries used 27, expected exactly 28"
+        ]
     );
     // The certified lower bound still holds: the witnesses agree with all 27 answers, and
     // the early "empty" is refuted by the ball witness.
@@ -139,11 +142,19 @@ fn play_exits_with_the_drift_code_and_names_the_game_and_both_numbers() {
 #[test]
 fn a_bad_expectation_file_is_an_input_error_naming_line_and_column() {
     let dir = TempDir::new().unwrap();
-    std::fs::write(dir.path().join("e.toml"), "[[game]]\nmethod = \"midpoint\"\nqueries = 3\n").unwrap();
+    std::fs::write(
+        dir.path().join("e.toml"),
+        "[[game]]\nmethod = \"midpoint\"\nqueries = 3\n",
+    )
+    .unwrap();
     let out = run_in(dir.path(), &["play", "--expect", "e.toml"]);
     assert_eq!(out.status.code(), Some(2));
     assert!(stderr(&out).contains("e.toml:3:1"), "{}", stderr(&out));
-    std::fs::write(dir.path().join("e.toml"), "[[game]]\nmethod = \"midpoint\"\n").unwrap();
+    std::fs::write(
+        dir.path().join("e.toml"),
+        "[[game]]\nmethod = \"midpoint\"\n",
+    )
+    .unwrap();
     let out = run_in(dir.path(), &["play", "--expect", "e.toml"]);
     assert_eq!(out.status.code(), Some(2));
     assert!(stderr(&out).contains("must pin"), "{}", stderr(&out));
@@ -173,7 +184,15 @@ fn sweep_checks_every_game_and_exits_with_the_drift_code() {
     let sweep = |dir: &Path| {
         run_in(
             dir,
-            &["sweep", "gated.toml", "--jobs", "1", "--no-charts", "--expect", "gated.expect.toml"],
+            &[
+                "sweep",
+                "gated.toml",
+                "--jobs",
+                "1",
+                "--no-charts",
+                "--expect",
+                "gated.expect.toml",
+            ],
         )
     };
     expect(
@@ -198,4 +217,35 @@ fn sweep_checks_every_game_and_exits_with_the_drift_code() {
     let out = sweep(dir.path());
     assert_eq!(out.status.code(), Some(5));
     assert!(stderr(&out).contains("selects no game"), "{}", stderr(&out));
+}
+
+#[test]
+fn the_committed_halving_gallery_meets_its_committed_expectations() {
+    // Resumes the committed results (nothing is replayed) and checks the gallery's own
+    // expectation file against every row.
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let dir = TempDir::new().unwrap();
+    let out = dir.path().join("halving");
+    std::fs::create_dir_all(&out).unwrap();
+    for file in ["games.csv", "scenario.toml"] {
+        std::fs::copy(root.join("results/halving").join(file), out.join(file)).unwrap();
+    }
+    let result = Command::new(BIN)
+        .current_dir(root)
+        .args([
+            "sweep",
+            "adversaries/halving.toml",
+            "--no-charts",
+            "--jobs",
+            "1",
+            "--out",
+        ])
+        .arg(dir.path())
+        .args(["--expect", "adversaries/halving.expect.toml"])
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&result.stdout);
+    assert_eq!(result.status.code(), Some(0), "{text}{}", stderr(&result));
+    assert!(text.contains("0 played"), "{text}");
+    assert!(text.contains("held (5 tables)"), "{text}");
 }

@@ -36,21 +36,29 @@ fn python_present() -> bool {
     found
 }
 
-/// The Python checker's exit code and verdict line.
-fn python_check(path: &Path) -> (i32, String) {
+/// Runs the Python checker once over `paths`: each file's verdict line, in order.
+fn python_verdicts(paths: &[PathBuf]) -> Vec<String> {
     let out = Command::new("python3")
         .arg(CHECKER)
-        .arg(path)
+        .args(paths)
         .output()
         .expect("python3 runs");
     let text = String::from_utf8_lossy(&out.stdout).into_owned();
+    let lines: Vec<String> = text.lines().map(String::from).collect();
     assert_eq!(
-        text.lines().count(),
-        1,
-        "one verdict line expected, got {text:?} (stderr {})",
+        lines.len(),
+        paths.len(),
+        "one verdict line per file expected, got {text:?} (stderr {})",
         String::from_utf8_lossy(&out.stderr)
     );
-    (out.status.code().unwrap_or(-1), text.trim().to_string())
+    // The exit code is the largest of the files' codes: 0 valid, 1 rejected.
+    let worst = if lines.iter().all(|l| l.starts_with("VALID ")) {
+        0
+    } else {
+        1
+    };
+    assert_eq!(out.status.code(), Some(worst), "{text}");
+    lines
 }
 
 /// `key=value` fields of a verdict line.
@@ -60,28 +68,39 @@ fn verdict_field<'a>(line: &'a str, key: &str) -> &'a str {
         .unwrap_or_else(|| panic!("no {key} in {line}"))
 }
 
-/// Both checkers on one file; panics when they disagree. Returns whether it is valid.
+/// Both checkers on every file; panics when they disagree. Returns which are valid.
+fn agree_all(paths: &[PathBuf]) -> Vec<bool> {
+    let lines = python_verdicts(paths);
+    paths
+        .iter()
+        .zip(&lines)
+        .map(|(path, line)| {
+            eprintln!("{line}");
+            match verify_file(path) {
+                Ok(v) => {
+                    assert!(
+                        line.starts_with(&format!("VALID {}: ", path.display())),
+                        "Rust accepts {}, Python: {line}",
+                        path.display()
+                    );
+                    compare(&v, line, path);
+                    true
+                }
+                Err(e) => {
+                    assert!(
+                        line.starts_with(&format!("REJECTED {}: ", path.display())),
+                        "Rust rejects {} ({e}), Python: {line}",
+                        path.display()
+                    );
+                    false
+                }
+            }
+        })
+        .collect()
+}
+
 fn agree(path: &Path) -> bool {
-    let rust = verify_file(path);
-    let (code, line) = python_check(path);
-    eprintln!("{line}");
-    match &rust {
-        Ok(v) => {
-            assert_eq!(code, 0, "Rust accepts {}, Python: {line}", path.display());
-            compare(v, &line, path);
-            true
-        }
-        Err(e) => {
-            assert_eq!(
-                code,
-                1,
-                "Rust rejects {} ({e}), Python: {line}",
-                path.display()
-            );
-            assert!(line.starts_with("REJECTED"), "{line}");
-            false
-        }
-    }
+    agree_all(&[path.to_path_buf()])[0]
 }
 
 fn compare(v: &Verdict, line: &str, path: &Path) {
@@ -116,13 +135,7 @@ fn compare(v: &Verdict, line: &str, path: &Path) {
 }
 
 /// Plays one game into `dir`; `None` when the method or adversary does not play the class.
-fn play(
-    dir: &Path,
-    class: &Class,
-    adversary: &str,
-    method: &str,
-    budget: u64,
-) -> Option<PathBuf> {
+fn play(dir: &Path, class: &Class, adversary: &str, method: &str, budget: u64) -> Option<PathBuf> {
     let path = dir.join(format!(
         "{adversary}-{method}-{}.jsonl",
         std::fs::read_dir(dir).unwrap().count()
@@ -164,7 +177,8 @@ fn every_family(dir: &Path) -> Vec<(String, PathBuf)> {
         cases.push(("orthant", first_order(2, 1e-2, norm)));
     }
     cases.push(("orthant", first_order(3, 3e-2, LipschitzNorm::L2)));
-    let lattice = |n, upper, d, rho| Class::Lattice(LatticeClass::mixed(n, 0, upper, d, 1.0, rho).unwrap());
+    let lattice =
+        |n, upper, d, rho| Class::Lattice(LatticeClass::mixed(n, 0, upper, d, 1.0, rho).unwrap());
     cases.push(("corner", lattice(2, 1, 0, 0.5)));
     cases.push(("corner", lattice(3, 1, 0, 0.5)));
     cases.push(("lattice-half", lattice(2, 3, 0, 0.5)));
@@ -220,8 +234,9 @@ fn both_checkers_accept_every_family_and_agree_on_every_number() {
     ] {
         assert!(names.contains(&required), "no {required} game in {names:?}");
     }
-    for (name, path) in &made {
-        assert!(agree(path), "{name}: both checkers should accept it");
+    let paths: Vec<PathBuf> = made.iter().map(|(_, p)| p.clone()).collect();
+    for ((name, _), valid) in made.iter().zip(agree_all(&paths)) {
+        assert!(valid, "{name}: both checkers should accept it");
     }
 }
 
@@ -307,15 +322,19 @@ fn last(lines: &[String]) -> usize {
 
 /// Writes each tampered copy and asserts that both checkers reject it.
 fn both_reject(dir: &Path, tampered: Vec<(&str, Vec<String>)>) {
-    for (name, lines) in tampered {
-        let path = dir.join(format!("{}.jsonl", name.replace(' ', "-")));
+    let mut paths = Vec::new();
+    for (name, lines) in &tampered {
+        let path = dir.join(format!("{}.jsonl", name.replace([' ', '\''], "-")));
         let mut text = lines.join("\n");
         if !name.starts_with("truncated") {
             text.push('\n');
         }
         std::fs::write(&path, text).unwrap();
         assert!(verify_file(&path).is_err(), "{name}: Rust accepts it");
-        assert!(!agree(&path), "{name}: accepted");
+        paths.push(path);
+    }
+    for ((name, _), valid) in tampered.iter().zip(agree_all(&paths)) {
+        assert!(!valid, "{name}: accepted");
     }
 }
 
@@ -370,8 +389,16 @@ fn both_checkers_reject_the_same_tampered_separation_transcripts() {
     let n = last(&lines);
     let fin = json(&lines[n]);
     let ball = &fin["data"]["certificate"]["instances"][1];
-    assert_eq!(ball["kind"], "ball", "the halving certificate is [empty, ball]");
-    let center: Vec<f64> = ball["center"].as_array().unwrap().iter().map(number).collect();
+    assert_eq!(
+        ball["kind"], "ball",
+        "the halving certificate is [empty, ball]"
+    );
+    let center: Vec<f64> = ball["center"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(number)
+        .collect();
     // Query 2's cut {s y_i < b}: through the ball's centre it still excludes the query
     // (s c_i + rho < b <= s x_i) but no longer holds the ball strictly.
     let q = json(&lines[2]);
@@ -392,8 +419,7 @@ fn both_checkers_reject_the_same_tampered_separation_transcripts() {
         (
             "moved witness",
             edit(&lines, n, |v| {
-                v["data"]["certificate"]["instances"][1]["center"] =
-                    serde_json::json!([0.5, 0.5])
+                v["data"]["certificate"]["instances"][1]["center"] = serde_json::json!([0.5, 0.5])
             }),
         ),
         (
@@ -473,7 +499,9 @@ fn both_checkers_reject_the_same_tampered_first_order_transcripts() {
         ),
         (
             "witness cone slope over L",
-            edit(&lines, n, |v| v["data"]["certificate"]["instances"][0]["slope"] = 2.0.into()),
+            edit(&lines, n, |v| {
+                v["data"]["certificate"]["instances"][0]["slope"] = 2.0.into()
+            }),
         ),
         (
             "witness lacks an answer's piece",
@@ -501,7 +529,9 @@ fn both_checkers_reject_the_same_tampered_first_order_transcripts() {
         ),
         (
             "separation answer in a first-order game",
-            edit(&lines, 1, |v| v["data"]["answer"] = serde_json::json!({"kind": "inside"})),
+            edit(&lines, 1, |v| {
+                v["data"]["answer"] = serde_json::json!({"kind": "inside"})
+            }),
         ),
     ]);
     both_reject(dir.path(), tampered);
@@ -602,8 +632,20 @@ fn both_checkers_agree_on_random_one_number_edits() {
     }
     let dir = TempDir::new().unwrap();
     let bases = [
-        play(dir.path(), &feasibility(2, 1e-2, Promise::MayBeEmpty), "halving", "ellipsoid", 1000),
-        play(dir.path(), &first_order(2, 3e-2, LipschitzNorm::Linf), "orthant", "kelley", 1000),
+        play(
+            dir.path(),
+            &feasibility(2, 1e-2, Promise::MayBeEmpty),
+            "halving",
+            "ellipsoid",
+            1000,
+        ),
+        play(
+            dir.path(),
+            &first_order(2, 3e-2, LipschitzNorm::Linf),
+            "orthant",
+            "kelley",
+            1000,
+        ),
         play(
             dir.path(),
             &Class::Lattice(LatticeClass::mixed(2, 0, 1, 1, 1.0, 0.2).unwrap()),
@@ -620,9 +662,10 @@ fn both_checkers_agree_on_random_one_number_edits() {
         (state % bound as u64) as usize
     };
     let (mut accepted, mut rejected) = (0, 0);
+    let mut edited = Vec::new();
     for base in bases.iter().map(|b| b.as_ref().unwrap()) {
         let lines = lines_of(base);
-        for round in 0..12 {
+        for round in 0..25 {
             let index = next(lines.len());
             let mut v = json(&lines[index]);
             let mut paths = Vec::new();
@@ -638,21 +681,35 @@ fn both_checkers_agree_on_random_one_number_edits() {
                 1 => (-x).into(),
                 2 => (x * 0.5).into(),
                 3 => 0.into(),
-                _ => (if x == 0.0 { f64::MIN_POSITIVE } else { x * (1.0 + f64::EPSILON) }).into(),
+                _ => (if x == 0.0 {
+                    f64::MIN_POSITIVE
+                } else {
+                    x * (1.0 + f64::EPSILON)
+                })
+                .into(),
             };
             let mut out = lines.clone();
             out[index] = serde_json::to_string(&v).unwrap();
-            let path = dir.path().join(format!("edit-{round}-{}", base.file_name().unwrap().to_string_lossy()));
+            let path = dir.path().join(format!(
+                "edit-{round}-{}",
+                base.file_name().unwrap().to_string_lossy()
+            ));
             std::fs::write(&path, out.join("\n") + "\n").unwrap();
-            if agree(&path) {
-                accepted += 1;
-            } else {
-                rejected += 1;
-            }
+            edited.push(path);
+        }
+    }
+    for valid in agree_all(&edited) {
+        if valid {
+            accepted += 1;
+        } else {
+            rejected += 1;
         }
     }
     eprintln!("random edits: {accepted} accepted by both, {rejected} rejected by both");
-    assert!(rejected > 0, "no edit was rejected: the edits do not reach the certificate");
+    assert!(
+        rejected > 0,
+        "no edit was rejected: the edits do not reach the certificate"
+    );
 }
 
 /// The performance figure of issue 8: a 10 000-query separation transcript in d = 10,
