@@ -3,36 +3,34 @@
 
 Usage: python3 tools/check_certificate.py TRANSCRIPT.jsonl [MORE.jsonl ...]
 
-Understands exactly transcript format 1 (header "format") and certificate schema 1
-(final record's certificate "schema"; absent = 1, written before the key existed); other
-versions are refused. Written from the documented format (README, rustdoc of
-naysayer::transcript) and THEORY.md 0, 1, 2, 4; it shares no code with the Rust verifier.
-Every comparison is exact (fractions.Fraction over the stored numbers; square roots by
-squaring with the sign checked first; no float comparison, no tolerance).
+Reads exactly transcript format 1 (header "format") and certificate schema 1 (final
+record "certificate.schema"; absent = 1, from before the key existed); refuses others.
+Written from the documented format (README, rustdoc of naysayer::transcript) and THEORY.md
+0, 1, 2, 4, sharing no code with the Rust verifier. Every comparison is exact (Fraction
+over the stored numbers; square roots by squaring with the sign checked; no tolerance).
 
-Claims checked: records in order, numbers finite, {"exact": "p/q", "approx": f} with f
-its nearest float, valid class, T* <= queries used, counts match; every answer of the
-certified prefix agrees with every witness; the witnesses' correct outputs are pairwise
-disjoint, or T* covers the game and a witness refutes the output.
-- separation: each cut {a.y < b} excludes its query (a.x >= b); witnesses: the empty set
-  or a closed rho-ball in the box, strictly inside a cut iff s = b - a.c > 0 and
-  rho^2 |a|^2 < s^2, holding each `inside` query.
-- first-order: subgradients within L in the dual norm; a witness max(pieces, floor +
-  sigma |y - c|_inf) has c in the box, 0 < sigma <= L, pieces within L and <= floor at c
-  (convex, L-Lipschitz, minimum floor at c, {f <= floor + eps} in c + (eps/sigma) B_inf);
-  it reproduces each answer (the answer's affine piece is a piece, f(x_t) = v_t; hence
-  pairwise consistency v_s + g_s.(x_t - x_s) <= v_t); centres apart: |c_A - c_B|_inf >
-  eps/sigma_A + eps/sigma_B. eps_cert = min |c_A - c_B|_inf / (1/sigma_A + 1/sigma_B),
-  rounded down to a float.
-- lattice: a witness conv(F cup {v} x B(c, rho)) lies in the box, no point of F is
-  mixed-integer, the integer parts of F and v lie in one closed unit cube (so a lattice
-  point of the hull is a cube vertex, a combination only of points with that integer
-  part: the mixed-integer points are exactly the fibre ball); a cut holds it iff it holds
-  F strictly and the fibre ball (only the continuous part of the normal in the norm).
+Claims: records in order; numbers finite, {"exact": "p/q", "approx": f} with f nearest;
+valid class; T* <= queries used; counts match; every answer of the certified prefix T*
+agrees with every witness; the witnesses' correct outputs are pairwise disjoint, or T*
+covers the game and a witness refutes the output. Per class:
+- separation: cuts {a.y < b} exclude their query (a.x >= b); a witness is the empty set
+  or a closed rho-ball in the box, inside a cut iff s = b - a.c > 0 and rho^2|a|^2 < s^2.
+- first-order: subgradients within L (dual norm); a witness max(pieces, floor + sigma
+  |y - c|_inf) has c in the box, 0 < sigma <= L, pieces within L and <= floor at c (so
+  convex, L-Lipschitz, minimal at c, {f <= floor + eps} in c + (eps/sigma) B_inf); it
+  reproduces each answer (own affine piece is a piece, f(x_t) = v_t; hence pairwise
+  consistency v_s + g_s.(x_t - x_s) <= v_t); centres apart: |c_A - c_B|_inf > eps/sigma_A
+  + eps/sigma_B. Prints eps_cert = min |c_A - c_B|_inf / (1/sigma_A + 1/sigma_B), rounded
+  down to a float.
+- lattice: a witness conv(F cup {v} x B(c, rho)) lies in the box, F has no mixed-integer
+  point, the integer parts of F and v lie in one unit cube (a lattice point of the hull is
+  then a cube vertex, a combination of points with that integer part only: the hull's
+  mixed-integer points are exactly the fibre ball); a cut holds it iff it holds F
+  strictly and the fibre ball (only the continuous part of the normal in the norm).
 
 One verdict line per file. Exit 0: every claim holds; 1: rejected (a claim fails, the
-file is malformed, or its version is unknown); 2: bad usage or an unreadable file (with
-several files, the largest of their codes).
+file is malformed, or its version is unknown); 2: bad usage or unreadable file (several
+files: the largest code).
 """
 import json
 import math
@@ -319,7 +317,6 @@ def check(text):
     budget = integer(get(head, "budget", "header"), "budget")
     integer(get(head, "seed", "header"), "seed")
     cls = parse_class(get(head, "class", "header"))
-
     AT[0], fin = len(recs), recs[-1]["data"]
     used = integer(get(fin, "queries_used", "final"), "queries_used")
     if used != len(recs) - 2:
@@ -353,7 +350,6 @@ def check(text):
         if not isinstance(inst, list):
             fail("the certificate's instances must be a list")
         wits = [parse_witness(w, cls, k) for k, w in enumerate(inst, 1)]
-
     for t, rec in enumerate(recs[1:-1], 1):
         AT[0], q = t + 1, rec["data"]
         index = get(q, "index", "query")
@@ -366,7 +362,6 @@ def check(text):
         for k, w in enumerate(wits if t <= prefix else [], 1):
             if not agrees(w, x, ans):
                 fail(f"answer {t}: witness #{k} ({w['kind']}) does not agree with it")
-
     AT[0] = len(recs)
     full = cert is not None and prefix == used
     refuted = output is not None and full and any(refutes(w, output, cls) for w in wits)
