@@ -49,7 +49,9 @@ fn python_checker(c: &mut Criterion) {
     );
     let mut group = c.benchmark_group("independent_checker");
     group.sample_size(10);
-    group.bench_function("python, 10 000 queries, d = 10", |b| b.iter(|| check(&path)));
+    group.bench_function("python, 10 000 queries, d = 10", |b| {
+        b.iter(|| check(&path))
+    });
     group.finish();
 }
 

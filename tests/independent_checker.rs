@@ -404,6 +404,20 @@ fn both_checkers_reject_the_same_tampered_separation_transcripts() {
     let q = json(&lines[2]);
     let axis = q["data"]["answer"]["normal"]["axis"].as_u64().unwrap() as usize;
     let sign = q["data"]["answer"]["normal"]["sign"].as_f64().unwrap();
+    // A certificate written before the schema key existed is schema 1, still checkable.
+    let old = edit(&lines, n, |v| {
+        v["data"]["certificate"]
+            .as_object_mut()
+            .unwrap()
+            .remove("schema");
+    });
+    let old_path = dir.path().join("before-schema-key.jsonl");
+    std::fs::write(&old_path, old.join("\n") + "\n").unwrap();
+    assert!(!old[n].contains("schema"));
+    assert!(
+        agree(&old_path),
+        "a schema-1 certificate without the key must stay valid"
+    );
     let mut tampered = structural(&lines);
     tampered.extend([
         (
