@@ -283,6 +283,11 @@ def parse_answer(a, cls, t):
         fail(f"{what}: the cut normal is zero")
     return (nrm, exact(get(a, "offset", what), what))
 
+def unique_keys(pairs):
+    if len({k for k, _ in pairs}) != len(pairs):
+        raise ValueError("a key appears twice in one object")
+    return dict(pairs)
+
 def check(text):
     lines = text.split("\n")
     if lines and lines[-1] == "":
@@ -292,9 +297,10 @@ def check(text):
     recs = []
     for AT[0], raw in enumerate(lines, 1):
         try:
-            rec = json.loads(raw.rstrip("\r"), parse_float=finite_float, parse_constant=finite_float)
+            rec = json.loads(raw.rstrip("\r"), parse_float=finite_float, parse_constant=finite_float,
+                             object_pairs_hook=unique_keys)
         except ValueError as e:
-            fail(f"not a complete JSON record (truncated?): {e}")
+            fail(f"not a complete JSON record (truncated?) or a repeated key: {e}")
         if not isinstance(rec, dict) or rec.get("type") not in ("header", "query", "final") \
                 or not isinstance(rec.get("data"), dict):
             fail('not a record {"type": header|query|final, "data": {...}}')
