@@ -15,6 +15,7 @@ pub mod bounds;
 pub mod certificate;
 pub mod chart;
 pub mod cli;
+pub mod expect;
 pub mod gallery;
 pub mod game;
 pub mod hunt;

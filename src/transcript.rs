@@ -14,8 +14,10 @@
 //!    "certificate":C}}` with `E` one of `{"kind":"output","output":{"kind":"empty"}}`,
 //!    `{"kind":"output","output":{"kind":"point","point":[...]}}`,
 //!    `{"kind":"budget-exhausted"}`, `{"kind":"method-failed","reason":"..."}`, and `C`
-//!    either `null` or `{"prefix":T*,"instances":[W,...]}`: witnesses that agree with the
-//!    first `T*` answers. A witness is `{"kind":"empty"}` or
+//!    either `null` or `{"schema":S,"prefix":T*,"instances":[W,...]}`: witnesses that
+//!    agree with the first `T*` answers, in certificate schema `S`
+//!    ([`CERTIFICATE_SCHEMA`]; absent in files written before the key existed, read as
+//!    schema 1; an unknown schema is refused). A witness is `{"kind":"empty"}` or
 //!    `{"kind":"ball","center":[c_1,...],"radius":rho}`.
 //!
 //! Lattice classes (THEORY.md 4): the class is `{"kind":"lattice","lower":[l_1,...],
@@ -53,6 +55,15 @@ use crate::oracle::{Answer, Normal};
 
 /// The transcript format version this build writes and reads.
 pub const FORMAT_VERSION: u32 = 1;
+
+/// The certificate schema version this build writes: the `schema` key of the final
+/// record's `certificate`, versioned separately from [`FORMAT_VERSION`] so that the
+/// witness kinds can change while the record layout stays (changelog in the README).
+pub const CERTIFICATE_SCHEMA: u32 = 1;
+
+/// Every certificate schema version this build reads (old certificates stay checkable;
+/// a certificate without `schema` is schema 1).
+pub const CERTIFICATE_SCHEMAS_READ: &[u32] = &[1];
 
 /// One query record.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

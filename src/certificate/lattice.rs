@@ -169,6 +169,12 @@ impl LatticeVerifier {
         let error = |reason: String| Error::Transcript { line, reason };
         let dim = self.class.query_dim();
         let x: Vec<BigRational> = query.point.iter().map(|v| f64_to_rational(*v)).collect();
+        if let Answer::FirstOrder(_) = &query.answer {
+            return Err(error(format!(
+                "answer {}: a first-order answer in a separation-oracle transcript",
+                query.index
+            )));
+        }
         if let Answer::Cut(cut) = &query.answer {
             if !cut.normal.is_well_formed(dim) {
                 return Err(error(format!(

@@ -121,7 +121,10 @@ pub fn verify_file(path: &std::path::Path) -> Result<Verdict, Error> {
         Ok(Record::Final(f)) => Some(f),
         Ok(_) => None,
         Err(e) => {
-            if last_line > 1 {
+            // A complete JSON line that is not a valid record (for example an unknown
+            // certificate schema) is reported as it is, not as a truncation.
+            let complete = serde_json::from_str::<serde_json::Value>(&last_text).is_ok();
+            if last_line > 1 && !complete {
                 return Err(Error::Transcript {
                     line: last_line,
                     reason: format!("the last line is not a complete record (truncated?): {e}"),

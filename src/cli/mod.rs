@@ -4,7 +4,8 @@
 //! Exit codes (documented in the README):
 //! 0 success; 1 a certificate was rejected by the verifier; 2 bad arguments or bad
 //! input (a file that cannot be read or parsed, an invalid class); 3 the method failed;
-//! 4 an I/O error while writing output.
+//! 4 an I/O error while writing output; 5 a result drifted from its expectation
+//! (`--expect`).
 
 pub mod audit;
 pub mod bounds;
@@ -35,6 +36,36 @@ pub const EXIT_BAD_INPUT: u8 = 2;
 pub const EXIT_METHOD_FAILED: u8 = 3;
 /// Exit code: an I/O error while writing output.
 pub const EXIT_IO: u8 = 4;
+/// Exit code: a result drifted from its expectation (`--expect`, [`crate::expect`]).
+pub const EXIT_DRIFT: u8 = 5;
+
+/// Checks `results` against the expectation file at `path`, prints one line per drift on
+/// stderr, and returns the exit code: `code` when it is already nonzero (a lower code
+/// wins), [`EXIT_DRIFT`] when anything drifted, else [`EXIT_OK`].
+pub fn gate(
+    path: &std::path::Path,
+    results: &[crate::expect::GameResult],
+    require_match: bool,
+    code: u8,
+) -> Result<u8, Error> {
+    let expectations = crate::expect::Expectations::from_file(path)?;
+    let drifts = expectations.check(results, require_match);
+    for drift in &drifts {
+        eprintln!("naysayer: drift: {drift}");
+    }
+    Ok(if code != EXIT_OK {
+        code
+    } else if drifts.is_empty() {
+        println!(
+            "expectations           {} held ({} tables)",
+            path.display(),
+            expectations.games.len()
+        );
+        EXIT_OK
+    } else {
+        EXIT_DRIFT
+    })
+}
 
 /// Plays optimization methods against resisting oracles and certifies query lower
 /// bounds exactly.

@@ -43,6 +43,9 @@ pub struct PlayArgs {
     /// Write the transcript here (JSON Lines); otherwise it is kept in memory.
     #[arg(short, long)]
     pub transcript: Option<PathArg>,
+    /// Expectation file (TOML, see `naysayer::expect`): exit 5 when a number drifts.
+    #[arg(long)]
+    pub expect: Option<PathArg>,
 }
 
 /// Runs `play`.
@@ -74,13 +77,24 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
         budget: args.budget,
         transcript: args.transcript.clone(),
     };
+    // Read the expectations before playing, so a bad file costs no game.
+    if let Some(path) = &args.expect {
+        crate::expect::Expectations::from_file(path)?;
+    }
     let report = runner::run(&spec)?;
     print!("{}", summary(&spec, &report));
-    Ok(match (&report.verdict, &report.record.ending) {
+    let code = match (&report.verdict, &report.record.ending) {
         (Err(_), _) => EXIT_REJECTED,
         (Ok(_), Ending::MethodFailed { .. }) => EXIT_METHOD_FAILED,
         _ => EXIT_OK,
-    })
+    };
+    match &args.expect {
+        Some(path) => {
+            let result = crate::expect::GameResult::from_report(&spec, &report);
+            crate::cli::gate(path, &[result], true, code)
+        }
+        None => Ok(code),
+    }
 }
 
 /// The outcome in words.

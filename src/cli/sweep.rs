@@ -27,6 +27,10 @@ pub struct SweepArgs {
     /// Do not draw charts after the sweep.
     #[arg(long)]
     pub no_charts: bool,
+    /// Expectation file (TOML, see `naysayer::expect`) checked against the games of
+    /// every scenario given: exit 5 when a number drifts.
+    #[arg(long)]
+    pub expect: Option<PathBuf>,
 }
 
 /// Arguments of `naysayer merge`.
@@ -47,6 +51,10 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
         .iter()
         .map(|p| Scenario::from_file(p))
         .collect::<Result<Vec<_>, _>>()?;
+    if let Some(path) = &args.expect {
+        crate::expect::Expectations::from_file(path)?;
+    }
+    let mut results = Vec::new();
     let settings = SweepSettings {
         jobs: args
             .jobs
@@ -58,6 +66,9 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
     let mut code = EXIT_OK;
     for scenario in &scenarios {
         let summary = sweep::run(scenario, &settings)?;
+        if args.expect.is_some() {
+            results.extend(crate::expect::GameResult::from_csv(&summary.csv)?);
+        }
         println!(
             "{}: {} games ({} resumed, {} played) -> {}",
             scenario.name,
@@ -77,7 +88,10 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
             crate::cli::chart::draw_all(&scenario.results_dir(&args.out))?;
         }
     }
-    Ok(code)
+    match &args.expect {
+        Some(path) => crate::cli::gate(path, &results, args.shard.is_none(), code),
+        None => Ok(code),
+    }
 }
 
 /// Runs `merge`.
