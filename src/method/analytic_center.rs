@@ -30,18 +30,18 @@
 //! First-order classes ([`AnalyticCenter::first_order`]): each answer becomes its objective cut
 //! `g.y < g.x`, which keeps every point better than the query, so the model P contains
 //! all of them; the method keeps its best point and the lower bound
-//! f* >= min(f_best, min_P M_t) of [`PolytopeObjective`] (an LP over P of the
+//! f* >= min(f_best, min_P M_t) of [`PolytopeObjective`](crate::method::kelley::PolytopeObjective) (an LP over P of the
 //! cutting-plane model, Kelley 1960), and outputs its best point once that gap is at most
-//! eps or once P holds no ball of radius [`volume_radius`] (the volume argument).
+//! eps or once P holds no ball of radius [`volume_radius`](crate::method::kelley::volume_radius) (the volume argument).
 
 use nalgebra::{DMatrix, DVector};
 
-use crate::class::{FeasibilityClass, FirstOrderClass, Promise};
+use crate::class::{FeasibilityClass, FirstOrderClass};
 use crate::error::Error;
-use crate::geometry::polytope::{dot, BallTest, Polytope};
-use crate::method::kelley::{volume_radius, PolytopeObjective};
-use crate::method::{blame, give_up, unchanged, Method};
-use crate::oracle::{Answer, Output, Separation, Step};
+use crate::geometry::polytope::{dot, Polytope};
+use crate::method::cut_model::{CutModel, Start};
+use crate::method::Method;
+use crate::oracle::{Answer, Step};
 
 const NAME: &str = "analytic-center";
 
@@ -191,51 +191,35 @@ pub fn analytic_center(polytope: &Polytope, start: &[f64]) -> Result<NewtonResul
 /// rho-ball fits.
 #[derive(Clone, Debug)]
 pub struct AnalyticCenter {
-    polytope: Polytope,
-    rho: f64,
-    promise: Promise,
+    model: CutModel,
     last_iterations: usize,
     fallbacks: u64,
-    found: Option<Vec<f64>>,
-    /// First-order classes: objective-cut bookkeeping (best point, lower bound).
-    objective: Option<PolytopeObjective>,
 }
 
 impl AnalyticCenter {
     /// Starts from the class's box.
     pub fn new(class: &FeasibilityClass) -> Result<AnalyticCenter, Error> {
         Ok(AnalyticCenter {
-            polytope: Polytope::cube(class.dim, class.half_width),
-            rho: class.rho,
-            promise: class.promise,
+            model: CutModel::new(class),
             last_iterations: 0,
             fallbacks: 0,
-            found: None,
-            objective: None,
         })
     }
 
     /// The method on a first-order class (module doc): objective cuts `g.y < g.x`
     /// ([`Answer::to_separation`]), the best point kept, and a stop with that point once
-    /// the LP bound of [`PolytopeObjective`] leaves a gap of at most eps or the model
-    /// holds no ball of radius [`volume_radius`]; never "empty".
+    /// the LP bound of [`PolytopeObjective`](crate::method::kelley::PolytopeObjective) leaves a gap of at most eps or the model
+    /// holds no ball of radius [`volume_radius`](crate::method::kelley::volume_radius); never "empty".
     pub fn first_order(class: &FirstOrderClass) -> Result<AnalyticCenter, Error> {
-        let relaxed = FeasibilityClass::new(
-            class.dim,
-            class.half_width,
-            volume_radius(class),
-            Promise::Nonempty,
-        )?;
-        let mut method = AnalyticCenter::new(&relaxed)?;
-        method.objective = Some(PolytopeObjective::new(class));
+        let mut method = AnalyticCenter::new(&CutModel::relaxed(class)?)?;
+        method.model = method.model.with_objective(class);
         Ok(method)
     }
 
     /// First-order classes: the best value seen and the best lower bound on f*; `None`
     /// on a feasibility class or before the first answer.
     pub fn bounds(&self) -> Option<(f64, f64)> {
-        let bundle = self.objective.as_ref()?.bundle();
-        Some((bundle.best_value()?, bundle.lower_bound()))
+        self.model.bounds()
     }
 
     /// Newton iterations spent on the last query.
@@ -250,7 +234,7 @@ impl AnalyticCenter {
 
     /// The current model.
     pub fn polytope(&self) -> &Polytope {
-        &self.polytope
+        &self.model.polytope
     }
 }
 
@@ -264,49 +248,12 @@ impl Method for AnalyticCenter {
     }
 
     fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
-        if let Some(point) = self.found.take() {
-            return Ok(Step::Output(Output::Point { point }));
-        }
-        if let Some(objective) = self.objective.as_ref().filter(|o| o.done()) {
-            return Ok(Step::Output(Output::Point {
-                point: objective.best_point(),
-            }));
-        }
-        if query.len() != self.polytope.dim() {
-            return Err(Error::MethodFailed {
-                method: NAME.into(),
-                reason: format!(
-                    "query buffer has length {} in dimension {}",
-                    query.len(),
-                    self.polytope.dim()
-                ),
-            });
-        }
-        let center = match self
-            .polytope
-            .ball_test(self.rho)
-            .map_err(|e| blame(e, NAME))?
-        {
-            BallTest::NoBall => {
-                if let Some(objective) = &self.objective {
-                    return Ok(Step::Output(Output::Point {
-                        point: objective.best_point(),
-                    }));
-                }
-                let (lower, upper) = self.polytope.bounding_box();
-                let guess = || {
-                    lower
-                        .iter()
-                        .zip(upper)
-                        .map(|(l, u)| 0.5 * l + 0.5 * u)
-                        .collect()
-                };
-                return Ok(Step::Output(give_up(self.promise, guess)));
-            }
-            BallTest::Center(center, _) => center,
+        let center = match self.model.start(NAME, query.len())? {
+            Start::Stop(step) => return Ok(step),
+            Start::Centre(center) => center,
         };
-        match analytic_center(&self.polytope, &center) {
-            Ok(result) if self.polytope.contains_strictly(&result.point) => {
+        match analytic_center(&self.model.polytope, &center) {
+            Ok(result) if self.model.polytope.contains_strictly(&result.point) => {
                 self.last_iterations = result.iterations;
                 query.copy_from_slice(&result.point);
             }
@@ -320,23 +267,7 @@ impl Method for AnalyticCenter {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
-        if let Some(objective) = &mut self.objective {
-            objective.record(NAME, query, answer)?;
-        }
-        match answer.to_separation(query) {
-            Separation::Inside => self.found = Some(query.to_vec()),
-            Separation::Cut(cut) => {
-                if !self.polytope.add_cut(&cut).map_err(|e| blame(e, NAME))? {
-                    return Err(unchanged(NAME));
-                }
-            }
-        }
-        if let Some(objective) = &mut self.objective {
-            objective
-                .update_bound(&self.polytope)
-                .map_err(|e| blame(e, NAME))?;
-        }
-        Ok(())
+        self.model.observe(NAME, query, answer)
     }
 }
 

@@ -21,12 +21,13 @@
 //! leaves the model unchanged (outward rounding swallowed it), the method stops with
 //! [`crate::error::Error::MethodFailed`] rather than repeat a query or claim anything.
 
-use crate::class::{FeasibilityClass, Promise};
+use crate::class::FeasibilityClass;
 use crate::error::Error;
 use crate::geometry::polygon::Polygon;
-use crate::geometry::polytope::{BallTest, Halfspace, Polytope};
-use crate::method::{blame, give_up, unchanged, Method};
-use crate::oracle::{Answer, Output, Separation, Step};
+use crate::geometry::polytope::{Halfspace, Polytope};
+use crate::method::cut_model::{CutModel, Start};
+use crate::method::{blame, unchanged, Method};
+use crate::oracle::{Answer, Separation, Step};
 
 const NAME: &str = "centroid";
 
@@ -34,12 +35,9 @@ const NAME: &str = "centroid";
 /// centroid); "empty" once the model proves no rho-ball fits.
 #[derive(Clone, Debug)]
 pub struct Centroid {
-    polytope: Polytope,
+    model: CutModel,
     /// The model as a polygon (d = 2 only).
     polygon: Option<Polygon>,
-    rho: f64,
-    promise: Promise,
-    found: Option<Vec<f64>>,
 }
 
 impl Centroid {
@@ -57,17 +55,14 @@ impl Centroid {
         }
         let r = class.half_width;
         Ok(Centroid {
-            polytope: Polytope::cube(class.dim, r),
+            model: CutModel::new(class),
             polygon: (class.dim == 2).then(|| Polygon::from_box([-r, -r], [r, r])),
-            rho: class.rho,
-            promise: class.promise,
-            found: None,
         })
     }
 
     /// The current model.
     pub fn polytope(&self) -> &Polytope {
-        &self.polytope
+        &self.model.polytope
     }
 
     /// The current polygon (d = 2).
@@ -86,43 +81,16 @@ impl Method for Centroid {
     }
 
     fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
-        if let Some(point) = self.found.take() {
-            return Ok(Step::Output(Output::Point { point }));
-        }
-        if query.len() != self.polytope.dim() {
-            return Err(Error::MethodFailed {
-                method: NAME.into(),
-                reason: format!(
-                    "query buffer has length {} in dimension {}",
-                    query.len(),
-                    self.polytope.dim()
-                ),
-            });
-        }
-        let center = match self
-            .polytope
-            .ball_test(self.rho)
-            .map_err(|e| blame(e, NAME))?
-        {
-            BallTest::NoBall => {
-                let (lower, upper) = self.polytope.bounding_box();
-                let guess = || {
-                    lower
-                        .iter()
-                        .zip(upper)
-                        .map(|(l, u)| 0.5 * l + 0.5 * u)
-                        .collect()
-                };
-                return Ok(Step::Output(give_up(self.promise, guess)));
-            }
-            BallTest::Center(center, _) => center,
+        let center = match self.model.start(NAME, query.len())? {
+            Start::Stop(step) => return Ok(step),
+            Start::Centre(center) => center,
         };
         let centroid = self
             .polygon
             .as_ref()
             .and_then(Polygon::centroid)
             .map(|c| c.to_vec())
-            .filter(|c| self.polytope.contains_strictly(c));
+            .filter(|c| self.model.polytope.contains_strictly(c));
         // Without a usable polygon centroid (d = 1, or a polygon rounded away) the
         // Chebyshev centre is the query; in d = 1 it is the midpoint, the centroid.
         query.copy_from_slice(centroid.as_deref().unwrap_or(&center));
@@ -131,9 +99,13 @@ impl Method for Centroid {
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
         match answer.to_separation(query) {
-            Separation::Inside => self.found = Some(query.to_vec()),
+            Separation::Inside => self.model.found = Some(query.to_vec()),
             Separation::Cut(cut) => {
-                let halfspace = self.polytope.halfspace(&cut).map_err(|e| blame(e, NAME))?;
+                let halfspace = self
+                    .model
+                    .polytope
+                    .halfspace(&cut)
+                    .map_err(|e| blame(e, NAME))?;
                 if let Some(polygon) = &mut self.polygon {
                     match &halfspace {
                         Halfspace::Infeasible => *polygon = Polygon::from_vertices(Vec::new()),
@@ -144,7 +116,7 @@ impl Method for Centroid {
                         }
                     }
                 }
-                if !self.polytope.add(&halfspace) {
+                if !self.model.polytope.add(&halfspace) {
                     return Err(unchanged(NAME));
                 }
             }

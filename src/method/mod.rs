@@ -12,6 +12,7 @@
 
 pub mod analytic_center;
 pub mod centroid;
+mod cut_model;
 pub mod ellipsoid;
 pub mod enumerate;
 pub mod fibre_bisection;

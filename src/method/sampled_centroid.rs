@@ -22,35 +22,30 @@
 //! First-order classes ([`SampledCentroid::first_order`]): each answer becomes its objective cut
 //! `g.y < g.x`, which keeps every point better than the query, so the model P contains
 //! all of them; the method keeps its best point and the lower bound
-//! f* >= min(f_best, min_P M_t) of [`PolytopeObjective`] (an LP over P of the
+//! f* >= min(f_best, min_P M_t) of [`PolytopeObjective`](crate::method::kelley::PolytopeObjective) (an LP over P of the
 //! cutting-plane model, Kelley 1960), and outputs its best point once that gap is at most
-//! eps or once P holds no ball of radius [`volume_radius`] (the volume argument).
+//! eps or once P holds no ball of radius [`volume_radius`](crate::method::kelley::volume_radius) (the volume argument).
 
-use crate::class::{FeasibilityClass, FirstOrderClass, Promise};
+use crate::class::{FeasibilityClass, FirstOrderClass};
 use crate::error::Error;
 use crate::geometry::hit_and_run::HitAndRun;
-use crate::geometry::polytope::{BallTest, Polytope};
-use crate::method::kelley::{volume_radius, PolytopeObjective};
-use crate::method::{blame, give_up, unchanged, Method};
-use crate::oracle::{Answer, Output, Separation, Step};
+use crate::geometry::polytope::Polytope;
+use crate::method::cut_model::{CutModel, Start};
+use crate::method::Method;
+use crate::oracle::{Answer, Step};
 
 const NAME: &str = "sampled-centroid";
 
 /// Hit-and-run estimate of the centroid of the model; seeded, any dimension.
 #[derive(Clone, Debug)]
 pub struct SampledCentroid {
-    polytope: Polytope,
+    model: CutModel,
     walker: HitAndRun,
-    rho: f64,
-    promise: Promise,
     samples: usize,
     burn_in: usize,
     thin: usize,
     mean: Vec<f64>,
     fallbacks: u64,
-    found: Option<Vec<f64>>,
-    /// First-order classes: objective-cut bookkeeping (best point, lower bound).
-    objective: Option<PolytopeObjective>,
 }
 
 impl SampledCentroid {
@@ -58,41 +53,30 @@ impl SampledCentroid {
     pub fn new(class: &FeasibilityClass, seed: u64) -> Result<SampledCentroid, Error> {
         let d = class.dim;
         Ok(SampledCentroid {
-            polytope: Polytope::cube(d, class.half_width),
+            model: CutModel::new(class),
             walker: HitAndRun::new(d, seed),
-            rho: class.rho,
-            promise: class.promise,
             samples: 10 * d + 20,
             burn_in: 20 * d,
             thin: d,
             mean: vec![0.0; d],
             fallbacks: 0,
-            found: None,
-            objective: None,
         })
     }
 
     /// The method on a first-order class (module doc): objective cuts `g.y < g.x`
     /// ([`Answer::to_separation`]), the best point kept, and a stop with that point once
-    /// the LP bound of [`PolytopeObjective`] leaves a gap of at most eps or the model
-    /// holds no ball of radius [`volume_radius`]; never "empty".
+    /// the LP bound of [`PolytopeObjective`](crate::method::kelley::PolytopeObjective) leaves a gap of at most eps or the model
+    /// holds no ball of radius [`volume_radius`](crate::method::kelley::volume_radius); never "empty".
     pub fn first_order(class: &FirstOrderClass, seed: u64) -> Result<SampledCentroid, Error> {
-        let relaxed = FeasibilityClass::new(
-            class.dim,
-            class.half_width,
-            volume_radius(class),
-            Promise::Nonempty,
-        )?;
-        let mut method = SampledCentroid::new(&relaxed, seed)?;
-        method.objective = Some(PolytopeObjective::new(class));
+        let mut method = SampledCentroid::new(&CutModel::relaxed(class)?, seed)?;
+        method.model = method.model.with_objective(class);
         Ok(method)
     }
 
     /// First-order classes: the best value seen and the best lower bound on f*; `None`
     /// on a feasibility class or before the first answer.
     pub fn bounds(&self) -> Option<(f64, f64)> {
-        let bundle = self.objective.as_ref()?.bundle();
-        Some((bundle.best_value()?, bundle.lower_bound()))
+        self.model.bounds()
     }
 
     /// Samples N averaged per query (10 d + 20).
@@ -107,7 +91,7 @@ impl SampledCentroid {
 
     /// The current model.
     pub fn polytope(&self) -> &Polytope {
-        &self.polytope
+        &self.model.polytope
     }
 }
 
@@ -121,52 +105,15 @@ impl Method for SampledCentroid {
     }
 
     fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
-        if let Some(point) = self.found.take() {
-            return Ok(Step::Output(Output::Point { point }));
-        }
-        if let Some(objective) = self.objective.as_ref().filter(|o| o.done()) {
-            return Ok(Step::Output(Output::Point {
-                point: objective.best_point(),
-            }));
-        }
-        if query.len() != self.polytope.dim() {
-            return Err(Error::MethodFailed {
-                method: NAME.into(),
-                reason: format!(
-                    "query buffer has length {} in dimension {}",
-                    query.len(),
-                    self.polytope.dim()
-                ),
-            });
-        }
-        let center = match self
-            .polytope
-            .ball_test(self.rho)
-            .map_err(|e| blame(e, NAME))?
-        {
-            BallTest::NoBall => {
-                if let Some(objective) = &self.objective {
-                    return Ok(Step::Output(Output::Point {
-                        point: objective.best_point(),
-                    }));
-                }
-                let (lower, upper) = self.polytope.bounding_box();
-                let guess = || {
-                    lower
-                        .iter()
-                        .zip(upper)
-                        .map(|(l, u)| 0.5 * l + 0.5 * u)
-                        .collect()
-                };
-                return Ok(Step::Output(give_up(self.promise, guess)));
-            }
-            BallTest::Center(center, _) => center,
+        let center = match self.model.start(NAME, query.len())? {
+            Start::Stop(step) => return Ok(step),
+            Start::Centre(center) => center,
         };
-        let sampled = self.polytope.contains_strictly(&center)
+        let sampled = self.model.polytope.contains_strictly(&center)
             && self
                 .walker
                 .sample_mean(
-                    &self.polytope,
+                    &self.model.polytope,
                     &center,
                     self.burn_in,
                     self.thin,
@@ -174,7 +121,7 @@ impl Method for SampledCentroid {
                     &mut self.mean,
                 )
                 .is_ok()
-            && self.polytope.contains_strictly(&self.mean);
+            && self.model.polytope.contains_strictly(&self.mean);
         if sampled {
             query.copy_from_slice(&self.mean);
         } else {
@@ -185,23 +132,7 @@ impl Method for SampledCentroid {
     }
 
     fn observe(&mut self, query: &[f64], answer: &Answer) -> Result<(), Error> {
-        if let Some(objective) = &mut self.objective {
-            objective.record(NAME, query, answer)?;
-        }
-        match answer.to_separation(query) {
-            Separation::Inside => self.found = Some(query.to_vec()),
-            Separation::Cut(cut) => {
-                if !self.polytope.add_cut(&cut).map_err(|e| blame(e, NAME))? {
-                    return Err(unchanged(NAME));
-                }
-            }
-        }
-        if let Some(objective) = &mut self.objective {
-            objective
-                .update_bound(&self.polytope)
-                .map_err(|e| blame(e, NAME))?;
-        }
-        Ok(())
+        self.model.observe(NAME, query, answer)
     }
 }
 
