@@ -38,7 +38,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
     match *class {
         LargeScaleClass::Nonsmooth { lipschitz: m, .. } => vec![
             GapBound {
-                label: "lower bound (Drori-Teboulle / adaptive rotation)",
+                label: "lower: M R / sqrt(T+1) (rotation; Drori-Teboulle)",
                 side: Side::Lower,
                 gap: Some(m * r / (t + 1.0).sqrt()),
                 formula: "M R / sqrt(T+1) after T queries and an output (N = T)",
@@ -49,7 +49,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                 method: None,
             },
             GapBound {
-                label: "lower bound (Nesterov)",
+                label: "lower: M R / (2 (2 + sqrt(T+1))) (Nesterov 2004)",
                 side: Side::Lower,
                 gap: Some(m * r / (2.0 * (2.0 + (t + 1.0).sqrt()))),
                 formula: "M R / (2 (2 + sqrt(T+1)))",
@@ -58,7 +58,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                 method: None,
             },
             GapBound {
-                label: "subgradient method",
+                label: "subgradient, upper: M R / sqrt(T)",
                 side: Side::Upper,
                 gap: Some(m * r / t.sqrt()),
                 formula: "M R / sqrt(T): step R/(M sqrt(T)), best of T points",
@@ -69,7 +69,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
         ],
         LargeScaleClass::Smooth { smoothness: b, .. } => vec![
             GapBound {
-                label: "lower bound (chain)",
+                label: "lower: 3 beta R^2 / (32 (T+1)^2) (Nesterov 2004)",
                 side: Side::Lower,
                 gap: Some(3.0 * b * r * r / (32.0 * (t + 1.0) * (t + 1.0))),
                 formula: "3 beta R^2 / (32 (T+1)^2)",
@@ -80,7 +80,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                 method: None,
             },
             GapBound {
-                label: "accelerated gradient",
+                label: "accelerated, upper: 2 beta R^2 / (T+1)^2",
                 side: Side::Upper,
                 gap: Some(2.0 * b * r * r / ((t + 1.0) * (t + 1.0))),
                 formula: "2 beta R^2 / (T+1)^2",
@@ -89,7 +89,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                 method: Some("accelerated"),
             },
             GapBound {
-                label: "gradient descent",
+                label: "gradient, upper: beta R^2 / (2T)",
                 side: Side::Upper,
                 gap: Some(b * r * r / (2.0 * t)),
                 formula: "beta R^2 / (2T), step 1/beta",
@@ -107,7 +107,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
             let q = (root - 1.0) / (root + 1.0);
             vec![
                 GapBound {
-                    label: "lower bound (chain)",
+                    label: "lower: (mu/2) q^(2T) R^2 (Nesterov 2004)",
                     side: Side::Lower,
                     gap: Some(0.5 * mu * (2.0 * t * q.ln()).exp() * r * r),
                     formula: "(mu/2) q^(2T) R^2, q = (sqrt(Q) - 1)/(sqrt(Q) + 1), Q = beta/mu",
@@ -118,7 +118,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                     method: None,
                 },
                 GapBound {
-                    label: "accelerated gradient (strongly convex)",
+                    label: "accelerated, upper: (1 - sqrt(mu/beta))^T (beta + mu) R^2 / 2",
                     side: Side::Upper,
                     gap: Some((t * (-(mu / b).sqrt()).ln_1p()).exp() * 0.5 * (b + mu) * r * r),
                     formula: "(1 - sqrt(mu/beta))^T (beta + mu) R^2 / 2 (bounding f(x_0) - f* \
@@ -128,7 +128,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                     method: Some("accelerated"),
                 },
                 GapBound {
-                    label: "gradient descent",
+                    label: "gradient, upper: (1 - mu/beta)^T beta R^2 / 2",
                     side: Side::Upper,
                     gap: Some((t * (-mu / b).ln_1p()).exp() * 0.5 * b * r * r),
                     formula: "(1 - mu/beta)^T beta R^2 / 2, step 1/beta",
