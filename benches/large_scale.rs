@@ -50,7 +50,9 @@ fn rotation(c: &mut Criterion) {
     let mut group = c.benchmark_group("large_scale");
     group.sample_size(10);
     group.bench_function("rotation_floor_d100000_t1000", |b| {
-        let probe: Vec<f64> = (0..DIM).map(|i| ((i * 7919) % 1000) as f64 - 499.5).collect();
+        let probe: Vec<f64> = (0..DIM)
+            .map(|i| ((i * 7919) % 1000) as f64 - 499.5)
+            .collect();
         b.iter(|| {
             // Inner products with every revealed direction.
             let mut s = 0.0;
@@ -59,7 +61,8 @@ fn rotation(c: &mut Criterion) {
             }
             // One classical Gram-Schmidt orthogonalisation against the whole basis.
             let mut v = probe.clone();
-            let coefficients: Vec<f64> = (0..basis.len()).map(|i| dot(basis.vector(i), &v)).collect();
+            let coefficients: Vec<f64> =
+                (0..basis.len()).map(|i| dot(basis.vector(i), &v)).collect();
             for (i, c) in coefficients.iter().enumerate() {
                 axpy(-c, basis.vector(i), &mut v);
             }

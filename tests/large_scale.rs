@@ -137,7 +137,11 @@ fn the_subgradient_method_stays_above_the_nonsmooth_bounds() {
         let bound = nesterov.bound();
         let gap = span_gap("subgradient", &class, &mut nesterov, k);
         at_least(gap, bound, &format!("Nesterov instance, k = {k}"));
-        at_most(gap, m * r * 2.0 / (k as f64).sqrt(), "subgradient upper (M = 1 on B(0, 2R))");
+        at_most(
+            gap,
+            m * r * 2.0 / (k as f64).sqrt(),
+            "subgradient upper (M = 1 on B(0, 2R))",
+        );
         let mut tight = DroriTeboulle::new(d, m, r, k).unwrap();
         let bound = tight.bound();
         let gap = span_gap("subgradient", &class, &mut tight, k);
@@ -161,7 +165,11 @@ fn rotation_game(name: &str, seed: u64, queries: usize, dim: usize) -> (f64, f64
     let report = game::run(&spec).unwrap();
     let forced = m * r / ((queries + 1) as f64).sqrt();
     let gap = report.gap.unwrap();
-    at_least(gap, forced, &format!("{name} seed {seed}, T = {queries}, d = {dim}"));
+    at_least(
+        gap,
+        forced,
+        &format!("{name} seed {seed}, T = {queries}, d = {dim}"),
+    );
     assert!((report.bound - forced).abs() <= TOL * forced);
     // Export, read back bit for bit, replay every answer against the witness.
     let dir = tempfile::tempdir().unwrap();
@@ -227,9 +235,22 @@ fn the_rotation_chain_adversary_forces_the_chain_bounds() {
 #[test]
 fn a_too_small_dimension_is_a_clear_error() {
     let e = Rotation::new(21, 1.0, 1.0, 10, 10).unwrap_err();
-    assert!(matches!(e, Error::DimensionTooSmall { dim: 21, needed: 22, .. }), "{e}");
+    assert!(
+        matches!(
+            e,
+            Error::DimensionTooSmall {
+                dim: 21,
+                needed: 22,
+                ..
+            }
+        ),
+        "{e}"
+    );
     let text = e.to_string();
-    assert!(text.contains("d = 21") && text.contains("d >= 22"), "{text}");
+    assert!(
+        text.contains("d = 21") && text.contains("d >= 22"),
+        "{text}"
+    );
     let class = LargeScaleClass::smooth(10, 1.0, 1.0).unwrap();
     let e = RotationChain::new(&class, 3).unwrap_err();
     assert!(e.to_string().contains("d >= 11"), "{e}");
@@ -269,7 +290,9 @@ fn check_interpolation(exchanges: &[DemoQuery], lipschitz: f64, radius: f64) {
                 .map(|(g, (a, b))| g * (a - b))
                 .sum();
             let scale = lipschitz
-                * (radius + naysayer::large_scale::norm(&s.point) + naysayer::large_scale::norm(&t.point));
+                * (radius
+                    + naysayer::large_scale::norm(&s.point)
+                    + naysayer::large_scale::norm(&t.point));
             assert!(
                 t.value + lin <= s.value + TOL * scale,
                 "answers {} and {} are inconsistent: {} > {}",
@@ -298,15 +321,13 @@ fn build_queries(spec: &[(u8, Vec<i8>, i8)]) -> Vec<Vec<f64>> {
         let fresh: Vec<f64> = coords.iter().map(|c| f64::from(*c) * scale).collect();
         let q = match (kind, queries.last(), queries.first()) {
             (1, Some(last), _) => last.clone(),
-            (2, Some(last), Some(first)) => {
-                last.iter().zip(first).map(|(a, b)| 0.5 * a - 0.25 * b).collect()
-            }
-            (3, _, _) => vec![0.0; coords.len()],
-            (4, Some(last), _) => last
+            (2, Some(last), Some(first)) => last
                 .iter()
-                .zip(&fresh)
-                .map(|(a, b)| a + 1e-9 * b)
+                .zip(first)
+                .map(|(a, b)| 0.5 * a - 0.25 * b)
                 .collect(),
+            (3, _, _) => vec![0.0; coords.len()],
+            (4, Some(last), _) => last.iter().zip(&fresh).map(|(a, b)| a + 1e-9 * b).collect(),
             _ => fresh,
         };
         queries.push(q);
@@ -380,4 +401,82 @@ proptest! {
         let report = witness::replay(&records).unwrap();
         prop_assert!(report.value_error <= TOL && report.gradient_error <= TOL);
     }
+}
+
+const SCENARIO: &str = r#"name = "tiny"
+description = "Two methods against the rotation adversary."
+[class]
+family = "large-scale"
+kind = "nonsmooth"
+dim = 20
+radius = 1.0
+lipschitz = 1.0
+queries = [1, 2, 4, 8]
+[adversary]
+name = "rotation"
+[play]
+methods = ["subgradient", "random-direction"]
+seeds = [0, 1]
+"#;
+
+#[test]
+fn large_scale_scenarios_are_parsed_strictly() {
+    use naysayer::scenario::LargeScaleScenario;
+    let path = std::path::Path::new("tiny.toml");
+    let ok = LargeScaleScenario::parse(SCENARIO, path).unwrap();
+    assert_eq!(ok.queries, vec![1, 2, 4, 8]);
+    assert_eq!(ok.games().len(), 4 * 3);
+    assert!(naysayer::scenario::is_large_scale(SCENARIO));
+    let cases = [
+        (SCENARIO.replace("dim = 20", "dim = 17"), 6, "needs d >= 18"),
+        (
+            SCENARIO.replace("radius = 1.0", "radius = 1.0\ncolour = 1"),
+            8,
+            "unknown field",
+        ),
+        (
+            SCENARIO.replace("\"subgradient\",", "\"gradient\","),
+            13,
+            "needs a smooth class",
+        ),
+        (
+            SCENARIO.replace("lipschitz = 1.0", "smoothness = 1.0"),
+            8,
+            "does not belong",
+        ),
+        (
+            SCENARIO.replace("name = \"rotation\"", "name = \"rotation-chain\""),
+            11,
+            "does not play",
+        ),
+    ];
+    for (text, line, words) in cases {
+        let e = LargeScaleScenario::parse(&text, path).unwrap_err();
+        let Error::Scenario {
+            line: got, reason, ..
+        } = &e
+        else {
+            panic!("not a scenario error: {e}");
+        };
+        assert_eq!(*got, line, "{e}");
+        assert!(reason.contains(words), "{e}");
+    }
+}
+
+#[test]
+fn a_large_scale_sweep_writes_its_table_and_chart() {
+    use naysayer::scenario::LargeScaleScenario;
+    let dir = tempfile::tempdir().unwrap();
+    let scenario = LargeScaleScenario::parse(SCENARIO, std::path::Path::new("tiny.toml")).unwrap();
+    let summary = naysayer::large_scale::sweep::run(&scenario, dir.path(), 2).unwrap();
+    assert_eq!((summary.games, summary.broken), (12, 0));
+    let text = std::fs::read_to_string(&summary.csv).unwrap();
+    assert_eq!(text.lines().count(), 13);
+    assert!(
+        text.lines().skip(1).all(|l| l.contains(",yes,yes,")),
+        "{text}"
+    );
+    let pngs = naysayer::large_scale::sweep::draw_all(&dir.path().join("tiny")).unwrap();
+    assert!(pngs[0].exists());
+    assert!(dir.path().join("tiny/gap-vs-queries.csv").exists());
 }

@@ -62,7 +62,9 @@ fn positive(name: &str, value: f64) -> Result<(), Error> {
         Ok(())
     } else {
         Err(Error::InvalidClass {
-            reason: format!("{name} = {value} must be a finite positive normal number at most 1e150"),
+            reason: format!(
+                "{name} = {value} must be a finite positive normal number at most 1e150"
+            ),
         })
     }
 }

@@ -225,7 +225,11 @@ mod tests {
         let d = 50;
         let mut basis = Basis::new(d, 7);
         let queries: Vec<Vec<f64>> = (0..10)
-            .map(|k| (0..d).map(|i| ((i * 7 + k * 13) % 11) as f64 - 5.0).collect())
+            .map(|k| {
+                (0..d)
+                    .map(|i| ((i * 7 + k * 13) % 11) as f64 - 5.0)
+                    .collect()
+            })
             .collect();
         for q in &queries {
             basis.absorb(q).unwrap();

@@ -193,9 +193,14 @@ pub const ORACLES: &[OracleInfo] = &[
 pub fn oracle_supports(name: &str, class: &LargeScaleClass) -> bool {
     matches!(
         (name, class),
-        ("drori-teboulle" | "nesterov-nonsmooth" | "rotation", LargeScaleClass::Nonsmooth { .. })
-            | ("smooth-chain", LargeScaleClass::Smooth { .. })
-            | ("strongly-convex-chain", LargeScaleClass::StronglyConvex { .. })
+        (
+            "drori-teboulle" | "nesterov-nonsmooth" | "rotation",
+            LargeScaleClass::Nonsmooth { .. }
+        ) | ("smooth-chain", LargeScaleClass::Smooth { .. })
+            | (
+                "strongly-convex-chain",
+                LargeScaleClass::StronglyConvex { .. }
+            )
             | (
                 "rotation-chain",
                 LargeScaleClass::Smooth { .. } | LargeScaleClass::StronglyConvex { .. }
@@ -253,13 +258,19 @@ impl DemoReport {
         let mut records = vec![DemoRecord::DemoHeader(DemoHeader {
             format: 1,
             tool: format!("naysayer {}", env!("CARGO_PKG_VERSION")),
-            class: spec.class.clone(),
+            class: spec.class,
             oracle: spec.oracle.clone(),
             method: spec.method.clone(),
             seed: spec.seed,
             queries: spec.queries,
         })];
-        records.extend(self.played.exchanges.iter().cloned().map(DemoRecord::DemoQuery));
+        records.extend(
+            self.played
+                .exchanges
+                .iter()
+                .cloned()
+                .map(DemoRecord::DemoQuery),
+        );
         records.push(DemoRecord::DemoFinal(DemoFinal {
             queries_used: self.played.queries_used,
             output: self.played.output.clone(),

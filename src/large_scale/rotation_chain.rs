@@ -56,7 +56,8 @@ impl RotationChain {
             LargeScaleClass::Nonsmooth { .. } => {
                 return Err(Error::Unsupported {
                     what: "adversary \"rotation-chain\"".into(),
-                    reason: "it plays the smooth and strongly convex classes; use \"rotation\"".into(),
+                    reason: "it plays the smooth and strongly convex classes; use \"rotation\""
+                        .into(),
                 })
             }
         };

@@ -189,7 +189,10 @@ impl LargeScaleScenario {
         }
         let dim = *c.dim.get_ref();
         if dim < 1 {
-            return Err(at(spot(c.dim.span()), format!("dim = {dim} must be at least 1")));
+            return Err(at(
+                spot(c.dim.span()),
+                format!("dim = {dim} must be at least 1"),
+            ));
         }
         let dim = dim as usize;
         let radius = *c.radius.get_ref();
@@ -231,18 +234,19 @@ impl LargeScaleScenario {
                     radius,
                 )
             }
-            other => {
-                return Err(at(
-                    spot(c.kind.span()),
-                    format!(
-                        "kind must be \"nonsmooth\", \"smooth\" or \"strongly-convex\", not {other:?}"
-                    ),
-                ))
-            }
+            other => return Err(at(
+                spot(c.kind.span()),
+                format!(
+                    "kind must be \"nonsmooth\", \"smooth\" or \"strongly-convex\", not {other:?}"
+                ),
+            )),
         }
         .map_err(|e| at(spot(c.kind.span()), e.to_string()))?;
         if c.queries.get_ref().is_empty() {
-            return Err(at(spot(c.queries.span()), "the grid of queries is empty".into()));
+            return Err(at(
+                spot(c.queries.span()),
+                "the grid of queries is empty".into(),
+            ));
         }
         let mut queries = Vec::new();
         for q in c.queries.get_ref() {
@@ -262,7 +266,10 @@ impl LargeScaleScenario {
             let known: Vec<&str> = ORACLES.iter().map(|o| o.name).collect();
             return Err(at(
                 spot(raw.adversary.name.span()),
-                format!("unknown large-scale oracle {oracle:?}; known: {}", known.join(", ")),
+                format!(
+                    "unknown large-scale oracle {oracle:?}; known: {}",
+                    known.join(", ")
+                ),
             ));
         }
         if !oracle_supports(&oracle, &class) {
@@ -276,13 +283,14 @@ impl LargeScaleScenario {
         if dim < needed {
             return Err(at(
                 spot(c.dim.span()),
-                format!(
-                    "dim = {dim} is too small: {oracle} at T = {largest} needs d >= {needed}"
-                ),
+                format!("dim = {dim} is too small: {oracle} at T = {largest} needs d >= {needed}"),
             ));
         }
         if raw.play.methods.get_ref().is_empty() {
-            return Err(at(spot(raw.play.methods.span()), "the list of methods is empty".into()));
+            return Err(at(
+                spot(raw.play.methods.span()),
+                "the list of methods is empty".into(),
+            ));
         }
         let mut methods: Vec<String> = Vec::new();
         for m in raw.play.methods.get_ref() {
@@ -291,12 +299,18 @@ impl LargeScaleScenario {
                 return Err(at(spot(m.span()), reason));
             }
             if methods.contains(name) {
-                return Err(at(spot(m.span()), format!("method {name:?} is listed twice")));
+                return Err(at(
+                    spot(m.span()),
+                    format!("method {name:?} is listed twice"),
+                ));
             }
             methods.push(name.clone());
         }
         if raw.play.seeds.get_ref().is_empty() {
-            return Err(at(spot(raw.play.seeds.span()), "the list of seeds is empty".into()));
+            return Err(at(
+                spot(raw.play.seeds.span()),
+                "the list of seeds is empty".into(),
+            ));
         }
         let mut seeds = Vec::new();
         for s in raw.play.seeds.get_ref() {

@@ -64,7 +64,11 @@ fn io<'a>(action: &'static str, path: &'a Path) -> impl Fn(std::io::Error) -> Er
 }
 
 /// Plays every game of `scenario` with `jobs` workers into `<root>/<name>/`.
-pub fn run(scenario: &LargeScaleScenario, root: &Path, jobs: usize) -> Result<LargeScaleSummary, Error> {
+pub fn run(
+    scenario: &LargeScaleScenario,
+    root: &Path,
+    jobs: usize,
+) -> Result<LargeScaleSummary, Error> {
     let dir = root.join(&scenario.name);
     std::fs::create_dir_all(&dir).map_err(io("cannot create results folder", &dir))?;
     let toml_path = dir.join("scenario.toml");
@@ -140,7 +144,11 @@ fn play_row(scenario: &LargeScaleScenario, g: &LargeScaleGame) -> Result<(String
         if holds { "yes" } else { "no" }.into(),
         format!("{:.3}", report.wall_time.as_secs_f64() * 1e3),
     ];
-    let mut row = fields.iter().map(|f| csv_field(f)).collect::<Vec<_>>().join(",");
+    let mut row = fields
+        .iter()
+        .map(|f| csv_field(f))
+        .collect::<Vec<_>>()
+        .join(",");
     row.push('\n');
     Ok((row, holds || !claimed))
 }
@@ -158,13 +166,23 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
             reason: "line 1: not the large-scale games.csv header of this version".into(),
         });
     }
-    let column = |name: &str| COLUMNS.iter().position(|c| *c == name).expect("known column");
+    let column = |name: &str| {
+        COLUMNS
+            .iter()
+            .position(|c| *c == name)
+            .expect("known column")
+    };
     let (c_method, c_queries, c_gap) = (column("method"), column("queries"), column("gap"));
     let mut cells: BTreeMap<(String, u64), Vec<f64>> = BTreeMap::new();
     for (i, line) in lines.enumerate() {
         let f = split_csv_line(line);
         let parsed = (f.len() == COLUMNS.len())
-            .then(|| Some((f[c_queries].parse::<u64>().ok()?, f[c_gap].parse::<f64>().ok()?)))
+            .then(|| {
+                Some((
+                    f[c_queries].parse::<u64>().ok()?,
+                    f[c_gap].parse::<f64>().ok()?,
+                ))
+            })
             .flatten();
         let Some((t, gap)) = parsed else {
             return Err(Error::Results {

@@ -131,9 +131,8 @@ impl RotatedWitness {
                 let norm_part = m * (nx - radius * (1.0 + 1.0 / p.sqrt()));
                 let top = z.iter().map(|a| m * a).fold(norm_part, f64::max);
                 let value_error = (top - value).abs() / value_scale;
-                let active = |piece_value: f64| {
-                    top - piece_value <= RELATIVE_TOLERANCE * value_scale
-                };
+                let active =
+                    |piece_value: f64| top - piece_value <= RELATIVE_TOLERANCE * value_scale;
                 let mut gradient_error = f64::INFINITY;
                 for (u, a) in directions.iter().zip(&z) {
                     if active(m * a) {
@@ -334,7 +333,10 @@ impl KnownFunction for RotatedWitness {
                 }
                 let far = if *strong_convexity > 0.0 {
                     let xs = self.minimiser();
-                    x.iter().zip(&xs).map(|(a, b)| (a - b) * (a - b)).sum::<f64>()
+                    x.iter()
+                        .zip(&xs)
+                        .map(|(a, b)| (a - b) * (a - b))
+                        .sum::<f64>()
                 } else {
                     0.0
                 };
@@ -433,12 +435,10 @@ pub fn read_transcript(path: &Path) -> Result<Vec<DemoRecord>, Error> {
             path: path.to_path_buf(),
             source,
         })?;
-        records.push(
-            serde_json::from_str(&line).map_err(|e| Error::Transcript {
-                line: i as u64 + 1,
-                reason: format!("not a demonstration record: {e}"),
-            })?,
-        );
+        records.push(serde_json::from_str(&line).map_err(|e| Error::Transcript {
+            line: i as u64 + 1,
+            reason: format!("not a demonstration record: {e}"),
+        })?);
     }
     Ok(records)
 }

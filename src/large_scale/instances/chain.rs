@@ -92,7 +92,8 @@ impl Chain {
     /// (1/2) e^T H e for e = x - x* given through its chain part `e_chain` and the
     /// coordinates beyond the chain.
     fn half_quadratic_form(&self, e_chain: &[f64], beyond: &[f64]) -> f64 {
-        let mut chain_terms = e_chain[0] * e_chain[0] + e_chain[self.length - 1] * e_chain[self.length - 1];
+        let mut chain_terms =
+            e_chain[0] * e_chain[0] + e_chain[self.length - 1] * e_chain[self.length - 1];
         for w in e_chain.windows(2) {
             let diff = w[0] - w[1];
             chain_terms += diff * diff;

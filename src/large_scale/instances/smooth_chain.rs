@@ -40,7 +40,14 @@ impl SmoothChain {
         // ||z||^2 for s = 1: sum_{i=1}^p (1 - i/(p+1))^2 = p (2p + 1) / (6 (p + 1)).
         let unit_norm = (p * (2.0 * p + 1.0) / (6.0 * (p + 1.0))).sqrt();
         let coupling = smoothness / 4.0;
-        let chain = Chain::new(dim, length, coupling, 0.0, radius / unit_norm, "smooth-chain")?;
+        let chain = Chain::new(
+            dim,
+            length,
+            coupling,
+            0.0,
+            radius / unit_norm,
+            "smooth-chain",
+        )?;
         Ok(SmoothChain {
             chain,
             smoothness,

@@ -126,12 +126,12 @@ pub fn build(
         ("gradient", _) => Box::new(gradient::Gradient::new(class, queries)),
         ("accelerated", _) => Box::new(accelerated::Accelerated::new(class, queries)),
         ("heavy-ball", _) => Box::new(heavy_ball::HeavyBall::new(class, queries)),
-        ("coordinate-search", _) => Box::new(coordinate_search::CoordinateSearch::new(
-            class, queries,
-        )),
-        ("random-direction", _) => Box::new(random_direction::RandomDirection::new(
-            class, queries, seed,
-        )),
+        ("coordinate-search", _) => {
+            Box::new(coordinate_search::CoordinateSearch::new(class, queries))
+        }
+        ("random-direction", _) => {
+            Box::new(random_direction::RandomDirection::new(class, queries, seed))
+        }
         _ => return Err(Error::UnknownMethod { name: name.into() }),
     })
 }

@@ -74,7 +74,9 @@ impl Method for RandomDirection {
                 .collect();
             let n = crate::large_scale::norm(&direction);
             let h = self.radius / ((self.asked as f64) + 1.0).sqrt();
-            direction.iter_mut().for_each(|r| *r *= h / n.max(f64::MIN_POSITIVE));
+            direction
+                .iter_mut()
+                .for_each(|r| *r *= h / n.max(f64::MIN_POSITIVE));
             for (x, r) in query.iter_mut().zip(&direction) {
                 *x += r;
             }
