@@ -234,12 +234,14 @@ impl LargeScaleScenario {
                     radius,
                 )
             }
-            other => return Err(at(
-                spot(c.kind.span()),
-                format!(
+            other => {
+                return Err(at(
+                    spot(c.kind.span()),
+                    format!(
                     "kind must be \"nonsmooth\", \"smooth\" or \"strongly-convex\", not {other:?}"
                 ),
-            )),
+                ))
+            }
         }
         .map_err(|e| at(spot(c.kind.span()), e.to_string()))?;
         if c.queries.get_ref().is_empty() {
