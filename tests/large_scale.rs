@@ -480,3 +480,73 @@ fn a_large_scale_sweep_writes_its_table_and_chart() {
     assert!(pngs[0].exists());
     assert!(dir.path().join("tiny/gap-vs-queries.csv").exists());
 }
+
+#[test]
+fn the_binary_sweeps_a_large_scale_scenario_and_exports_replayable_witnesses() {
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("tiny.toml");
+    std::fs::write(
+        &file,
+        SCENARIO.replace("seeds = [0, 1]", "seeds = [0, 1]\ntranscripts = true"),
+    )
+    .unwrap();
+    let out = dir.path().join("results");
+    let bin = env!("CARGO_BIN_EXE_naysayer");
+    let status = std::process::Command::new(bin)
+        .arg("sweep")
+        .arg(&file)
+        .arg("--out")
+        .arg(&out)
+        .arg("--jobs")
+        .arg("2")
+        .output()
+        .unwrap();
+    assert!(
+        status.status.success(),
+        "{}",
+        String::from_utf8_lossy(&status.stderr)
+    );
+    let folder = out.join("tiny");
+    assert!(folder.join("games.csv").exists() && folder.join("gap-vs-queries.png").exists());
+    let game = folder.join("transcripts/game-0.jsonl");
+    let records = witness::read_transcript(&game).unwrap();
+    let report = witness::replay(&records).unwrap();
+    assert_eq!(report.answers, 1);
+    // A demonstration transcript is not a certificate: the exact verifier refuses it.
+    let check = std::process::Command::new(bin)
+        .arg("check")
+        .arg(&game)
+        .output()
+        .unwrap();
+    assert!(!check.status.success());
+    // `naysayer chart` redraws the folder; `bounds` prints the curves with the label.
+    let chart = std::process::Command::new(bin)
+        .arg("chart")
+        .arg(&folder)
+        .output()
+        .unwrap();
+    assert!(
+        chart.status.success(),
+        "{}",
+        String::from_utf8_lossy(&chart.stderr)
+    );
+    let bounds = std::process::Command::new(bin)
+        .args([
+            "bounds",
+            "--large-scale",
+            "smooth",
+            "--queries",
+            "10",
+            "-d",
+            "40",
+        ])
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&bounds.stdout);
+    assert!(
+        bounds.status.success() && text.contains("not certificates"),
+        "{text}"
+    );
+    // 3 beta R^2 / (32 (T+1)^2) = 3 / 3872 at beta = R = 1, T = 10 (Nesterov 2004, Thm 2.1.7).
+    assert!(text.contains("7.747934e-4"), "{text}");
+}

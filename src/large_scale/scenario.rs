@@ -21,6 +21,9 @@
 //! [play]
 //! methods = ["subgradient", "coordinate-search", "random-direction"]
 //! seeds = [0, 1, 2]                     # seeded methods play every seed
+//! transcripts = false                   # true: results/<name>/transcripts/game-N.jsonl,
+//!                                       # the demonstration transcript with the rotated
+//!                                       # witness (rotation adversaries only)
 //! ```
 //!
 //! Oracles: `rotation` (nonsmooth, any deterministic method, needs d >= 2T + 2),
@@ -83,6 +86,8 @@ struct RawAdversary {
 struct RawPlay {
     methods: Spanned<Vec<Spanned<String>>>,
     seeds: Spanned<Vec<Spanned<i64>>>,
+    #[serde(default)]
+    transcripts: bool,
 }
 
 #[derive(Deserialize)]
@@ -120,6 +125,8 @@ pub struct LargeScaleScenario {
     pub methods: Vec<String>,
     /// Seeds, in file order.
     pub seeds: Vec<u64>,
+    /// Whether to write each adversary game's demonstration transcript.
+    pub transcripts: bool,
     /// The TOML text.
     pub source_text: String,
 }
@@ -333,6 +340,7 @@ impl LargeScaleScenario {
             oracle,
             methods,
             seeds,
+            transcripts: raw.play.transcripts,
             source_text: text.to_string(),
         })
     }

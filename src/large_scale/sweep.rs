@@ -82,8 +82,18 @@ pub fn run(
             path: dir.clone(),
             source: std::io::Error::other(e),
         })?;
-    let rows: Vec<Result<(String, bool), Error>> =
-        pool.install(|| games.par_iter().map(|g| play_row(scenario, g)).collect());
+    let transcripts = dir.join("transcripts");
+    if scenario.transcripts {
+        std::fs::create_dir_all(&transcripts)
+            .map_err(io("cannot create results folder", &transcripts))?;
+    }
+    let transcripts = scenario.transcripts.then_some(transcripts.as_path());
+    let rows: Vec<Result<(String, bool), Error>> = pool.install(|| {
+        games
+            .par_iter()
+            .map(|g| play_row(scenario, g, transcripts))
+            .collect()
+    });
     let mut text = format!("{}\n", COLUMNS.join(","));
     let mut broken = 0;
     for row in rows {
@@ -102,16 +112,26 @@ pub fn run(
     })
 }
 
-fn play_row(scenario: &LargeScaleScenario, g: &LargeScaleGame) -> Result<(String, bool), Error> {
+fn play_row(
+    scenario: &LargeScaleScenario,
+    g: &LargeScaleGame,
+    transcripts: Option<&Path>,
+) -> Result<(String, bool), Error> {
     let spec = DemoSpec {
         class: scenario.class,
         oracle: scenario.oracle.clone(),
         method: g.method.clone(),
         queries: g.queries,
         seed: g.seed,
-        record: false,
+        record: transcripts.is_some(),
     };
     let report = game::run(&spec)?;
+    if let (Some(dir), Some(records)) = (transcripts, report.records(&spec)) {
+        crate::large_scale::witness::write_transcript(
+            &dir.join(format!("game-{}.jsonl", g.index)),
+            &records,
+        )?;
+    }
     let bounds = gap_bounds(&scenario.class, g.queries);
     let upper = bounds
         .iter()
