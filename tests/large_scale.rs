@@ -550,3 +550,29 @@ fn the_binary_sweeps_a_large_scale_scenario_and_exports_replayable_witnesses() {
     // 3 beta R^2 / (32 (T+1)^2) = 3 / 3872 at beta = R = 1, T = 10 (Nesterov 2004, Thm 2.1.7).
     assert!(text.contains("7.747934e-4"), "{text}");
 }
+
+#[test]
+fn an_overflowing_query_ends_the_game_as_a_method_failure() {
+    use naysayer::method::Method;
+    use naysayer::oracle::{Answer, Step};
+    struct Huge;
+    impl Method for Huge {
+        fn name(&self) -> &str {
+            "huge"
+        }
+        fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
+            query.iter_mut().for_each(|x| *x = 1e300);
+            Ok(Step::Query)
+        }
+        fn observe(&mut self, _: &[f64], _: &Answer) -> Result<(), Error> {
+            Ok(())
+        }
+    }
+    let mut oracle = DroriTeboulle::new(4, 1.0, 1.0, 2).unwrap();
+    let played = play(&mut Huge, &mut oracle, 5, false).unwrap();
+    assert_eq!(played.queries_used, 0);
+    assert!(matches!(
+        played.ending,
+        naysayer::game::Ending::MethodFailed { .. }
+    ));
+}

@@ -92,6 +92,16 @@ pub fn play(
                     break;
                 }
                 let value = oracle.answer(&query, &mut gradient)?;
+                if !value.is_finite() || gradient.iter().any(|g| !g.is_finite()) {
+                    // Only a query of enormous norm overflows the f64 evaluation.
+                    played.ending = Ending::MethodFailed {
+                        reason: format!(
+                            "query {} is so large that f(x) or its gradient overflows f64",
+                            played.queries_used + 1
+                        ),
+                    };
+                    break;
+                }
                 played.queries_used += 1;
                 played.values.push(value);
                 if record {
