@@ -76,7 +76,7 @@ fn span_methods_stay_above_the_smooth_chain_bound() {
     // accelerated method stays within 2 beta R^2 / (k+1)^2 (Beck & Teboulle 2009, Thm 4.4,
     // from memory) and gradient descent within beta R^2 / (2k) (their Thm 3.1).
     let (beta, r) = (4.0, 1.5);
-    for k in (1..=200).step_by(7).chain([200]) {
+    for k in 1..=200 {
         let d = 2 * k + 1;
         let class = LargeScaleClass::smooth(d, beta, r).unwrap();
         let mut gaps = Vec::new();
@@ -105,7 +105,7 @@ fn span_methods_stay_above_the_strongly_convex_chain_bound() {
     // ||x_0 - x*||^2) (Nesterov 2004, Thm 2.2.3, from memory).
     let r = 2.0;
     for (beta, mu, k_max) in [(1000.0, 1.0, 200usize), (10.0, 1.0, 30)] {
-        let ks: Vec<usize> = (1..=k_max).step_by(7).chain([k_max]).collect();
+        let ks: Vec<usize> = (1..=k_max).collect();
         for k in ks {
             let d = 2 * k + 1;
             let class = LargeScaleClass::strongly_convex(d, beta, mu, r).unwrap();
@@ -130,7 +130,7 @@ fn the_subgradient_method_stays_above_the_nonsmooth_bounds() {
     // Nesterov 2004, Thm 3.2.1: M R / (2 (2 + sqrt(k+1))); Drori & Teboulle 2016 with
     // N = k: M R / sqrt(k+1); both for span methods, checked with d = 2k + 1.
     let (m, r) = (1.0, 1.0);
-    for k in (1..=200).step_by(9).chain([200]) {
+    for k in 1..=200 {
         let d = 2 * k + 1;
         let class = LargeScaleClass::nonsmooth(d, m, r).unwrap();
         let mut nesterov = NesterovNonsmooth::new(d, m, r, k).unwrap();
