@@ -80,6 +80,17 @@ pub enum Error {
         /// Why.
         reason: String,
     },
+    /// A large-scale instance or adversary needs more dimensions than the class has
+    /// (THEORY.md 3: the rotation adversary needs d >= queries + N + 2).
+    #[error("dimension d = {dim} is too small: {what} needs d >= {needed}")]
+    DimensionTooSmall {
+        /// The class's dimension.
+        dim: usize,
+        /// The least dimension that works.
+        needed: usize,
+        /// What needs it.
+        what: String,
+    },
     /// A transcript record is malformed or out of place.
     #[error("transcript line {line}: {reason}")]
     Transcript {

@@ -1,9 +1,11 @@
 //! The regression gate: expectation files that pin the numbers of chosen games, so that
 //! a user's CI fails when a solver's worst-case count drifts.
 //!
-//! An expectation file is TOML (by convention beside the scenario:
-//! `adversaries/halving.expect.toml` for `adversaries/halving.toml`), a list of `[[game]]`
-//! tables. Each table selects games by any of the keys `scenario`, `adversary`,
+//! An expectation file is TOML (by convention in `adversaries/expectations/`, named like
+//! its scenario: `adversaries/expectations/halving.toml` for `adversaries/halving.toml`;
+//! outside `adversaries/` itself so that `sweep adversaries/*.toml` plays only scenarios),
+//! a list of `[[game]]` tables. Each table selects games by any of the keys `scenario`,
+//! `adversary`,
 //! `method`, `dim`, `accuracy` (rho or eps, compared exactly as `f64`) and `seed` (a key
 //! left out matches every game), and pins one or more numbers of every game it selects:
 //!

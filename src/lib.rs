@@ -6,6 +6,7 @@ pub mod error;
 pub mod exact;
 pub mod geometry;
 pub mod instance;
+pub mod large_scale;
 pub mod method;
 pub mod minimax;
 pub mod oracle;

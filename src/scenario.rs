@@ -105,6 +105,24 @@ struct RawCharts {
     eps: Option<Spanned<f64>>,
 }
 
+pub use crate::large_scale::scenario::{is_large_scale, LargeScaleScenario};
+
+/// Reads the scenario file at `path` as a `large-scale` scenario (THEORY.md 3, parsed
+/// strictly by [`LargeScaleScenario::parse`]) when its `class.family` says so; `Ok(None)`
+/// for every other family, which [`Scenario::from_file`] reads.
+pub fn read_large_scale(path: &Path) -> Result<Option<LargeScaleScenario>, Error> {
+    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
+        action: "cannot read scenario",
+        path: path.to_path_buf(),
+        source,
+    })?;
+    if is_large_scale(&text) {
+        LargeScaleScenario::parse(&text, path).map(Some)
+    } else {
+        Ok(None)
+    }
+}
+
 /// A validated scenario.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Scenario {
@@ -287,7 +305,7 @@ impl Scenario {
                 &raw.class.family,
                 format!(
                     "unknown class family {family_name:?}; known: \"feasibility\", \
-                     \"first-order\", \"lattice\""
+                     \"first-order\", \"lattice\", \"large-scale\""
                 ),
             ));
         }

@@ -241,7 +241,7 @@ fn the_committed_halving_gallery_meets_its_committed_expectations() {
             "--out",
         ])
         .arg(dir.path())
-        .args(["--expect", "adversaries/halving.expect.toml"])
+        .args(["--expect", "adversaries/expectations/halving.toml"])
         .output()
         .unwrap();
     let text = String::from_utf8_lossy(&result.stdout);

@@ -5,6 +5,7 @@
 //! the invariants documented here.
 
 pub mod first_order;
+pub mod large_scale;
 pub mod lattice;
 
 use serde::{Deserialize, Serialize};
@@ -12,6 +13,7 @@ use serde::{Deserialize, Serialize};
 use crate::error::Error;
 
 pub use first_order::{FirstOrderClass, LipschitzNorm};
+pub use large_scale::LargeScaleClass;
 pub use lattice::LatticeClass;
 
 /// Largest half-width accepted, so that sums and differences of box coordinates and

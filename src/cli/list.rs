@@ -16,5 +16,14 @@ pub fn run() -> Result<u8, Error> {
     for a in ADVERSARIES {
         println!("  {:<18} {}", a.name, a.description);
     }
+    println!("large-scale methods (THEORY.md 3; scenario family \"large-scale\"):");
+    for m in crate::method::large_scale::LARGE_SCALE_METHODS {
+        let kind = if m.deterministic { "" } else { " (seeded)" };
+        println!("  {:<18} {}{kind}", m.name, m.description);
+    }
+    println!("large-scale oracles (demonstrations, not certificates):");
+    for o in crate::large_scale::game::ORACLES {
+        println!("  {:<22} {}", o.name, o.description);
+    }
     Ok(EXIT_OK)
 }

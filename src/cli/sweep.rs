@@ -45,12 +45,16 @@ pub struct MergeArgs {
 
 /// Runs `sweep`.
 pub fn run(args: &SweepArgs) -> Result<u8, Error> {
-    // Validate every scenario before playing any.
-    let scenarios = args
-        .scenarios
-        .iter()
-        .map(|p| Scenario::from_file(p))
-        .collect::<Result<Vec<_>, _>>()?;
+    // Validate every scenario before playing any; large-scale scenarios (THEORY.md 3)
+    // are demonstrations with their own sweep.
+    let mut large_scale = Vec::new();
+    let mut scenarios = Vec::new();
+    for path in &args.scenarios {
+        match crate::scenario::read_large_scale(path)? {
+            Some(s) => large_scale.push(s),
+            None => scenarios.push(Scenario::from_file(path)?),
+        }
+    }
     if let Some(path) = &args.expect {
         crate::expect::Expectations::from_file(path)?;
     }
@@ -64,6 +68,31 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
         progress: true,
     };
     let mut code = EXIT_OK;
+    for scenario in &large_scale {
+        if args.shard.is_some() {
+            return Err(Error::Unsupported {
+                what: format!("scenario {:?}", scenario.name),
+                reason: "large-scale sweeps are small and have no shards".into(),
+            });
+        }
+        let summary = crate::large_scale::sweep::run(scenario, &args.out, settings.jobs)?;
+        println!(
+            "{}: {} demonstration games -> {}",
+            scenario.name,
+            summary.games,
+            summary.csv.display()
+        );
+        if summary.broken > 0 {
+            println!(
+                "{}: {} games fell below a claimed lower curve (see the holds column)",
+                scenario.name, summary.broken
+            );
+            code = EXIT_REJECTED;
+        }
+        if !args.no_charts {
+            crate::cli::chart::draw_all(&args.out.join(&scenario.name))?;
+        }
+    }
     for scenario in &scenarios {
         let summary = sweep::run(scenario, &settings)?;
         if args.expect.is_some() {

@@ -17,6 +17,7 @@ pub mod ellipsoid;
 pub mod enumerate;
 pub mod fibre_bisection;
 pub mod kelley;
+pub mod large_scale;
 pub mod lattice_centerpoint;
 pub mod level;
 pub mod midpoint;

@@ -35,6 +35,8 @@ pub struct Subgradient {
     point: Vec<f64>,
     best: Option<(f64, Vec<f64>)>,
     name: &'static str,
+    /// A given fixed step (the unconstrained variant); `None` follows `rule`.
+    step: Option<f64>,
 }
 
 /// The most queries the method plans (more would only be censored by any budget).
@@ -58,6 +60,25 @@ impl Subgradient {
                 StepRule::Fixed => "subgradient",
                 StepRule::Decaying => "subgradient-decaying",
             },
+            step: None,
+        }
+    }
+
+    /// The unconstrained variant with a given fixed step, for the large-scale classes
+    /// (THEORY.md 3): x_0 = 0, x_{t+1} = x_t - step g_t (no projection), `planned`
+    /// queries, the best point seen as output. With step R / (M sqrt(N+1)) and N + 1
+    /// planned queries it is the method Drori & Teboulle 2016 show tight.
+    pub fn unconstrained(dim: usize, step: f64, planned: u64) -> Subgradient {
+        Subgradient {
+            rule: StepRule::Fixed,
+            half_width: f64::INFINITY,
+            scale: 0.0,
+            planned: planned.max(1),
+            asked: 0,
+            point: vec![0.0; dim],
+            best: None,
+            name: "subgradient",
+            step: Some(step),
         }
     }
 
@@ -96,9 +117,12 @@ impl Method for Subgradient {
         if self.best.as_ref().is_none_or(|(v, _)| value < *v) {
             self.best = Some((value, query.to_vec()));
         }
-        let eta = match self.rule {
-            StepRule::Fixed => self.scale / ((self.planned as f64) + 1.0).sqrt(),
-            StepRule::Decaying => self.scale / ((self.asked as f64) + 1.0).sqrt(),
+        let eta = match (self.step, self.rule) {
+            (Some(step), _) => step,
+            (None, rule) => match rule {
+                StepRule::Fixed => self.scale / ((self.planned as f64) + 1.0).sqrt(),
+                StepRule::Decaying => self.scale / ((self.asked as f64) + 1.0).sqrt(),
+            },
         };
         for (x, g) in self.point.iter_mut().zip(&fo.subgradient) {
             *x = (*x - eta * g.to_f64()).clamp(-self.half_width, self.half_width);

@@ -1,0 +1,192 @@
+//! The adaptive-rotation adversary for the smooth and strongly convex classes
+//! (THEORY.md 3): the chain of [`super::instances::Chain`] revealed along directions
+//! chosen orthogonal to everything the method has seen.
+//!
+//! Hidden function: f(x) = h(U^T x) + (mu/2) ||x||^2 with h(z) = (c/2) z^T A z - c s z_1
+//! the chain of length p (A = tridiag(-1, 2, -1)) and U = [u_1..u_p] orthonormal, chosen
+//! lazily. With u_1..u_j revealed and the rest orthogonal to every query, z_i = 0 for
+//! i > j at each query, and the gradient U (c (A z - s e_1)) + mu x involves u_1..u_{j+1}
+//! only: its (j+1)-th chain component is -c z_j (-c s when j = 0). When that component is
+//! not zero the adversary reveals u_{j+1} (Gram-Schmidt orthogonal to all queries and
+//! earlier directions). Each query reveals at most one direction.
+//!
+//! What it forces: with p = 2T + 1 (the chains of Nesterov 2004, Thms 2.1.7 and 2.1.13),
+//! the output after T queries has z_i = 0 for i > T once [`RotationChain::finish`] has
+//! fixed the hidden directions orthogonal to it; its gap is then at least that of the
+//! best point supported on the first T chain coordinates, which is what the two theorems
+//! bound: 3 beta R^2 / (32 (T+1)^2), or (mu/2) q^(2T) R^2. Valid against any deterministic
+//! method. Needs d >= T + p + 1 (queries, the output, the p directions), checked at
+//! construction.
+//!
+//! Demonstration, not certificate (see [`super::witness`]).
+
+use crate::class::LargeScaleClass;
+use crate::error::Error;
+use crate::large_scale::basis::{axpy, dot, Basis};
+use crate::large_scale::instances::Chain;
+use crate::large_scale::rotation::DIRECTION_SEED;
+use crate::large_scale::witness::RotatedWitness;
+use crate::large_scale::Oracle;
+
+/// The smooth adaptive-rotation adversary.
+#[derive(Clone, Debug)]
+pub struct RotationChain {
+    coupling: f64,
+    strong_convexity: f64,
+    shift: f64,
+    length: usize,
+    queries: usize,
+    basis: Basis,
+    revealed: Vec<usize>,
+    answered: usize,
+    projections: Vec<f64>,
+}
+
+impl RotationChain {
+    /// The adversary for `queries` = T queries on a smooth or strongly convex class,
+    /// with the chain of length 2T + 1 scaled so that ||x*|| = R.
+    pub fn new(class: &LargeScaleClass, queries: usize) -> Result<RotationChain, Error> {
+        let (coupling, mu) = match *class {
+            LargeScaleClass::Smooth { smoothness, .. } => (smoothness / 4.0, 0.0),
+            LargeScaleClass::StronglyConvex {
+                smoothness,
+                strong_convexity,
+                ..
+            } => ((smoothness - strong_convexity) / 4.0, strong_convexity),
+            LargeScaleClass::Nonsmooth { .. } => {
+                return Err(Error::Unsupported {
+                    what: "adversary \"rotation-chain\"".into(),
+                    reason: "it plays the smooth and strongly convex classes; use \"rotation\""
+                        .into(),
+                })
+            }
+        };
+        let length = 2 * queries + 1;
+        let dim = class.dim();
+        let needed = queries + length + 1;
+        if dim < needed {
+            return Err(Error::DimensionTooSmall {
+                dim,
+                needed,
+                what: format!(
+                    "the rotation-chain adversary for {queries} queries (queries + chain length \
+                     2T + 1 + 1 for the output; THEORY.md 3)"
+                ),
+            });
+        }
+        let unit = Chain::unit_minimiser(length, coupling, mu);
+        let shift = class.radius() / crate::large_scale::norm(&unit);
+        Ok(RotationChain {
+            coupling,
+            strong_convexity: mu,
+            shift,
+            length,
+            queries,
+            basis: Basis::new(dim, DIRECTION_SEED),
+            revealed: Vec::new(),
+            answered: 0,
+            projections: Vec::new(),
+        })
+    }
+
+    /// The number of directions revealed so far.
+    pub fn revealed(&self) -> usize {
+        self.revealed.len()
+    }
+
+    /// Completes the hidden function (see [`super::rotation::Rotation::finish`]).
+    pub fn finish(mut self, output: Option<&[f64]>) -> Result<RotatedWitness, Error> {
+        if let Some(x) = output {
+            self.basis.absorb(x)?;
+        }
+        while self.revealed.len() < self.length {
+            let i = self.basis.fresh()?;
+            self.revealed.push(i);
+        }
+        Ok(RotatedWitness::RotatedChain {
+            dim: self.basis.dim(),
+            coupling: self.coupling,
+            strong_convexity: self.strong_convexity,
+            shift: self.shift,
+            directions: self
+                .revealed
+                .iter()
+                .map(|&i| self.basis.vector(i).to_vec())
+                .collect(),
+        })
+    }
+}
+
+/// Value and chain gradient of h(z) = (c/2) z^T A z - c s z_1 for z given on its first
+/// `z.len()` coordinates (zero beyond), chain length p: returns h and writes
+/// w_i = c (A z - s e_1)_i for i < min(len + 1, p) into `w`.
+pub fn chain_part(z: &[f64], length: usize, coupling: f64, shift: f64, w: &mut Vec<f64>) -> f64 {
+    let j = z.len();
+    let at = |i: usize| if i < j { z[i] } else { 0.0 };
+    let mut quad = 0.0;
+    let mut previous = 0.0;
+    for &zi in z {
+        let diff = previous - zi;
+        quad += diff * diff;
+        previous = zi;
+    }
+    quad += previous * previous;
+    w.clear();
+    for i in 0..(j + 1).min(length) {
+        let left = if i == 0 { 0.0 } else { at(i - 1) };
+        let mut wi = coupling * ((at(i) - left) + (at(i) - at(i + 1)));
+        if i == 0 {
+            wi -= coupling * shift;
+        }
+        w.push(wi);
+    }
+    0.5 * coupling * quad - coupling * shift * at(0)
+}
+
+impl Oracle for RotationChain {
+    fn name(&self) -> &str {
+        "rotation-chain"
+    }
+
+    fn dim(&self) -> usize {
+        self.basis.dim()
+    }
+
+    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
+        if self.answered >= self.queries {
+            return Err(Error::DimensionTooSmall {
+                dim: self.basis.dim(),
+                needed: self.answered + 1 + (2 * self.answered + 3) + 1,
+                what: format!(
+                    "query {} of a rotation-chain adversary built for {} queries",
+                    self.answered + 1,
+                    self.queries
+                ),
+            });
+        }
+        let norm2 = dot(x, x);
+        let coefficients = self.basis.absorb(x)?;
+        let mut z = std::mem::take(&mut self.projections);
+        z.clear();
+        z.extend(self.revealed.iter().map(|&slot| coefficients[slot]));
+        let mut w = Vec::new();
+        let value = chain_part(&z, self.length, self.coupling, self.shift, &mut w)
+            + 0.5 * self.strong_convexity * norm2;
+        let j = self.revealed.len();
+        if j < self.length && w[j] != 0.0 {
+            let slot = self.basis.fresh()?;
+            self.revealed.push(slot);
+        }
+        for (g, xi) in gradient.iter_mut().zip(x) {
+            *g = self.strong_convexity * xi;
+        }
+        for (i, wi) in w.iter().enumerate() {
+            if i < self.revealed.len() && *wi != 0.0 {
+                axpy(*wi, self.basis.vector(self.revealed[i]), gradient);
+            }
+        }
+        self.projections = z;
+        self.answered += 1;
+        Ok(value)
+    }
+}
