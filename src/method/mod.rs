@@ -14,6 +14,7 @@ pub mod analytic_center;
 pub mod centroid;
 pub mod ellipsoid;
 pub mod enumerate;
+pub mod external;
 pub mod fibre_bisection;
 pub mod kelley;
 pub mod lattice_centerpoint;
