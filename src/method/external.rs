@@ -415,12 +415,14 @@ impl ExternalMethod {
                 return Err(self.fail(format!("cannot start the stderr thread: {e}")));
             }
         }
+        let pid = child.id();
         let running = Running {
             child,
             alive,
             stdin: Some(stdin),
             reader: LineReader::new(
                 stdout,
+                pid,
                 self.settings.max_line_bytes,
                 self.settings.max_output_bytes,
             ),
@@ -778,6 +780,9 @@ fn excerpt(text: &str) -> String {
     }
 }
 
+/// How often a wait for a line checks whether the program has exited.
+const EXIT_CHECK: Duration = Duration::from_millis(50);
+
 enum ReadError {
     Timeout,
     TooLong(usize),
@@ -796,6 +801,8 @@ enum WriteError {
 /// Reads lines from the program's stdout with a deadline and caps.
 struct LineReader {
     stdout: ChildStdout,
+    /// The program's pid (checked for an exit while its stdout stays open).
+    pid: u32,
     buffer: Vec<u8>,
     /// Start of the unread data in `buffer`.
     start: usize,
@@ -808,9 +815,10 @@ struct LineReader {
 }
 
 impl LineReader {
-    fn new(stdout: ChildStdout, max_line: usize, max_output: u64) -> LineReader {
+    fn new(stdout: ChildStdout, pid: u32, max_line: usize, max_output: u64) -> LineReader {
         LineReader {
             stdout,
+            pid,
             buffer: Vec::with_capacity(1 << 16),
             start: 0,
             scanned: 0,
@@ -847,10 +855,26 @@ impl LineReader {
                 self.buffer.drain(..self.start);
                 self.start = 0;
             }
-            match sys::wait_readable(&self.stdout, deadline) {
-                Ok(true) => {}
-                Ok(false) => return Err(ReadError::Timeout),
-                Err(e) => return Err(ReadError::Io(e)),
+            // Wait in slices, so that a program that exits while something it started
+            // keeps its stdout open is noticed: once it has exited, everything it wrote
+            // is already in the pipe.
+            loop {
+                let slice = deadline.min(Instant::now() + EXIT_CHECK);
+                match sys::wait_readable(&self.stdout, slice) {
+                    Ok(true) => break,
+                    Ok(false) if Instant::now() >= deadline => return Err(ReadError::Timeout),
+                    Ok(false) => {
+                        if sys::has_exited(self.pid) {
+                            let old = self.buffer.len();
+                            return Err(if old > 0 {
+                                ReadError::Partial(old)
+                            } else {
+                                ReadError::Eof
+                            });
+                        }
+                    }
+                    Err(e) => return Err(ReadError::Io(e)),
+                }
             }
             let old = self.buffer.len();
             let want = (self.max_line + 2).saturating_sub(old).clamp(1, 1 << 16);
@@ -1028,25 +1052,36 @@ mod sys {
         }
     }
 
-    /// Waits up to `grace` for the program to exit, without reaping it (so its pid,
-    /// the group id, stays reserved).
+    /// True when the program `pid` (our child) has exited; it is not reaped, so its
+    /// pid, the group id, stays reserved.
+    #[cfg(any(target_os = "linux", target_os = "android"))]
+    pub fn has_exited(pid: u32) -> bool {
+        // SAFETY: waitid on our own child; WNOWAIT leaves it waitable.
+        unsafe {
+            let mut info: libc::siginfo_t = std::mem::zeroed();
+            let r = libc::waitid(
+                libc::P_PID,
+                pid as libc::id_t,
+                &mut info,
+                libc::WEXITED | libc::WNOHANG | libc::WNOWAIT,
+            );
+            r == 0 && info.si_pid() != 0
+        }
+    }
+
+    /// Without `waitid`, an exit is noticed only when stdout closes.
+    #[cfg(not(any(target_os = "linux", target_os = "android")))]
+    pub fn has_exited(_pid: u32) -> bool {
+        false
+    }
+
+    /// Waits up to `grace` for the program to exit, without reaping it.
     #[cfg(any(target_os = "linux", target_os = "android"))]
     pub fn wait_for_exit(child: &Child, grace: Duration) -> bool {
         let deadline = Instant::now() + grace;
         let mut pause = Duration::from_micros(50);
         loop {
-            // SAFETY: waitid on our own child; WNOWAIT leaves it waitable.
-            let exited = unsafe {
-                let mut info: libc::siginfo_t = std::mem::zeroed();
-                let r = libc::waitid(
-                    libc::P_PID,
-                    child.id() as libc::id_t,
-                    &mut info,
-                    libc::WEXITED | libc::WNOHANG | libc::WNOWAIT,
-                );
-                r == 0 && info.si_pid() != 0
-            };
-            if exited {
+            if has_exited(child.id()) {
                 return true;
             }
             if Instant::now() >= deadline {
@@ -1094,6 +1129,10 @@ mod sys {
     }
 
     pub fn kill_group(_pid: u32) {}
+
+    pub fn has_exited(_pid: u32) -> bool {
+        false
+    }
 
     pub fn wait_for_exit(_child: &Child, grace: Duration) -> bool {
         std::thread::sleep(grace.min(Duration::from_millis(100)));
