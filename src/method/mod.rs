@@ -11,6 +11,8 @@
 //! register it in [`METHODS`] and [`build`].
 
 pub mod analytic_center;
+#[cfg(feature = "argmin")]
+pub mod argmin_adapter;
 pub mod centroid;
 pub mod ellipsoid;
 pub mod enumerate;
