@@ -546,3 +546,158 @@ fn a_compiled_child_plays_every_class_like_the_builtin() {
         &[exe, "fibre-bisection"],
     );
 }
+
+/// A scenario with an external method; line numbers below count from 1.
+const EXTERNAL_SCENARIO: &str = r#"name = "external"
+description = "Midpoint in-process and as a Python program."
+[class]
+family = "feasibility"
+dims = [1, 2]
+half_width = 1.0
+rho = [1e-2]
+[adversary]
+name = "halving"
+[play]
+methods = ["midpoint", "py-bisection"]
+seeds = [0, 1]
+budget = 1000
+transcripts = true
+[external.py-bisection]
+command = ["python3", "PATH"]
+answer_timeout = 20.0
+"#;
+
+fn external_scenario() -> String {
+    let script = examples_python().join("bisection.py");
+    EXTERNAL_SCENARIO.replace("PATH", script.to_str().unwrap())
+}
+
+#[test]
+fn scenarios_name_external_methods() {
+    use naysayer::scenario::Scenario;
+    let text = external_scenario();
+    let scenario = Scenario::parse(&text, Path::new("external.toml")).unwrap();
+    assert_eq!(scenario.external.len(), 1);
+    let entry = &scenario.external[0];
+    assert_eq!(entry.name, "py-bisection");
+    assert_eq!(entry.command[0], "python3");
+    assert!(entry.deterministic);
+    assert_eq!(entry.answer_timeout, 20.0);
+    // Two dimensions, two deterministic methods, the first seed only: four games.
+    let games = scenario.games();
+    assert_eq!(games.len(), 4);
+    assert_eq!(games[1].method, "py-bisection");
+}
+
+#[test]
+fn bad_external_entries_name_line_and_column() {
+    use naysayer::scenario::Scenario;
+    use naysayer::Error;
+    let script = examples_python().join("bisection.py");
+    let base = EXTERNAL_SCENARIO;
+    // (what, text to replace, replacement, line, column, word)
+    let cases: &[(&str, &str, &str, usize, usize, &str)] = &[
+        (
+            "defined but not played",
+            "methods = [\"midpoint\", \"py-bisection\"]",
+            "methods = [\"midpoint\"]",
+            17,
+            11,
+            "not listed in play.methods",
+        ),
+        (
+            "empty command",
+            "[\"python3\", \"PATH\"]",
+            "[]",
+            17,
+            11,
+            "command is empty",
+        ),
+        (
+            "unknown key",
+            "answer_timeout = 20.0",
+            "answer_limit = 20.0",
+            18,
+            1,
+            "unknown field",
+        ),
+        (
+            "bad time limit",
+            "answer_timeout = 20.0",
+            "answer_timeout = -1.0",
+            18,
+            18,
+            "answer_timeout",
+        ),
+        (
+            "clash with a built-in",
+            "[external.py-bisection]",
+            "[external.ellipsoid]",
+            17,
+            11,
+            "built-in",
+        ),
+    ];
+    for (what, from, to, line, column, word) in cases {
+        let text = base.replace(from, to);
+        assert_ne!(text, base, "{what}: nothing replaced");
+        let text = text.replace("PATH", script.to_str().unwrap());
+        let error = Scenario::parse(&text, Path::new("bad.toml")).unwrap_err();
+        let message = error.to_string();
+        let Error::Scenario {
+            line: l,
+            column: c,
+            reason,
+            ..
+        } = &error
+        else {
+            panic!("{what}: {message}");
+        };
+        assert_eq!((*l, *c), (*line, *column), "{what}: {message}");
+        assert!(reason.contains(word), "{what}: {message}");
+    }
+}
+
+#[test]
+fn a_sweep_plays_an_external_method_like_the_builtin() {
+    let Some(_) = python() else { return };
+    let dir = TempDir::new().unwrap();
+    std::fs::write(dir.path().join("external.toml"), external_scenario()).unwrap();
+    let out = run(
+        dir.path(),
+        &["sweep", "external.toml", "--jobs", "2", "--no-charts"],
+    );
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}{}",
+        text(&out.stdout),
+        text(&out.stderr)
+    );
+    let csv = std::fs::read_to_string(dir.path().join("results/external/games.csv")).unwrap();
+    let rows: Vec<Vec<String>> = csv
+        .lines()
+        .skip(1)
+        .map(naysayer::sweep::split_csv_line)
+        .collect();
+    assert_eq!(rows.len(), 4, "{csv}");
+    let col = |name: &str| {
+        naysayer::sweep::COLUMNS
+            .iter()
+            .position(|c| *c == name)
+            .unwrap()
+    };
+    for pair in rows.chunks(2) {
+        assert_eq!(pair[0][col("method")], "midpoint");
+        assert_eq!(pair[1][col("method")], "py-bisection");
+        for name in ["queries_used", "certified_lower_bound", "outcome", "verified"] {
+            assert_eq!(pair[0][col(name)], pair[1][col(name)], "{name}: {csv}");
+        }
+    }
+    // Transcripts of the two methods agree apart from the method name.
+    let transcripts = dir.path().join("results/external/transcripts");
+    assert_eq!(
+        without_method_name(&transcripts.join("game-0.jsonl")),
+        without_method_name(&transcripts.join("game-1.jsonl"))
+    );
+}
