@@ -160,9 +160,10 @@ fn protocol_game(c: &mut Criterion) {
     };
     let mut group = c.benchmark_group("pipe_round_trips");
     group.throughput(Throughput::Elements(queries));
-    group.bench_function("protocol games with start-up, compiled child, d = 10", |b| {
-        b.iter(|| play(&mut Stopwatch::default()))
-    });
+    group.bench_function(
+        "protocol games with start-up, compiled child, d = 10",
+        |b| b.iter(|| play(&mut Stopwatch::default())),
+    );
     group.throughput(Throughput::Elements(queries - 1));
     group.bench_function("protocol round trips, compiled child, d = 10", |b| {
         b.iter_custom(|iters| {

@@ -20,7 +20,11 @@ fn main() -> ExitCode {
     let name = std::env::args().nth(1).unwrap_or_else(|| "midpoint".into());
     let stdin = BufReader::new(std::io::stdin().lock());
     let stdout = BufWriter::new(std::io::stdout().lock());
-    match external::serve(|class, seed| method::build(&name, class, seed), stdin, stdout) {
+    match external::serve(
+        |class, seed| method::build(&name, class, seed),
+        stdin,
+        stdout,
+    ) {
         Ok(()) => ExitCode::SUCCESS,
         Err(error) => {
             eprintln!("protocol_method: {error}");

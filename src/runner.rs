@@ -81,8 +81,13 @@ pub fn run_external(
     command: &[String],
     settings: &ExternalSettings,
 ) -> Result<Report, Error> {
-    let mut method =
-        ExternalMethod::new(command, &spec.class, spec.budget, spec.seed, settings.clone())?;
+    let mut method = ExternalMethod::new(
+        command,
+        &spec.class,
+        spec.budget,
+        spec.seed,
+        settings.clone(),
+    )?;
     run_with_flush(spec, &mut method, &mut [], Flush::EveryRecord)
 }
 

@@ -438,7 +438,10 @@ impl Scenario {
                     ));
                 }
                 if entry.command.get_ref().is_empty() {
-                    return Err(at.error(here, "the command is empty: give a program and its arguments"));
+                    return Err(at.error(
+                        here,
+                        "the command is empty: give a program and its arguments",
+                    ));
                 }
                 let mut command = Vec::new();
                 for part in entry.command.get_ref() {

@@ -485,7 +485,15 @@ fn python_bisection_plays_exactly_like_midpoint() {
     assert_eq!(records, 30);
     // Under the nonempty promise, and at another box, too.
     same_transcript(
-        &["-d", "2", "--rho", "1e-2", "--half-width", "3", "--nonempty"],
+        &[
+            "-d",
+            "2",
+            "--rho",
+            "1e-2",
+            "--half-width",
+            "3",
+            "--nonempty",
+        ],
         "midpoint",
         &[python, script.to_str().unwrap()],
     );
@@ -513,7 +521,11 @@ fn python_subgradient_plays_exactly_like_the_builtin() {
 fn a_compiled_child_plays_every_class_like_the_builtin() {
     let exe = protocol_method();
     let exe = exe.to_str().unwrap();
-    same_transcript(&["-d", "4", "--rho", "1e-3"], "midpoint", &[exe, "midpoint"]);
+    same_transcript(
+        &["-d", "4", "--rho", "1e-3"],
+        "midpoint",
+        &[exe, "midpoint"],
+    );
     same_transcript(
         &["-d", "3", "--rho", "1e-2"],
         "ellipsoid",
@@ -601,7 +613,7 @@ fn bad_external_entries_name_line_and_column() {
             "defined but not played",
             "methods = [\"midpoint\", \"py-bisection\"]",
             "methods = [\"midpoint\"]",
-            17,
+            16,
             11,
             "not listed in play.methods",
         ),
@@ -609,7 +621,7 @@ fn bad_external_entries_name_line_and_column() {
             "empty command",
             "[\"python3\", \"PATH\"]",
             "[]",
-            17,
+            16,
             11,
             "command is empty",
         ),
@@ -617,7 +629,7 @@ fn bad_external_entries_name_line_and_column() {
             "unknown key",
             "answer_timeout = 20.0",
             "answer_limit = 20.0",
-            18,
+            17,
             1,
             "unknown field",
         ),
@@ -625,7 +637,7 @@ fn bad_external_entries_name_line_and_column() {
             "bad time limit",
             "answer_timeout = 20.0",
             "answer_timeout = -1.0",
-            18,
+            17,
             18,
             "answer_timeout",
         ),
@@ -633,7 +645,7 @@ fn bad_external_entries_name_line_and_column() {
             "clash with a built-in",
             "[external.py-bisection]",
             "[external.ellipsoid]",
-            17,
+            16,
             11,
             "built-in",
         ),
@@ -690,7 +702,12 @@ fn a_sweep_plays_an_external_method_like_the_builtin() {
     for pair in rows.chunks(2) {
         assert_eq!(pair[0][col("method")], "midpoint");
         assert_eq!(pair[1][col("method")], "py-bisection");
-        for name in ["queries_used", "certified_lower_bound", "outcome", "verified"] {
+        for name in [
+            "queries_used",
+            "certified_lower_bound",
+            "outcome",
+            "verified",
+        ] {
             assert_eq!(pair[0][col(name)], pair[1][col(name)], "{name}: {csv}");
         }
     }

@@ -97,7 +97,10 @@ impl CostFunction for OracleProblem {
     type Output = f64;
 
     fn cost(&self, param: &Vec<f64>) -> Result<f64, argmin::core::Error> {
-        self.stats.lock().unwrap_or_else(|e| e.into_inner()).cost_calls += 1;
+        self.stats
+            .lock()
+            .unwrap_or_else(|e| e.into_inner())
+            .cost_calls += 1;
         Ok(self.evaluate(param)?.0)
     }
 
@@ -126,11 +129,14 @@ impl Gradient for OracleProblem {
 /// The argmin iteration state for `Vec<f64>` parameters and gradients.
 pub type VecState = IterState<Vec<f64>, Vec<f64>, (), (), (), f64>;
 
+/// The solver's whole run on its thread: its best point, or argmin's error message.
+type SolverRun = Box<dyn FnOnce(OracleProblem) -> Result<Vec<f64>, String> + Send>;
+
 /// An argmin solver played as a [`Method`] (see the module docs).
 pub struct ArgminMethod {
     name: String,
     dim: usize,
-    start: Option<Box<dyn FnOnce(OracleProblem) -> Result<Vec<f64>, String> + Send>>,
+    start: Option<SolverRun>,
     from_solver: Option<Receiver<FromSolver>>,
     to_solver: Option<Sender<(f64, Vec<f64>)>>,
     thread: Option<JoinHandle<()>>,
@@ -196,10 +202,9 @@ impl ArgminMethod {
         let thread = std::thread::Builder::new()
             .name("naysayer-argmin".into())
             .spawn(move || {
-                let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-                    run(problem)
-                }))
-                .unwrap_or_else(|_| Err("the solver panicked".into()));
+                let outcome =
+                    std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| run(problem)))
+                        .unwrap_or_else(|_| Err("the solver panicked".into()));
                 let _ = to_game.send(FromSolver::Done(outcome));
             })
             .map_err(|e| self.fail(format!("cannot start the solver thread: {e}")))?;

@@ -260,12 +260,7 @@ fn class_facts(class: &Class) -> (&'static str, usize, BoxMessage, Option<Accura
             } else {
                 None
             };
-            (
-                "separation",
-                c.int_dim(),
-                BoxMessage { lower, upper },
-                acc,
-            )
+            ("separation", c.int_dim(), BoxMessage { lower, upper }, acc)
         }
     }
 }
@@ -537,9 +532,9 @@ impl ExternalMethod {
                     describe_exit(status)
                 )))
             }
-            Err(ReadError::Io(e)) => Err(self.abort(format!(
-                "cannot read protocol line {line_no}: {e}"
-            ))),
+            Err(ReadError::Io(e)) => {
+                Err(self.abort(format!("cannot read protocol line {line_no}: {e}")))
+            }
         }
     }
 
@@ -1177,7 +1172,10 @@ where
     if header.protocol != PROTOCOL_VERSION {
         return Err(bad(
             at,
-            format!("protocol version {} is not {PROTOCOL_VERSION}", header.protocol),
+            format!(
+                "protocol version {} is not {PROTOCOL_VERSION}",
+                header.protocol
+            ),
         ));
     }
     let mut out = Vec::with_capacity(256);
