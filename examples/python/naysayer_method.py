@@ -142,7 +142,8 @@ def serve(factory, stdin=None, stdout=None):
             _send(stdout, {"msg": "query", "point": point})
             line = stdin.readline()
             if not line:
-                raise SystemExit("naysayer_method: naysayer closed the input")
+                # naysayer ended the game (the budget ran out): stop quietly.
+                raise SystemExit(0)
             reply = json.loads(line)
             if reply.get("msg") != "answer":
                 raise ValueError("expected an answer, got %r" % reply.get("msg"))

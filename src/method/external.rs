@@ -62,8 +62,13 @@
 //! < {"msg":"query","point":[0.0]}
 //! > {"msg":"answer","index":1,"answer":{"kind":"cut","normal":{"axis":0,"sign":1},"offset":0.0}}
 //! < {"msg":"query","point":[-0.5]}
-//! > {"msg":"answer","index":2,"answer":{"kind":"cut","normal":{"axis":0,"sign":-1},"offset":0.5}}
+//! > {"msg":"answer","index":2,"answer":{"kind":"cut","normal":{"axis":0,"sign":1},"offset":-0.5}}
 //! < {"msg":"empty"}
+//! ```
+//!
+//! A first-order answer whose value no `f64` holds (from a game against `orthant`):
+//! ```text
+//! > {"msg":"answer","index":37,"answer":{"kind":"first-order","value":{"exact":"-24229210626892415/144115188075855872","approx":-0.16812392191542802},"subgradient":[-0.25,0.0]}}
 //! ```
 //!
 //! [`serve`] speaks the program's side for a Rust [`Method`]; the Python client
