@@ -471,7 +471,8 @@ impl ExternalMethod {
                 seconds(timeout)
             ))),
             Err(WriteError::Closed) => {
-                let status = self.stop(true);
+                // Usually the program has exited: wait for it to report its status.
+                let status = self.stop(false);
                 Err(self.fail(format!(
                     "the program closed its input before naysayer could send {what} ({})",
                     describe_exit(status)
