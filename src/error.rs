@@ -91,6 +91,14 @@ pub enum Error {
         /// What needs it.
         what: String,
     },
+    /// A setting is out of range (for example a limit of the external-method protocol).
+    #[error("invalid {name}: {reason}")]
+    InvalidSetting {
+        /// Which setting.
+        name: &'static str,
+        /// What is wrong.
+        reason: String,
+    },
     /// A transcript record is malformed or out of place.
     #[error("transcript line {line}: {reason}")]
     Transcript {

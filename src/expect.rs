@@ -5,9 +5,9 @@
 //! its scenario: `adversaries/expectations/halving.toml` for `adversaries/halving.toml`;
 //! outside `adversaries/` itself so that `sweep adversaries/*.toml` plays only scenarios),
 //! a list of `[[game]]` tables. Each table selects games by any of the keys `scenario`,
-//! `adversary`,
-//! `method`, `dim`, `accuracy` (rho or eps, compared exactly as `f64`) and `seed` (a key
-//! left out matches every game), and pins one or more numbers of every game it selects:
+//! `adversary`, `method`, `dim`, `accuracy` (rho or eps, compared exactly as `f64`) and
+//! `seed` (a key left out matches every game), and pins one or more numbers of every
+//! game it selects:
 //!
 //! ```toml
 //! [[game]]

@@ -10,6 +10,7 @@ use crate::certificate::{self, Verdict};
 use crate::class::Class;
 use crate::error::Error;
 use crate::game::{self, FinalRecord, GameSettings, Header, Observer};
+use crate::method::external::{ExternalMethod, ExternalSettings};
 use crate::method::{self, Method};
 use crate::transcript::{Flush, MemoryTranscript, TranscriptWriter, FORMAT_VERSION};
 
@@ -68,6 +69,35 @@ pub fn run_with(
     method: &mut dyn Method,
     extra: &mut [&mut dyn Observer],
 ) -> Result<Report, Error> {
+    run_with_flush(spec, method, extra, Flush::Periodic)
+}
+
+/// Builds, plays and verifies one game with an external program speaking the line
+/// protocol ([`crate::method::external`]); `spec.method` is not used. The transcript
+/// file, if any, is flushed after every record (DESIGN.md: the other side may not be
+/// replayable), so that it survives a failure of the program.
+pub fn run_external(
+    spec: &GameSpec,
+    command: &[String],
+    settings: &ExternalSettings,
+) -> Result<Report, Error> {
+    let mut method = ExternalMethod::new(
+        command,
+        &spec.class,
+        spec.budget,
+        spec.seed,
+        settings.clone(),
+    )?;
+    run_with_flush(spec, &mut method, &mut [], Flush::EveryRecord)
+}
+
+/// [`run_with`], with the transcript file flushed as `flush` says.
+pub fn run_with_flush(
+    spec: &GameSpec,
+    method: &mut dyn Method,
+    extra: &mut [&mut dyn Observer],
+    flush: Flush,
+) -> Result<Report, Error> {
     let start = Instant::now();
     let mut adversary = adversary::build(&spec.adversary, &spec.class)?;
     let header = header_for(spec, method.name());
@@ -76,7 +106,7 @@ pub fn run_with(
     };
     let (record, verdict) = match &spec.transcript {
         Some(path) => {
-            let mut writer = TranscriptWriter::create(path, Flush::Periodic)?;
+            let mut writer = TranscriptWriter::create(path, flush)?;
             let record = {
                 let mut observers: Vec<&mut dyn Observer> = vec![&mut writer];
                 observers.extend(extra.iter_mut().map(|o| &mut **o as &mut dyn Observer));

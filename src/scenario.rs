@@ -26,6 +26,18 @@
 //! rho = 1e-6                            # rho of the "queries against d" chart
 //! ```
 //!
+//! External methods (programs speaking the line protocol of
+//! [`crate::method::external`]) are named in an optional `[external.<name>]` table and
+//! then listed in `play.methods` under that name:
+//!
+//! ```toml
+//! [external.py-bisection]
+//! command = ["python3", "examples/python/bisection.py"]   # argv, no shell; relative
+//!                                       # paths are relative to where naysayer runs
+//! deterministic = true                  # optional (default true): first seed only
+//! answer_timeout = 30.0                 # optional: seconds per reply (default 30)
+//! ```
+//!
 //! Parsing is strict: an unknown key, a wrong type or an impossible value (an empty
 //! grid, a negative rho, an unknown method or adversary, a method that supports no
 //! dimension of the grid) is an error naming the file, line and column.
@@ -52,6 +64,18 @@ struct RawScenario {
     play: RawPlay,
     #[serde(default)]
     charts: Option<RawCharts>,
+    #[serde(default)]
+    external: Option<Spanned<std::collections::BTreeMap<String, RawExternal>>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawExternal {
+    command: Spanned<Vec<Spanned<String>>>,
+    #[serde(default)]
+    deterministic: Option<bool>,
+    #[serde(default)]
+    answer_timeout: Option<Spanned<f64>>,
 }
 
 #[derive(Deserialize)]
@@ -154,6 +178,28 @@ pub struct Scenario {
     pub chart_accuracy: f64,
     /// The TOML text, for fingerprinting resumed sweeps.
     pub source_text: String,
+    /// External methods named in `[external.<name>]` tables, in name order.
+    pub external: Vec<ExternalEntry>,
+}
+
+/// An external method of a scenario: a program speaking the line protocol.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ExternalEntry {
+    /// The name used in `play.methods` and in `games.csv`.
+    pub name: String,
+    /// Program and arguments (no shell).
+    pub command: Vec<String>,
+    /// Whether it plays the first seed only (default true).
+    pub deterministic: bool,
+    /// Seconds it may take for each reply (default 30).
+    pub answer_timeout: f64,
+}
+
+impl Scenario {
+    /// The external method called `name`, if the scenario defines one.
+    pub fn external_method(&self, name: &str) -> Option<&ExternalEntry> {
+        self.external.iter().find(|e| e.name == name)
+    }
 }
 
 /// The class of `family` at (d, accuracy), for validation before a [`Scenario`] exists.
@@ -496,12 +542,76 @@ impl Scenario {
                 format!("unknown adversary {adversary:?}; `naysayer list` shows them"),
             ));
         }
+        let mut external: Vec<ExternalEntry> = Vec::new();
+        if let Some(table) = &raw.external {
+            for (name, entry) in table.get_ref() {
+                let here = &entry.command;
+                if name.is_empty()
+                    || !name
+                        .chars()
+                        .all(|c| c.is_ascii_alphanumeric() || c == '-' || c == '_')
+                {
+                    return Err(at.error(
+                        here,
+                        format!(
+                            "external method name {name:?} must be non-empty and use only \
+                             letters, digits, '-' and '_'"
+                        ),
+                    ));
+                }
+                if METHODS.iter().any(|m| m.name == name) {
+                    return Err(at.error(
+                        here,
+                        format!("external method {name:?} has the name of a built-in method"),
+                    ));
+                }
+                if entry.command.get_ref().is_empty() {
+                    return Err(at.error(
+                        here,
+                        "the command is empty: give a program and its arguments",
+                    ));
+                }
+                let mut command = Vec::new();
+                for part in entry.command.get_ref() {
+                    if part.get_ref().is_empty() {
+                        return Err(at.error(part, "an empty string in the command"));
+                    }
+                    command.push(part.get_ref().clone());
+                }
+                let answer_timeout = match &entry.answer_timeout {
+                    None => 30.0,
+                    Some(t) => {
+                        let value = *t.get_ref();
+                        if !(value.is_finite() && value > 0.0 && value <= 1e6) {
+                            return Err(at.error(
+                                t,
+                                format!("answer_timeout = {value} must be a positive number of seconds, at most 1e6"),
+                            ));
+                        }
+                        value
+                    }
+                };
+                external.push(ExternalEntry {
+                    name: name.clone(),
+                    command,
+                    deterministic: entry.deterministic.unwrap_or(true),
+                    answer_timeout,
+                });
+            }
+        }
         if raw.play.methods.get_ref().is_empty() {
             return Err(at.error(&raw.play.methods, "the list of methods is empty"));
         }
         let mut methods = Vec::new();
         for m in raw.play.methods.get_ref() {
             let name = m.get_ref();
+            if external.iter().any(|e| &e.name == name) {
+                if methods.contains(name) {
+                    return Err(at.error(m, format!("method {name:?} is listed twice")));
+                }
+                methods.push(name.clone());
+                continue;
+            }
             if !METHODS.iter().any(|info| info.name == name) {
                 return Err(at.error(
                     m,
@@ -523,6 +633,16 @@ impl Scenario {
                 return Err(at.error(m, format!("method {name:?} is listed twice")));
             }
             methods.push(name.clone());
+        }
+        if let Some(entry) = external.iter().find(|e| !methods.contains(&e.name)) {
+            let table = raw.external.as_ref().expect("entries come from the table");
+            return Err(at.error(
+                &table.get_ref()[&entry.name].command,
+                format!(
+                    "external method {:?} is defined but not listed in play.methods",
+                    entry.name
+                ),
+            ));
         }
         if raw.play.seeds.get_ref().is_empty() {
             return Err(at.error(&raw.play.seeds, "the list of seeds is empty"));
@@ -595,6 +715,7 @@ impl Scenario {
             chart_dim,
             chart_accuracy,
             source_text: text.to_string(),
+            external,
         })
     }
 
@@ -610,13 +731,17 @@ impl Scenario {
                     continue;
                 };
                 for name in &self.methods {
-                    if method::supports(name, &class).is_err() {
+                    let external = self.external_method(name);
+                    if external.is_none() && method::supports(name, &class).is_err() {
                         continue;
                     }
-                    let deterministic = METHODS
-                        .iter()
-                        .find(|m| m.name == name)
-                        .is_some_and(|m| m.deterministic);
+                    let deterministic = match external {
+                        Some(entry) => entry.deterministic,
+                        None => METHODS
+                            .iter()
+                            .find(|m| m.name == name)
+                            .is_some_and(|m| m.deterministic),
+                    };
                     let seeds = if deterministic {
                         &self.seeds[..1]
                     } else {

@@ -414,7 +414,16 @@ fn play_row(
         budget: scenario.budget,
         transcript: transcripts.map(|t| t.join(format!("game-{}.jsonl", game.index))),
     };
-    let report = runner::run(&spec)?;
+    let report = match scenario.external_method(&game.method) {
+        Some(entry) => {
+            let settings = crate::method::external::ExternalSettings {
+                answer_timeout: std::time::Duration::from_secs_f64(entry.answer_timeout),
+                ..Default::default()
+            };
+            runner::run_external(&spec, &entry.command, &settings)?
+        }
+        None => runner::run(&spec)?,
+    };
     let censored = matches!(report.record.ending, Ending::BudgetExhausted);
     let (lower, uncertainty, outcome, verified) = match &report.verdict {
         Ok(v) => (

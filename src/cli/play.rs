@@ -1,5 +1,7 @@
 //! `naysayer play`: one method against one adversary, verified.
 
+use std::time::Duration;
+
 use clap::Args;
 
 use crate::bounds::halving_lower_bound;
@@ -11,6 +13,7 @@ use crate::cli::{
 };
 use crate::error::Error;
 use crate::game::Ending;
+use crate::method::external::ExternalSettings;
 use crate::runner::{self, GameSpec, Report};
 
 /// Arguments of `naysayer play`.
@@ -46,6 +49,52 @@ pub struct PlayArgs {
     /// Expectation file (TOML, see `naysayer::expect`): exit 5 when a number drifts.
     #[arg(long)]
     pub expect: Option<PathArg>,
+    /// An external method (`--exec -- PROGRAM ARGS...`).
+    #[command(flatten)]
+    pub exec: ExecArgs,
+}
+
+/// Playing an external program that speaks the line protocol
+/// ([`crate::method::external`]).
+#[derive(Debug, Clone, Args)]
+pub struct ExecArgs {
+    /// Play the program given after `--` (program and arguments, started without a
+    /// shell) instead of a built-in method.
+    #[arg(long = "exec", requires = "command")]
+    pub exec: bool,
+    /// The external program and its arguments (after `--`, with --exec).
+    #[arg(last = true, value_name = "PROGRAM")]
+    pub command: Vec<String>,
+    /// Seconds an external program may take for each reply before it is killed.
+    #[arg(long, default_value_t = 30.0)]
+    pub answer_timeout: f64,
+    /// Longest protocol line an external program may write, in bytes.
+    #[arg(long, default_value_t = 1 << 20)]
+    pub max_line_bytes: usize,
+    /// Most bytes an external program may write on stdout and stderr together.
+    #[arg(long, default_value_t = 1 << 30)]
+    pub max_output_bytes: u64,
+}
+
+impl ExecArgs {
+    /// Validates the limits into settings.
+    pub fn to_settings(&self) -> Result<ExternalSettings, Error> {
+        let t = self.answer_timeout;
+        if !(t.is_finite() && t > 0.0 && t <= 1e6) {
+            return Err(Error::InvalidSetting {
+                name: "--answer-timeout",
+                reason: format!("{t} must be a positive number of seconds, at most 1e6"),
+            });
+        }
+        let settings = ExternalSettings {
+            answer_timeout: Duration::from_secs_f64(t),
+            max_line_bytes: self.max_line_bytes,
+            max_output_bytes: self.max_output_bytes,
+            ..ExternalSettings::default()
+        };
+        settings.validate()?;
+        Ok(settings)
+    }
 }
 
 /// Runs `play`.
@@ -77,12 +126,26 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
         budget: args.budget,
         transcript: args.transcript.clone(),
     };
+    if !args.exec.exec && !args.exec.command.is_empty() {
+        return Err(Error::InvalidSetting {
+            name: "command line",
+            reason: "a program after `--` needs --exec".into(),
+        });
+    }
     // Read the expectations before playing, so a bad file costs no game.
     if let Some(path) = &args.expect {
         crate::expect::Expectations::from_file(path)?;
     }
-    let report = runner::run(&spec)?;
+    let report = if args.exec.exec {
+        let settings = args.exec.to_settings()?;
+        runner::run_external(&spec, &args.exec.command, &settings)?
+    } else {
+        runner::run(&spec)?
+    };
     print!("{}", summary(&spec, &report));
+    if let Ending::MethodFailed { reason } = &report.record.ending {
+        eprintln!("naysayer: method failed: {reason}");
+    }
     let code = match (&report.verdict, &report.record.ending) {
         (Err(_), _) => EXIT_REJECTED,
         (Ok(_), Ending::MethodFailed { .. }) => EXIT_METHOD_FAILED,

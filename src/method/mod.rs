@@ -11,10 +11,13 @@
 //! register it in [`METHODS`] and [`build`].
 
 pub mod analytic_center;
+#[cfg(feature = "argmin")]
+pub mod argmin_adapter;
 pub mod centroid;
 mod cut_model;
 pub mod ellipsoid;
 pub mod enumerate;
+pub mod external;
 pub mod fibre_bisection;
 pub mod kelley;
 pub mod large_scale;

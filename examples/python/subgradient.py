@@ -1,0 +1,57 @@
+"""The projected subgradient method as an external naysayer method (first-order classes).
+
+x_0 = 0, x_{t+1} = P_X(x_t - eta g_t) with the fixed step eta = D / (L sqrt(N + 1)),
+D = R sqrt(d); it plans N = ceil((L D / eps)^2) queries and outputs the best point seen
+(Shor 1962; the guarantee min_t f(x_t) - f* <= L D / sqrt(N + 1) as in Nesterov,
+Introductory Lectures on Convex Optimization, 2004, sec. 3.2.3, from memory). With
+`--decaying` the step is D / (L sqrt(t + 1)). The arithmetic is that of naysayer's
+built-in `subgradient`, so the two give the same transcript.
+
+    naysayer play --class first-order -d 2 --eps 0.2 --exec -- python3 examples/python/subgradient.py
+"""
+
+import math
+import os
+import sys
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from naysayer_method import Output, serve  # noqa: E402
+
+MAX_PLANNED = 2 ** 40
+
+
+class Subgradient:
+    def __init__(self, game, decaying=False):
+        if game.kind != "first-order":
+            raise ValueError("the subgradient method needs first-order answers")
+        self.decaying = decaying
+        self.half_width = game.half_width
+        diameter = game.half_width * math.sqrt(game.dim)
+        ratio = game.lipschitz * diameter / game.eps
+        squared = ratio * ratio
+        self.planned = MAX_PLANNED if squared >= MAX_PLANNED else max(1, math.ceil(squared))
+        self.scale = diameter / game.lipschitz
+        self.asked = 0
+        self.point = [0.0] * game.dim
+        self.best = None
+
+    def ask(self):
+        if self.asked >= self.planned:
+            return Output(self.best[1] if self.best else self.point)
+        return list(self.point)
+
+    def tell(self, point, answer):
+        self.asked += 1
+        if self.best is None or answer.value < self.best[0]:
+            self.best = (answer.value, list(point))
+        if self.decaying:
+            eta = self.scale / math.sqrt(float(self.asked) + 1.0)
+        else:
+            eta = self.scale / math.sqrt(float(self.planned) + 1.0)
+        r = self.half_width
+        self.point = [min(max(x - eta * g, -r), r) for x, g in zip(self.point, answer.subgradient)]
+
+
+if __name__ == "__main__":
+    decaying = "--decaying" in sys.argv[1:]
+    serve(lambda game: Subgradient(game, decaying))
