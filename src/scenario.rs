@@ -292,6 +292,18 @@ pub struct GridGame {
     pub seed: u64,
 }
 
+/// A scenario error at byte `offset` of `text`, with its 1-based line and column.
+pub(crate) fn error_at(path: &Path, text: &str, offset: usize, reason: impl Into<String>) -> Error {
+    let offset = offset.min(text.len());
+    let before = &text[..offset];
+    Error::Scenario {
+        path: path.to_path_buf(),
+        line: before.matches('\n').count() + 1,
+        column: before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1,
+        reason: reason.into(),
+    }
+}
+
 struct Locator<'a> {
     path: &'a Path,
     text: &'a str,
@@ -299,16 +311,7 @@ struct Locator<'a> {
 
 impl Locator<'_> {
     fn error_at(&self, offset: usize, reason: impl Into<String>) -> Error {
-        let offset = offset.min(self.text.len());
-        let before = &self.text[..offset];
-        let line = before.matches('\n').count() + 1;
-        let column = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
-        Error::Scenario {
-            path: self.path.to_path_buf(),
-            line,
-            column,
-            reason: reason.into(),
-        }
+        error_at(self.path, self.text, offset, reason)
     }
 
     fn error<T>(&self, spanned: &Spanned<T>, reason: impl Into<String>) -> Error {

@@ -144,17 +144,6 @@ pub struct LargeScaleGame {
     pub seed: u64,
 }
 
-fn error_at(path: &Path, text: &str, offset: usize, reason: impl Into<String>) -> Error {
-    let offset = offset.min(text.len());
-    let before = &text[..offset];
-    Error::Scenario {
-        path: path.to_path_buf(),
-        line: before.matches('\n').count() + 1,
-        column: before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1,
-        reason: reason.into(),
-    }
-}
-
 impl LargeScaleScenario {
     /// Reads and validates the scenario file at `path`.
     pub fn from_file(path: &Path) -> Result<Self, Error> {
@@ -168,7 +157,8 @@ impl LargeScaleScenario {
 
     /// Parses and validates scenario text; `path` names it in errors.
     pub fn parse(text: &str, path: &Path) -> Result<Self, Error> {
-        let at = |offset: usize, reason: String| error_at(path, text, offset, reason);
+        let at =
+            |offset: usize, reason: String| crate::scenario::error_at(path, text, offset, reason);
         let raw: Raw = toml::from_str(text).map_err(|e| {
             at(
                 e.span().map_or(0, |s| s.start),
