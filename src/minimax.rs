@@ -1,4 +1,4 @@
-//! Exact minimax on small pure integer classes (THEORY.md 6) [derived].
+//! Exact minimax on small pure integer classes (THEORY.md 6) \[derived\].
 //!
 //! The information complexity of a class is min over methods of max over adversaries of
 //! the queries needed. With the method's queries restricted to a finite set Q (the

@@ -1,7 +1,7 @@
 //! The corner adversary on {0,1}^n (THEORY.md 4) [ours, checked per run by the exact
 //! verifier] for pure integer feasibility.
 //!
-//! K is kept inside the cube [0,1]^n. For a query x:
+//! K is kept inside the cube \[0,1\]^n. For a query x:
 //! - some x_i < 0 or x_i > 1 (lowest such i): the strict cut through x parallel to that
 //!   face, `{w_i > x_i}` or `{w_i < x_i}`; it keeps the whole cube (never the face
 //!   itself, which would remove vertices);

@@ -1,4 +1,4 @@
-//! The lattice-halving adversary (THEORY.md 4) for pure integer feasibility [derived].
+//! The lattice-halving adversary (THEORY.md 4) for pure integer feasibility \[derived\].
 //!
 //! State: the alive set S, the lattice points of the box consistent with every answer.
 //! Each query x gets a strict cut whose boundary passes through x (`a.w < a.x`, so x is

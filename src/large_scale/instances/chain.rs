@@ -8,7 +8,7 @@
 //! c (A x - s e_1) + mu x on the chain and mu x beyond it: a tridiagonal product, O(d).
 //!
 //! The minimiser has zeros beyond p and, on the chain, solves (A + (mu/c) I) z = s e_1:
-//! z_i = s (1 - i/(p+1)) when mu = 0 [derived]; otherwise z_i = s (q^i - q^(2(p+1)-i)) /
+//! z_i = s (1 - i/(p+1)) when mu = 0 \[derived\]; otherwise z_i = s (q^i - q^(2(p+1)-i)) /
 //! (1 - q^(2(p+1))) with q the root in (0, 1) of q^2 - (2 + mu/c) q + 1 = 0 [derived: the
 //! recurrence -z_(i-1) + (2 + mu/c) z_i - z_(i+1) = 0 with z_0 = s, z_(p+1) = 0]. The
 //! optimal value is f* = -(c s / 2) z_1, and the gap is evaluated as

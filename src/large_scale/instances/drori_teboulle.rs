@@ -3,7 +3,7 @@
 //!
 //! f(x) = M max{ max_{i <= N+1} x_i, ||x|| - R (1 + 1/sqrt(N+1)) }.
 //!
-//! f is convex and M-Lipschitz on all of R^d (d >= N + 1). Minimiser [derived]:
+//! f is convex and M-Lipschitz on all of R^d (d >= N + 1). Minimiser \[derived\]:
 //! x* = -(R/sqrt(N+1)) (e_1 + ... + e_{N+1}), where both parts equal -R/sqrt(N+1) and
 //! 0 lies in the convex hull of their subgradients; ||x*|| = R and
 //! f* = -M R / sqrt(N+1).

@@ -5,7 +5,7 @@
 //! gamma = sqrt(k+1) M / (2 + sqrt(k+1)), mu = M / ((2 + sqrt(k+1)) R).
 //!
 //! Minimiser x*_i = -gamma / (mu (k+1)) for i <= k + 1 (zero beyond), so ||x*|| = R, and
-//! f* = -gamma^2 / (2 mu (k+1)) = -M R / (2 (2 + sqrt(k+1))) [derived]. Subgradients
+//! f* = -gamma^2 / (2 mu (k+1)) = -M R / (2 (2 + sqrt(k+1))) \[derived\]. Subgradients
 //! gamma e_i + mu x have norm at most gamma + 2 mu R = M on ||x|| <= 2R, which contains
 //! B(x*, R): f is in the class P(x_0 = 0, R, M).
 //!
