@@ -280,32 +280,19 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         _ => None,
     };
     let pure_integer = matches!(lattice, Some((_, _, 0)));
+    let r = scenario.half_width;
+    let domain = match lattice {
+        Some((lo, hi, 0)) => format!("{{{lo}..{hi}}}^n"),
+        Some((lo, hi, d)) => format!("{{{lo}..{hi}}}^n x [-{r}, {r}]^{d}"),
+        None => format!("[-{r}, {r}]^d"),
+    };
     let subtitle = format!(
-        "{}: adversary {}, box [-{R}, {R}]^d, {} seed(s), budget {}",
+        "{}: adversary {}, box {domain}, {} seed(s), budget {}",
         scenario.name,
         scenario.adversary,
         scenario.seeds.len(),
         scenario.budget,
-        R = scenario.half_width
     );
-    let subtitle = match lattice {
-        Some((lo, hi, 0)) => format!(
-            "{}: adversary {}, box {{{lo}..{hi}}}^n, {} seed(s), budget {}",
-            scenario.name,
-            scenario.adversary,
-            scenario.seeds.len(),
-            scenario.budget
-        ),
-        Some((lo, hi, d)) => format!(
-            "{}: adversary {}, box {{{lo}..{hi}}}^n x [-{R}, {R}]^{d}, {} seed(s), budget {}",
-            scenario.name,
-            scenario.adversary,
-            scenario.seeds.len(),
-            scenario.budget,
-            R = scenario.half_width
-        ),
-        None => subtitle,
-    };
     let subtitle = if first_order {
         format!(
             "{subtitle}; lower bound Theta(d log(LR/eps)), constant unspecified (Nemirovski & Yudin 1983)"

@@ -472,6 +472,9 @@ impl Adversary for MixedCorner {
                     .sum()
             })
             .collect();
+        // Sum in a fixed order: the map's iteration order varies from run to run, and
+        // floating-point sums depend on it.
+        terms.sort_by(f64::total_cmp);
         if untouched > 0 {
             terms.push(full + (untouched as f64).log2());
         }
