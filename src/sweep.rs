@@ -471,13 +471,7 @@ fn play_row(
         opt(facts.upper_ellipsoid),
         format!("{:.3}", report.wall_time.as_secs_f64() * 1e3),
     ];
-    let mut row = fields
-        .iter()
-        .map(|f| csv_field(f))
-        .collect::<Vec<_>>()
-        .join(",");
-    row.push('\n');
-    Ok((row, report.verdict.is_ok()))
+    Ok((csv_row(&fields), report.verdict.is_ok()))
 }
 
 /// A number cell; NaN (no such number) is written as an empty cell.
@@ -608,6 +602,17 @@ pub fn csv_field(text: &str) -> String {
     }
 }
 
+/// One CSV line (with its line break) from unquoted fields.
+pub fn csv_row(fields: &[String]) -> String {
+    let mut row = fields
+        .iter()
+        .map(|f| csv_field(f))
+        .collect::<Vec<_>>()
+        .join(",");
+    row.push('\n');
+    row
+}
+
 /// Splits one CSV line into fields (RFC 4180 quoting, no embedded line breaks).
 pub fn split_csv_line(line: &str) -> Vec<String> {
     let mut fields = Vec::new();
@@ -706,13 +711,7 @@ pub fn merge(scenario_dir: &Path) -> Result<PathBuf, Error> {
     let tmp = scenario_dir.join("games.csv.tmp");
     let mut text = format!("{}\n", COLUMNS.join(","));
     for row in &rows {
-        text.push_str(
-            &row.iter()
-                .map(|f| csv_field(f))
-                .collect::<Vec<_>>()
-                .join(","),
-        );
-        text.push('\n');
+        text.push_str(&csv_row(row));
     }
     std::fs::write(&tmp, text).map_err(|source| Error::Io {
         action: "cannot write",

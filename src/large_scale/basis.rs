@@ -67,6 +67,8 @@ pub struct Basis {
     count: usize,
     generator: u64,
     coefficients: Vec<f64>,
+    /// Reused buffer for the residual of each absorbed query (no allocation per answer).
+    scratch: Vec<f64>,
 }
 
 impl Basis {
@@ -78,6 +80,7 @@ impl Basis {
             count: 0,
             generator: seed,
             coefficients: Vec::new(),
+            scratch: Vec::new(),
         }
     }
 
@@ -158,16 +161,20 @@ impl Basis {
     /// in the span (relative residual at most [`IN_SPAN`]). Returns the inner products
     /// <b_i, x> with the vectors that existed before (first pass).
     pub fn absorb(&mut self, x: &[f64]) -> Result<&[f64], Error> {
-        let mut v = x.to_vec();
+        let mut v = std::mem::take(&mut self.scratch);
+        v.clear();
+        v.extend_from_slice(x);
         let relative = self.project_out(&mut v);
-        if relative > IN_SPAN {
-            if self.count == self.dim {
-                return Err(self.full());
-            }
+        let full = relative > IN_SPAN && self.count == self.dim;
+        if relative > IN_SPAN && !full {
             let n = dot(&v, &v).sqrt();
             v.iter_mut().for_each(|c| *c /= n);
             self.rows.extend_from_slice(&v);
             self.count += 1;
+        }
+        self.scratch = v;
+        if full {
+            return Err(self.full());
         }
         Ok(&self.coefficients)
     }
@@ -179,21 +186,25 @@ impl Basis {
             if self.count >= self.dim {
                 return Err(self.full());
             }
-            let mut v: Vec<f64> = (0..self.dim)
-                .map(|_| {
-                    // 53 random bits -> [-1, 1), exact.
-                    let bits = splitmix64(&mut self.generator) >> 11;
-                    (bits as f64) * (1.0 / (1u64 << 52) as f64) - 1.0
-                })
-                .collect();
+            let mut v = std::mem::take(&mut self.scratch);
+            v.clear();
+            for _ in 0..self.dim {
+                // 53 random bits -> [-1, 1), exact.
+                let bits = splitmix64(&mut self.generator) >> 11;
+                v.push((bits as f64) * (1.0 / (1u64 << 52) as f64) - 1.0);
+            }
             let relative = self.project_out(&mut v);
-            if relative > 1e-3 {
+            let kept = relative > 1e-3;
+            if kept {
                 // The residual kept more than half its norm in its last pass (Kahan's
                 // criterion in project_out), so it is orthogonal to rounding.
                 let n = dot(&v, &v).sqrt();
                 v.iter_mut().for_each(|c| *c /= n);
                 self.rows.extend_from_slice(&v);
                 self.count += 1;
+            }
+            self.scratch = v;
+            if kept {
                 return Ok(self.count - 1);
             }
         }

@@ -40,6 +40,8 @@ pub struct RotationChain {
     revealed: Vec<usize>,
     answered: usize,
     projections: Vec<f64>,
+    /// Reused buffer for the chain's gradient weights along the revealed directions.
+    weights: Vec<f64>,
 }
 
 impl RotationChain {
@@ -86,6 +88,7 @@ impl RotationChain {
             revealed: Vec::new(),
             answered: 0,
             projections: Vec::new(),
+            weights: Vec::new(),
         })
     }
 
@@ -169,7 +172,7 @@ impl Oracle for RotationChain {
         let mut z = std::mem::take(&mut self.projections);
         z.clear();
         z.extend(self.revealed.iter().map(|&slot| coefficients[slot]));
-        let mut w = Vec::new();
+        let mut w = std::mem::take(&mut self.weights);
         let value = chain_part(&z, self.length, self.coupling, self.shift, &mut w)
             + 0.5 * self.strong_convexity * norm2;
         let j = self.revealed.len();
@@ -186,6 +189,7 @@ impl Oracle for RotationChain {
             }
         }
         self.projections = z;
+        self.weights = w;
         self.answered += 1;
         Ok(value)
     }

@@ -22,7 +22,7 @@ use crate::large_scale::game::{self, DemoSpec, ORACLES};
 use crate::large_scale::scenario::{LargeScaleGame, LargeScaleScenario};
 use crate::large_scale::RELATIVE_TOLERANCE;
 use crate::method::large_scale::LARGE_SCALE_METHODS;
-use crate::sweep::{csv_field, split_csv_line};
+use crate::sweep::{csv_row, split_csv_line};
 
 /// The columns of a large-scale `games.csv`.
 pub const COLUMNS: &[&str] = &[
@@ -164,13 +164,7 @@ fn play_row(
         if holds { "yes" } else { "no" }.into(),
         format!("{:.3}", report.wall_time.as_secs_f64() * 1e3),
     ];
-    let mut row = fields
-        .iter()
-        .map(|f| csv_field(f))
-        .collect::<Vec<_>>()
-        .join(",");
-    row.push('\n');
-    Ok((row, holds || !claimed))
+    Ok((csv_row(&fields), holds || !claimed))
 }
 
 /// Draws the gap-against-T chart of a large-scale results folder; returns the PNG path.
