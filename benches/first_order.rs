@@ -1,9 +1,9 @@
 //! Criterion benchmarks for first-order games (issue 5 targets in comments; figures
 //! measured on the project's 2-core machine go in DEVELOPERS.md).
 //!
-//! - `orthant_answer_d100`: one answer of the orthant adversary (THEORY.md 2.3) at
+//! - `orthant_answer_d100`: one answer of the orthant adversary (docs/theory.md §2.3) at
 //!   d = 100 with 20 levels open, exact arithmetic included. Target: <= 20 microseconds.
-//! - `certificate_t1000_d10`: the universal certificate search (THEORY.md 2.2, longest
+//! - `certificate_t1000_d10`: the universal certificate search (docs/theory.md §2.2, longest
 //!   certified prefix by binary search with constraint generation) plus the exact
 //!   verification of the resulting transcript, T = 1000 queries of `subgradient`
 //!   against `orthant` in d = 10. Target: under 10 seconds.
@@ -16,8 +16,8 @@ use naysayer::adversary::Adversary;
 use naysayer::certificate::universal::{self, Exchange};
 use naysayer::certificate::verify_records;
 use naysayer::class::{Class, FirstOrderClass, LipschitzNorm};
-use naysayer::game::{Ending, FinalRecord, Header};
 use naysayer::oracle::{Answer, Step};
+use naysayer::transcript::{Ending, FinalRecord, Header};
 use naysayer::transcript::{QueryRecord, Record, FORMAT_VERSION};
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
@@ -25,7 +25,7 @@ use rand_chacha::ChaCha8Rng;
 /// The query m - 2^-40 e_i next to the current level's centre m: it reveals s_i = +1
 /// (the unfixed term |m_i - y_i| wins, every other coordinate sitting at the centre).
 /// With every sign +1 the older levels stay below the current one near its centre
-/// (THEORY.md 2.3 with beta = gamma = 0, theta = 1/4: the level-j term there is at most
+/// (docs/theory.md §2.3 with beta = gamma = 0, theta = 1/4: the level-j term there is at most
 /// c_j - lambda_j h_j / 2, below c_k >= c_j - (2/7) lambda_j h_j).
 fn reveal(centre: &[f64], i: usize) -> Vec<f64> {
     let mut y = centre.to_vec();

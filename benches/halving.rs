@@ -7,11 +7,12 @@ use std::path::Path;
 use criterion::{black_box, criterion_group, criterion_main, BatchSize, Criterion, Throughput};
 use naysayer::adversary::{Adversary, Halving};
 use naysayer::class::{Class, FeasibilityClass, Promise};
-use naysayer::game::{self, GameSettings, Header, Observer};
+use naysayer::game::{self, GameSettings, Observer};
 use naysayer::method::ellipsoid::Ellipsoid;
 use naysayer::method::midpoint::Midpoint;
 use naysayer::method::Method;
 use naysayer::oracle::Step;
+use naysayer::transcript::Header;
 use naysayer::transcript::{Flush, TranscriptWriter, FORMAT_VERSION};
 
 fn header(class: &FeasibilityClass, method: &str) -> Header {

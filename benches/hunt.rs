@@ -9,12 +9,13 @@
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 use naysayer::adversary::Halving;
 use naysayer::class::{Class, FeasibilityClass, Promise};
-use naysayer::game::{self, GameSettings, Header};
+use naysayer::game::{self, GameSettings};
 use naysayer::hunt::replay::replay_answers;
 use naysayer::hunt::{hunt_builtin, HuntSettings};
 use naysayer::method::ellipsoid::Ellipsoid;
 use naysayer::method::midpoint::Midpoint;
 use naysayer::method::Method;
+use naysayer::transcript::Header;
 use naysayer::transcript::{MemoryTranscript, Record, FORMAT_VERSION};
 
 fn header(class: &FeasibilityClass, method: &str) -> Header {

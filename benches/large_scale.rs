@@ -1,4 +1,4 @@
-//! Criterion benchmarks of the large-scale regime (issue 9, THEORY.md 3).
+//! Criterion benchmarks of the large-scale regime (issue 9, docs/theory.md §3).
 //!
 //! - `rotation_answer_d100000_t1000`: one answer of the nonsmooth adaptive-rotation
 //!   adversary at d = 100 000 after 1000 queries of the subgradient stream (every answer

@@ -15,11 +15,12 @@ use std::time::{Duration, Instant};
 use criterion::{black_box, Criterion, Throughput};
 use naysayer::adversary::{Adversary, Halving};
 use naysayer::class::{Class, FeasibilityClass, Promise};
-use naysayer::game::{self, FinalRecord, GameSettings, Header, Observer};
+use naysayer::game::{self, GameSettings, Observer};
 use naysayer::method::external::{self, ExternalMethod, ExternalSettings};
 use naysayer::method::{self as methods};
 use naysayer::oracle::Answer;
 use naysayer::transcript::FORMAT_VERSION;
+use naysayer::transcript::{FinalRecord, Header};
 
 const CHILD_FLAG: &str = "--naysayer-bench-child";
 

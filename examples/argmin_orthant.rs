@@ -1,5 +1,5 @@
 //! argmin's steepest descent and L-BFGS against the orthant-level adversary
-//! (THEORY.md 2.3), through the argmin adapter; each game's certificate is verified
+//! (docs/theory.md §2.3), through the argmin adapter; each game's certificate is verified
 //! exactly.
 //!
 //! ```sh
@@ -11,8 +11,8 @@ use std::process::ExitCode;
 use argmin::solver::gradientdescent::SteepestDescent;
 use argmin::solver::linesearch::MoreThuenteLineSearch;
 use argmin::solver::quasinewton::LBFGS;
+use naysayer::argmin_adapter::{self, ArgminStats};
 use naysayer::class::{Class, FirstOrderClass, LipschitzNorm};
-use naysayer::method::argmin_adapter::{self, ArgminStats};
 use naysayer::runner::{GameSpec, Report};
 
 fn show(label: &str, result: Result<(Report, ArgminStats), naysayer::Error>) -> bool {

@@ -8,9 +8,10 @@
 use naysayer::adversary::{Adversary, Halving};
 use naysayer::class::{Class, FeasibilityClass, Promise};
 use naysayer::error::Error;
-use naysayer::game::{self, GameSettings, Header, Observer};
+use naysayer::game::{self, GameSettings, Observer};
 use naysayer::method::ellipsoid::Ellipsoid;
 use naysayer::oracle::Answer;
+use naysayer::transcript::Header;
 use naysayer::transcript::{Flush, TranscriptWriter, FORMAT_VERSION};
 
 struct RssProbe;

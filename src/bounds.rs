@@ -2,7 +2,7 @@
 //! source.
 //!
 //! Notation: X = [-R, R]^d, accuracy rho (radius of a Euclidean ball inside K when K is
-//! nonempty), separation oracle with strict cuts (THEORY.md section 0). A lower bound
+//! nonempty), separation oracle with strict cuts (docs/theory.md §0). A lower bound
 //! holds for every method, deterministic or randomized, run by run (the adversary
 //! answers adaptively). An upper bound is what one named method is proven to need at
 //! most on the whole class. A guide is a published order of growth whose constant is
@@ -12,7 +12,6 @@ use serde::Serialize;
 
 use crate::class::LatticeClass;
 use crate::class::{FeasibilityClass, Promise};
-use crate::method::ellipsoid::log_volume_ratio;
 
 /// Whether a bound is a lower or an upper bound.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
@@ -33,7 +32,7 @@ pub enum Status {
     /// An order of growth only; the constant is unspecified.
     Guide,
     /// Our construction: the count is forced in every run the verifier certified, with
-    /// no general proof (THEORY.md 4 marks it "ours").
+    /// no general proof (docs/theory.md §4 marks it "ours").
     Construction,
 }
 
@@ -54,7 +53,7 @@ pub struct Bound {
     pub source: &'static str,
 }
 
-/// The box-halving lower bound (THEORY.md 1.1): every method needs d*k + 1 queries when
+/// The box-halving lower bound (docs/theory.md §1.1): every method needs d*k + 1 queries when
 /// K may be empty and d*k under the nonempty promise, k = max{j >= 0 : R 2^-j > rho}.
 pub fn halving_lower_bound(class: &FeasibilityClass) -> u64 {
     let dk = class.dim as u64 * u64::from(class.halvings());
@@ -100,13 +99,13 @@ pub fn ellipsoid_upper_bound(class: &FeasibilityClass) -> u64 {
     }
     let df = d as f64;
     let numerator = df * ((class.half_width / class.rho).ln() + 0.5 * df.ln());
-    (numerator / -log_volume_ratio(d)).floor() as u64 + 1
+    (numerator / -ellipsoid_log_volume_ratio(d)).floor() as u64 + 1
 }
 
 /// Queries the exact centre-of-gravity method needs at most on convex L-Lipschitz f
 /// over [-R, R]^d (l2 norm) to reach accuracy eps: ceil(d ln(2 L R sqrt(d) / eps) /
 /// 0.458675), since each cut keeps at most 1 - 1/e of the volume (Grunbaum 1960) and
-/// the argument of Bubeck 2015, Thm 2.1, with diameter 2R sqrt(d) (THEORY.md 5,
+/// the argument of Bubeck 2015, Thm 2.1, with diameter 2R sqrt(d) (docs/theory.md §5,
 /// derived; the sqrt(d) is an l2 artefact).
 pub fn first_order_centre_of_gravity_upper_bound(class: &crate::class::FirstOrderClass) -> u64 {
     let d = class.dim as f64;
@@ -124,7 +123,7 @@ pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
             queries: Some(halving_lower_bound(class)),
             formula: "d*k + 1 (d*k if K is promised nonempty), k = max{j >= 0 : R 2^-j > rho}",
             status: Status::Proven,
-            source: "box-halving adversary, THEORY.md 1.1; order Theta(d log(R/rho)): \
+            source: "box-halving adversary, docs/theory.md §1.1; order Theta(d log(R/rho)): \
                      Nemirovski & Yudin 1983",
         },
         Bound {
@@ -155,7 +154,7 @@ pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
     ]
 }
 
-/// Every bound line for a first-order class (THEORY.md 2, 5).
+/// Every bound line for a first-order class (docs/theory.md §2, §5).
 pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
     let diameter = class.half_width * (class.dim as f64).sqrt();
     let ratio = class.lipschitz * diameter / class.eps;
@@ -177,7 +176,7 @@ pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
             queries: Some(first_order_centre_of_gravity_upper_bound(class)),
             formula: "ceil(d ln(2 L R sqrt(d) / eps) / 0.458675), l2 norm",
             status: Status::Proven,
-            source: "Grunbaum 1960; Bubeck 2015, Thm 2.1 (derived, THEORY.md 5)",
+            source: "Grunbaum 1960; Bubeck 2015, Thm 2.1 (derived, docs/theory.md §5)",
         },
         Bound {
             label: "subgradient method",
@@ -201,7 +200,7 @@ fn lattice_size(class: &LatticeClass) -> f64 {
 }
 
 /// Every method needs at least floor(log2 |S|) + 1 queries on a pure integer class with
-/// S the lattice points of the box, when "none" is a possible answer (THEORY.md 4,
+/// S the lattice points of the box, when "none" is a possible answer (docs/theory.md §4,
 /// derived: some strict cut through any query keeps at least (|S| - 1)/2 points of the
 /// alive set). `None` for mixed-integer classes.
 pub fn lattice_half_lower_bound(class: &LatticeClass) -> Option<u64> {
@@ -212,7 +211,7 @@ pub fn lattice_half_lower_bound(class: &LatticeClass) -> Option<u64> {
 }
 
 /// What the corner constructions force when the box holds {0,1}^n: 2^n (pure integer,
-/// `corner`) or 2^n (d k + 1) with k as in THEORY.md 1.1 (`mixed-corner`). Ours,
+/// `corner`) or 2^n (d k + 1) with k as in docs/theory.md §1.1 (`mixed-corner`). Ours,
 /// certified run by run; not a theorem.
 pub fn corner_count(class: &LatticeClass) -> Option<u64> {
     if !class.contains_unit_cube() || class.int_dim() > 62 {
@@ -229,7 +228,7 @@ pub fn corner_count(class: &LatticeClass) -> Option<u64> {
 /// the alive set with depth at least |S|/2^n exists (Oertel, Wagner & Weismantel, Oper.
 /// Res. Lett. 2014: S stays all lattice points of a convex set under strict cuts), so
 /// each cut removes at least that fraction: floor(ln|S| / -ln(1 - 2^-n)) + 1 queries
-/// empty S. Mixed-integer (THEORY.md 4, derived from the depth 1/(2^n (d+1)) of Basu &
+/// empty S. Mixed-integer (docs/theory.md §4, derived from the depth 1/(2^n (d+1)) of Basu &
 /// Oertel, SIAM J. Optim. 2017): ceil(ln(mu_0 / mu_min) / -ln(1 - 1/(2^n (d+1)))) with
 /// mu_0 = |S| (2R)^d and mu_min = kappa_d rho^d.
 pub fn centerpoint_upper_bound(class: &LatticeClass) -> u64 {
@@ -247,7 +246,7 @@ pub fn centerpoint_upper_bound(class: &LatticeClass) -> u64 {
     ((ln_mu0 - ln_mu_min) / shrink).ceil().max(1.0) as u64
 }
 
-/// Every bound line for an integer or mixed-integer class (THEORY.md 4).
+/// Every bound line for an integer or mixed-integer class (docs/theory.md §4).
 pub fn lattice_bounds(class: &LatticeClass) -> Vec<Bound> {
     let mut out = Vec::new();
     if let Some(lower) = lattice_half_lower_bound(class) {
@@ -258,7 +257,7 @@ pub fn lattice_bounds(class: &LatticeClass) -> Vec<Bound> {
             formula: "floor(log2 |S|) + 1, S the lattice points of the box, when \"none\" \
                       is a possible answer; strict cuts",
             status: Status::Proven,
-            source: "THEORY.md 4 (derived: a strict cut through any query keeps at least \
+            source: "docs/theory.md §4 (derived: a strict cut through any query keeps at least \
                      (|S| - 1)/2 points)",
         });
     }
@@ -277,7 +276,7 @@ pub fn lattice_bounds(class: &LatticeClass) -> Vec<Bound> {
                 "2^n (d k + 1), k = max{j >= 0 : R 2^-j > rho}, {0,1}^n inside the box"
             },
             status: Status::Construction,
-            source: "ours (THEORY.md 4); forced in every certified run, no general proof",
+            source: "ours (docs/theory.md §4); forced in every certified run, no general proof",
         });
     }
     if class.cont_dim > 0 {
@@ -309,7 +308,7 @@ pub fn lattice_bounds(class: &LatticeClass) -> Vec<Bound> {
         source: if class.cont_dim == 0 {
             "Oertel, Wagner & Weismantel, Oper. Res. Lett. 2014 (derived)"
         } else {
-            "Basu & Oertel, SIAM J. Optim. 2017 (derived, THEORY.md 4)"
+            "Basu & Oertel, SIAM J. Optim. 2017 (derived, docs/theory.md §4)"
         },
     });
     if class.cont_dim == 0 {
@@ -323,6 +322,16 @@ pub fn lattice_bounds(class: &LatticeClass) -> Vec<Bound> {
         });
     }
     out
+}
+
+/// The ellipsoid method's volume ratio per central cut, as a logarithm (d >= 2):
+/// ln r_d = ln(d/(d+1)) + ((d-1)/2) ln(d^2/(d^2-1)), computed with `ln_1p` so the
+/// tiny second term keeps its digits (docs/theory.md §1.2).
+pub fn ellipsoid_log_volume_ratio(d: usize) -> f64 {
+    let df = d as f64;
+    let first = -(1.0 / df).ln_1p();
+    let second = 0.5 * (df - 1.0) * (1.0 / (df * df - 1.0)).ln_1p();
+    first + second
 }
 
 #[cfg(test)]

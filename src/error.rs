@@ -1,5 +1,5 @@
 //! Typed errors of the library. "Called wrong" is an [`Error`]; how a game ended is
-//! data ([`crate::game::Ending`]).
+//! data ([`crate::transcript::Ending`]).
 
 use std::path::PathBuf;
 
@@ -81,7 +81,7 @@ pub enum Error {
         reason: String,
     },
     /// A large-scale instance or adversary needs more dimensions than the class has
-    /// (THEORY.md 3: the rotation adversary needs d >= queries + N + 2).
+    /// (docs/theory.md §3: the rotation adversary needs d >= queries + N + 2).
     #[error("dimension d = {dim} is too small: {what} needs d >= {needed}")]
     DimensionTooSmall {
         /// The class's dimension.

@@ -2,7 +2,7 @@
 //!
 //! Queries are `f64`, hence exact dyadic rationals. Numbers an adversary computes
 //! (a witness centre, a cut offset, a function value) are exact rationals that `f64`
-//! may not hold (THEORY.md section 0). [`Exact`] keeps such a number exactly: as an
+//! may not hold (docs/theory.md §0). [`Exact`] keeps such a number exactly: as an
 //! `f64` when the value is exactly representable (the common, fast case), otherwise
 //! as a big rational. On disk an exactly representable value is a plain JSON number;
 //! any other value is an object `{"exact": "p/q", "approx": f}` whose `approx` is the

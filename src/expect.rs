@@ -89,7 +89,7 @@ pub enum Quantity {
     QueriesUsed,
     /// T* + 1, from the verified certificate.
     CertifiedLowerBound,
-    /// eps_cert of a first-order game (THEORY.md 2.2).
+    /// eps_cert of a first-order game (docs/theory.md §2.2).
     CertifiedUncertainty,
 }
 
@@ -199,7 +199,10 @@ impl GameResult {
             accuracy: facts.accuracy,
             seed: spec.seed,
             queries_used: report.record.queries_used,
-            censored: matches!(report.record.ending, crate::game::Ending::BudgetExhausted),
+            censored: matches!(
+                report.record.ending,
+                crate::transcript::Ending::BudgetExhausted
+            ),
             certified_lower_bound: verdict.and_then(|v| v.certified_lower_bound()),
             certified_uncertainty: verdict.and_then(|v| v.certified_uncertainty),
         }

@@ -171,7 +171,7 @@ fn bound_curves(classes: &[(f64, Class)]) -> Vec<Curve> {
             },
         ),
         line(
-            "lower bound floor(log2|S|)+1 (THEORY.md 4)",
+            "lower bound floor(log2|S|)+1 (docs/theory.md §4)",
             CurveStyle::LowerBound,
             &lattice(bounds::lattice_half_lower_bound),
         ),
@@ -491,7 +491,7 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         let spec = ChartSpec {
             title: format!("Certified uncertainty against queries, d = {d}"),
             subtitle: Some(format!(
-                "{subtitle}; eps_cert: an error no method can rule out from the first T answers (THEORY.md 2.2)"
+                "{subtitle}; eps_cert: an error no method can rule out from the first T answers (docs/theory.md §2.2)"
             )),
             x_label: "queries T".into(),
             y_label: "certified uncertainty eps_cert".into(),

@@ -1,6 +1,8 @@
 //! naysayer: plays optimization methods against resisting oracles and certifies
 //! oracle-complexity lower bounds exactly.
 pub mod adversary;
+#[cfg(feature = "argmin")]
+pub mod argmin_adapter;
 pub mod class;
 pub mod error;
 pub mod exact;

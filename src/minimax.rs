@@ -1,4 +1,4 @@
-//! Exact minimax on small pure integer classes (THEORY.md 6) \[derived\].
+//! Exact minimax on small pure integer classes (docs/theory.md §6) \[derived\].
 //!
 //! The information complexity of a class is min over methods of max over adversaries of
 //! the queries needed. With the method's queries restricted to a finite set Q (the
@@ -304,7 +304,7 @@ impl Minimax {
         }
         let alive = (self.lattice & !excluded).count_ones();
         // Lower bound: with nothing declared inside, the lattice-half adversary's cuts
-        // are among the moves, and it forces floor(log2 |S|) + 1 (THEORY.md 4).
+        // are among the moves, and it forces floor(log2 |S|) + 1 (docs/theory.md §4).
         let mut lower = if inside == 0 {
             32 - alive.leading_zeros()
         } else {

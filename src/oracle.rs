@@ -2,7 +2,7 @@
 //!
 //! A query is a point of R^d (`&[f64]`, finite). A separation answer is [`Answer::Inside`]
 //! or a strict cut [`Cut`] `{normal a, offset b}` meaning: every point y of K satisfies
-//! `a.y < b`, and the query x satisfies `a.x >= b` (THEORY.md section 0; the strong
+//! `a.y < b`, and the query x satisfies `a.x >= b` (docs/theory.md §0; the strong
 //! separation problem of Grotschel, Lovasz & Schrijver 1988). A central cut has
 //! `b = a.x`.
 
@@ -138,7 +138,7 @@ pub enum Answer {
     FirstOrder(FirstOrderAnswer),
 }
 
-/// f(x) and one subgradient g of f at x (THEORY.md 2), exact.
+/// f(x) and one subgradient g of f at x (docs/theory.md §2), exact.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct FirstOrderAnswer {
     /// f(x).

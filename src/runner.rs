@@ -9,9 +9,10 @@ use crate::adversary;
 use crate::certificate::{self, Verdict};
 use crate::class::Class;
 use crate::error::Error;
-use crate::game::{self, FinalRecord, GameSettings, Header, Observer};
+use crate::game::{self, GameSettings, Observer};
 use crate::method::external::{ExternalMethod, ExternalSettings};
 use crate::method::{self, Method};
+use crate::transcript::{FinalRecord, Header};
 use crate::transcript::{Flush, MemoryTranscript, TranscriptWriter, FORMAT_VERSION};
 
 /// Everything that defines one game.

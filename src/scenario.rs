@@ -5,7 +5,7 @@
 //! description = "Every method against the box-halving adversary."
 //!
 //! [class]
-//! family = "feasibility"                # separation-oracle feasibility (THEORY.md 1)
+//! family = "feasibility"                # separation-oracle feasibility (docs/theory.md §1)
 //! dims = [1, 2, 4, 8]                   # grid of dimensions d
 //! half_width = 1.0                      # R: the box is [-R, R]^d
 //! rho = [1e-2, 1e-4, 1e-6]              # grid of accuracies
@@ -131,7 +131,7 @@ struct RawCharts {
 
 pub use crate::large_scale::scenario::{is_large_scale, LargeScaleScenario};
 
-/// Reads the scenario file at `path` as a `large-scale` scenario (THEORY.md 3, parsed
+/// Reads the scenario file at `path` as a `large-scale` scenario (docs/theory.md §3, parsed
 /// strictly by [`LargeScaleScenario::parse`]) when its `class.family` says so; `Ok(None)`
 /// for every other family, which [`Scenario::from_file`] reads.
 pub fn read_large_scale(path: &Path) -> Result<Option<LargeScaleScenario>, Error> {

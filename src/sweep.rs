@@ -27,9 +27,9 @@ use crate::bounds::{centre_of_gravity_upper_bound, ellipsoid_upper_bound, halvin
 use crate::certificate::Outcome;
 use crate::class::{Class, Promise};
 use crate::error::Error;
-use crate::game::Ending;
 use crate::runner::{self, GameSpec};
 use crate::scenario::{GridGame, Scenario};
+use crate::transcript::Ending;
 
 /// The columns of `games.csv`, in order. Timing columns (`wall_time_ms`) are the only
 /// ones that differ between two runs of the same sweep.
@@ -41,7 +41,7 @@ use crate::scenario::{GridGame, Scenario};
 /// (empty for the other families). `lipschitz` and `certified_uncertainty` are empty
 /// for feasibility classes, `promise` for first-order ones; bound columns are empty
 /// where the class has no proven number (for lattice classes `lower_bound` is the
-/// lattice-halving bound of THEORY.md 4, pure integer only).
+/// lattice-halving bound of docs/theory.md §4, pure integer only).
 pub const COLUMNS: &[&str] = &[
     "game",
     "scenario",

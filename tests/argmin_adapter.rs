@@ -7,11 +7,11 @@ use argmin::core::{Error as ArgminError, Problem, Solver, State, KV};
 use argmin::solver::gradientdescent::SteepestDescent;
 use argmin::solver::linesearch::MoreThuenteLineSearch;
 use argmin::solver::quasinewton::LBFGS;
+use naysayer::argmin_adapter::{self, OracleProblem, VecState};
 use naysayer::certificate;
 use naysayer::class::{Class, FirstOrderClass, LipschitzNorm};
-use naysayer::game::Ending;
-use naysayer::method::argmin_adapter::{self, OracleProblem, VecState};
 use naysayer::runner::GameSpec;
+use naysayer::transcript::Ending;
 use tempfile::TempDir;
 
 fn spec(dir: &TempDir, name: &str, budget: u64) -> GameSpec {

@@ -21,10 +21,11 @@ use naysayer::certificate::verify_records;
 use naysayer::class::{Class, FirstOrderClass, LipschitzNorm};
 use naysayer::cli::audit::{self, Claim, Violation, WitnessFile};
 use naysayer::exact::{f64_to_rational, Exact};
-use naysayer::game::{self, Ending, FinalRecord, GameSettings, Header, Observer};
+use naysayer::game::{self, GameSettings, Observer};
 use naysayer::instance::{AffinePiece, FunctionWitness, Witness};
 use naysayer::method;
 use naysayer::oracle::Answer;
+use naysayer::transcript::{Ending, FinalRecord, Header};
 use naysayer::transcript::{Flush, Record, TranscriptReader, TranscriptWriter, FORMAT_VERSION};
 
 const BIN: &str = env!("CARGO_BIN_EXE_naysayer");

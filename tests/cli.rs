@@ -1,6 +1,6 @@
 //! End-to-end tests of the `naysayer` binary, each run in its own temporary directory.
 //!
-//! Expected counts follow THEORY.md 1.1: d*k + 1 (d*k under the nonempty promise), with
+//! Expected counts follow docs/theory.md §1.1: d*k + 1 (d*k under the nonempty promise), with
 //! k = max{j >= 0 : R 2^-j > rho}, derived by hand below for each class used.
 
 use std::path::Path;
@@ -279,8 +279,8 @@ fn no_arguments_or_an_unknown_command_exits_2() {
     assert_eq!(run_in(dir.path(), &["frobnicate"]).status.code(), Some(2));
 }
 
-/// `bounds --class lattice`: the lattice-halving lower bound floor(log2 |S|) + 1 (THEORY.md
-/// 4, derived) and the corner count 2^n, labelled as our construction, not a theorem.
+/// `bounds --class lattice`: the lattice-halving lower bound floor(log2 |S|) + 1 (docs/theory.md
+/// §4, derived) and the corner count 2^n, labelled as our construction, not a theorem.
 /// {0..3}^3: |S| = 64, so floor(log2 64) + 1 = 7 (by hand).
 #[test]
 fn bounds_prints_lattice_lines_with_their_status() {

@@ -2,8 +2,9 @@
 
 use nalgebra::DMatrix;
 use naysayer::adversary::{Adversary, Halving};
+use naysayer::bounds::ellipsoid_log_volume_ratio as log_volume_ratio;
 use naysayer::class::{FeasibilityClass, Promise};
-use naysayer::method::ellipsoid::{log_volume_ratio, Ellipsoid};
+use naysayer::method::ellipsoid::Ellipsoid;
 use naysayer::method::Method;
 use naysayer::oracle::Step;
 
@@ -55,7 +56,7 @@ fn the_formula_for_the_ratio_matches_its_definition() {
 fn the_ratio_is_below_exp_of_minus_one_over_two_d_plus_one() {
     // r_d < exp(-1/(2(d+1))) (Bertsimas & Tsitsiklis 1997, ch. 8), compared in logarithms
     // computed with ln_1p so that the comparison stays reliable for large d
-    // (THEORY.md 1.2). The sharper r_d < exp(-1/(2d)) (Bubeck 2015, Lemma 2.3) has a
+    // (docs/theory.md §1.2). The sharper r_d < exp(-1/(2d)) (Bubeck 2015, Lemma 2.3) has a
     // margin of order 1/d^3, still far above rounding for d up to 2000.
     for d in (2..=2000usize).chain([10_000, 100_000, 1_000_000]) {
         let ln_r = log_volume_ratio(d);

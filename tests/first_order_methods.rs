@@ -11,11 +11,12 @@ use naysayer::adversary::{Adversary, Undecided};
 use naysayer::certificate::Outcome;
 use naysayer::class::{Class, FirstOrderClass, LipschitzNorm};
 use naysayer::exact::{f64_to_rational, Exact};
-use naysayer::game::Ending;
-use naysayer::instance::{AffinePiece, FunctionWitness, Witnesses};
+use naysayer::instance::{AffinePiece, FunctionWitness};
 use naysayer::method::{self, kelley::Kelley, subgradient, Method, METHODS};
 use naysayer::oracle::{Answer, FirstOrderAnswer, Output, Step};
 use naysayer::runner::{run, GameSpec};
+use naysayer::transcript::Ending;
+use naysayer::transcript::Witnesses;
 
 // ---------------------------------------------------------------------------------------
 // (a) Every first-order method against `orthant`: verdicts and regression values.
@@ -25,10 +26,11 @@ const DIMS: [usize; 4] = [1, 2, 3, 5];
 const EPSILONS: [f64; 3] = [1e-2, 1e-4, 1e-6];
 
 /// Per-game budget, chosen so the whole test stays fast: the certificate search behind
-/// every verdict grows with the transcript. The subgradient methods plan
-/// ceil((L R sqrt(d) / eps)^2) queries, far past any useful budget, so they are always
-/// censored; the ellipsoid method needs about 150 queries at d = 3, 5 and eps = 1e-6
-/// (measured with a budget of 600) and is censored there; the other cutting-plane methods stop well inside their budget.
+/// every verdict grows with the transcript. The subgradient methods plan ceil((L R sqrt(d)
+/// / eps)^2) queries, far past any useful budget, so they are always censored; the
+/// ellipsoid method needs about 150 queries at d = 3, 5 and eps = 1e-6 (measured with a
+/// budget of 600) and is censored there; the other cutting-plane methods stop well inside
+/// their budget.
 fn budget(method: &str) -> u64 {
     match method {
         "subgradient" | "subgradient-decaying" => 60,
@@ -38,7 +40,7 @@ fn budget(method: &str) -> u64 {
 }
 
 /// One regression row: method, d, eps, queries used (censored: the game hit the budget,
-/// "more than" that many), certified lower bound T* + 1 (THEORY.md section 0; `None`
+/// "more than" that many), certified lower bound T* + 1 (docs/theory.md §0; `None`
 /// when the verifier confirms no prefix at all).
 struct Expected {
     method: &'static str,

@@ -1,7 +1,7 @@
 //! The regression gate (issue 8): expectation files for `play` and `sweep`, the drift
 //! exit code 5 and its message naming the game and both numbers.
 //!
-//! Expected counts follow THEORY.md 1.1: midpoint against halving meets d*k + 1 exactly;
+//! Expected counts follow docs/theory.md §1.1: midpoint against halving meets d*k + 1 exactly;
 //! d = 3, rho = 1e-3 gives k = 9 (2^-9 > 1e-3 > 2^-10), so 28 queries (the same figure
 //! as tests/cli.rs), and d = 1, 2 with rho = 1e-2 give k = 6, so 7 and 13.
 

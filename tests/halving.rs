@@ -1,4 +1,4 @@
-//! The box-halving adversary (THEORY.md 1.1) against arbitrary query sequences and
+//! The box-halving adversary (docs/theory.md §1.1) against arbitrary query sequences and
 //! against every built-in method, checked exactly with the independent verifier.
 //!
 //! Every comparison of sides below is exact: box coordinates are `f64` (exact dyadic
@@ -10,11 +10,11 @@ use naysayer::adversary::{Adversary, Halving};
 use naysayer::certificate::{verify_records, Outcome};
 use naysayer::class::{Class, FeasibilityClass, Promise};
 use naysayer::exact::f64_to_rational;
-use naysayer::game::{Ending, FinalRecord, Header};
-use naysayer::instance::Witnesses;
 use naysayer::method::{self, METHODS};
 use naysayer::oracle::{Answer, Normal, Output};
 use naysayer::runner::{self, GameSpec};
+use naysayer::transcript::Witnesses;
+use naysayer::transcript::{Ending, FinalRecord, Header};
 use naysayer::transcript::{MemoryTranscript, QueryRecord, Record, FORMAT_VERSION};
 use naysayer::Error;
 use proptest::collection::vec;
@@ -40,14 +40,14 @@ fn keeps_half(old_l: f64, old_u: f64, new_l: f64, new_u: f64) -> bool {
         >= f64_to_rational(old_u) - f64_to_rational(old_l)
 }
 
-/// (u - l) * 2^k >= 2R, exactly (the invariant side_i >= 2R 2^-k_i of THEORY.md 1.1).
+/// (u - l) * 2^k >= 2R, exactly (the invariant side_i >= 2R 2^-k_i of docs/theory.md §1.1).
 fn side_at_least_scaled(l: f64, u: f64, k: u32, half_width: f64) -> bool {
     let scale = 2f64.powi(i32::try_from(k).expect("small count"));
     (f64_to_rational(u) - f64_to_rational(l)) * f64_to_rational(scale)
         >= f64_to_rational(2.0 * half_width)
 }
 
-/// Whether the witnesses of THEORY.md 1.1 exist for this box: every side > 2 rho, and
+/// Whether the witnesses of docs/theory.md §1.1 exist for this box: every side > 2 rho, and
 /// under the nonempty promise also some side > 4 rho.
 fn box_fits(lower: &[f64], upper: &[f64], rho: f64, promise: Promise) -> bool {
     let all = lower
@@ -198,7 +198,7 @@ impl Driven {
         records
     }
 
-    /// Asks one query and checks the answer against the rules of THEORY.md 1.1, exactly.
+    /// Asks one query and checks the answer against the rules of docs/theory.md §1.1, exactly.
     fn ask(&mut self, x: Vec<f64>) -> Result<(), TestCaseError> {
         let d = self.class.dim;
         let old_lower = self.adversary.lower().to_vec();
@@ -309,7 +309,7 @@ proptest! {
     #![proptest_config(ProptestConfig { cases: 96, ..ProptestConfig::default() })]
 
     /// After every answer the verifier accepts the adversary's witnesses for exactly the
-    /// answers given while the box fitted them, and each answer obeys THEORY.md 1.1.
+    /// answers given while the box fitted them, and each answer obeys docs/theory.md §1.1.
     #[test]
     fn witnesses_stay_consistent_and_each_answer_keeps_half(
         d in 1usize..=4,
@@ -388,7 +388,7 @@ proptest! {
 /// Queries used against the halving adversary, R = 1, seed 0. Columns: method, d,
 /// R/rho, queries used.
 ///
-/// `midpoint` rows are d*k + 1 (THEORY.md 1.1: under strict cuts midpoint meets the
+/// `midpoint` rows are d*k + 1 (docs/theory.md §1.1: under strict cuts midpoint meets the
 /// bound exactly); so are the `ellipsoid` rows at d = 1, where the method is bisection,
 /// i.e. midpoint. Every row, these included, is the value observed on this crate
 /// (deterministic methods; `random` with seed 0), kept as a regression value.
@@ -552,7 +552,7 @@ fn every_method_is_forced_to_d_k_plus_one_queries() {
                     bound <= used + 1,
                     "{what}: certified {bound} > queries used + 1"
                 );
-                // THEORY.md 1.1: under strict cuts midpoint meets d*k + 1 exactly.
+                // docs/theory.md §1.1: under strict cuts midpoint meets d*k + 1 exactly.
                 if info.name == "midpoint" && (used, bound) != (forced, forced) {
                     failures.push(format!(
                         "{what}: midpoint used {used} queries (certified {bound}); \
@@ -624,7 +624,7 @@ fn check_prefixes(records: &[Record], t_star: u64, what: &str) {
     }
 }
 
-/// Under the nonempty promise the bound is d*k (THEORY.md 1.1): the midpoint method's
+/// Under the nonempty promise the bound is d*k (docs/theory.md §1.1): the midpoint method's
 /// certificate reaches exactly that.
 #[test]
 fn promise_feasible_class_certifies_d_k() {
@@ -651,7 +651,7 @@ fn promise_feasible_class_certifies_d_k() {
     }
 }
 
-/// THEORY.md 1.1 states that midpoint meets d*k + 1 exactly under strict cuts, "checked
+/// docs/theory.md §1.1 states that midpoint meets d*k + 1 exactly under strict cuts, "checked
 /// in exact rational arithmetic for d = 1, 2, 3 and R/rho = 4, 16, 64, 1000".
 #[test]
 fn midpoint_meets_the_bound_exactly_on_the_theory_grid() {

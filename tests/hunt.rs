@@ -44,7 +44,7 @@ fn queries(records: &[Record]) -> Vec<Vec<f64>> {
 
 #[test]
 fn midpoint_search_never_goes_below_the_halving_count() {
-    // Midpoint meets the halving bound d k + 1 exactly (THEORY.md 1.1); the search is
+    // Midpoint meets the halving bound d k + 1 exactly (docs/theory.md §1.1); the search is
     // seeded with the halving game, so it can only find as many queries or more.
     for (d, rho) in [(1, 1.0 / 64.0), (2, 1e-2), (3, 0.1)] {
         for seed in 0..3 {

@@ -1,6 +1,6 @@
-//! The large-scale first-order regime (issue 9, THEORY.md 3): published-theorem
+//! The large-scale first-order regime (issue 9, docs/theory.md §3): published-theorem
 //! demonstrations. Every comparison with a published value uses the relative tolerance
-//! 1e-12 (`RELATIVE_TOLERANCE`), because the constants are irrational (THEORY.md 0);
+//! 1e-12 (`RELATIVE_TOLERANCE`), because the constants are irrational (docs/theory.md §0);
 //! nothing here is an exact certificate.
 
 use naysayer::class::LargeScaleClass;
@@ -99,7 +99,7 @@ fn span_methods_stay_above_the_smooth_chain_bound() {
 #[test]
 fn span_methods_stay_above_the_strongly_convex_chain_bound() {
     // Nesterov 2004, Thm 2.1.13: (mu/2) q^(2k) ||x_0 - x*||^2 for every span method, at
-    // d = 2k + 1 (THEORY.md 3). k is kept where the bound is far above the rounding of the
+    // d = 2k + 1 (docs/theory.md §3). k is kept where the bound is far above the rounding of the
     // minimiser (q^(2k) >= 1e-20): Q = 1000 up to k = 200, Q = 10 up to k = 30.
     // The accelerated method stays within (1 - sqrt(mu/beta))^k (f(x_0) - f* + (mu/2)
     // ||x_0 - x*||^2) (Nesterov 2004, Thm 2.2.3, from memory).
@@ -186,7 +186,7 @@ fn rotation_game(name: &str, seed: u64, queries: usize, dim: usize) -> (f64, f64
 
 #[test]
 fn the_rotation_adversary_forces_the_bound_on_non_span_methods() {
-    // Any deterministic method: gap >= M R / sqrt(N+1) with N = T (THEORY.md 3; prototype
+    // Any deterministic method: gap >= M R / sqrt(N+1) with N = T (docs/theory.md §3; prototype
     // measured equality to 2e-16 against coordinate steps and random search).
     for queries in [1usize, 5, 20, 60] {
         for dim in [2 * queries + 2, 3 * queries + 7] {
@@ -276,7 +276,7 @@ fn a_too_small_dimension_is_a_clear_error() {
     assert!(SmoothChain::new(4, 1.0, 1.0, 2).is_err());
 }
 
-/// Interpolation consistency (THEORY.md 2.1, here with a tolerance): for all s, t,
+/// Interpolation consistency (docs/theory.md §2.1, here with a tolerance): for all s, t,
 /// v_t + <g_t, x_s - x_t> <= v_s, and ||g_t|| <= M.
 fn check_interpolation(exchanges: &[DemoQuery], lipschitz: f64, radius: f64) {
     for t in exchanges {
@@ -573,6 +573,6 @@ fn an_overflowing_query_ends_the_game_as_a_method_failure() {
     assert_eq!(played.queries_used, 0);
     assert!(matches!(
         played.ending,
-        naysayer::game::Ending::MethodFailed { .. }
+        naysayer::transcript::Ending::MethodFailed { .. }
     ));
 }

@@ -1,18 +1,19 @@
-//! Integer and mixed-integer classes (THEORY.md 4): the corner, mixed-corner and
+//! Integer and mixed-integer classes (docs/theory.md §4): the corner, mixed-corner and
 //! lattice-half adversaries against the built-in lattice methods, every game checked by
 //! the independent exact verifier; the depth of lattice centerpoints; tampered
 //! mixed-integer transcripts.
 
-use naysayer::adversary::lattice_half::{best_split, side, LatticeHalf};
+use naysayer::adversary::lattice_half::LatticeHalf;
 use naysayer::adversary::mixed_corner::MixedCorner;
 use naysayer::adversary::Adversary;
 use naysayer::certificate::verify_records;
 use naysayer::class::{Class, LatticeClass};
 use naysayer::exact::f64_to_rational;
-use naysayer::game::{Ending, FinalRecord, Header};
+use naysayer::geometry::lattice_split::{best_split, side};
 use naysayer::minimax::halfspace_traces;
 use naysayer::oracle::{Answer, Cut, Normal, Output};
 use naysayer::runner::{self, GameSpec};
+use naysayer::transcript::{Ending, FinalRecord, Header};
 use naysayer::transcript::{QueryRecord, Record, FORMAT_VERSION};
 use naysayer::Error;
 use proptest::prelude::*;

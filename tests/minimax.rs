@@ -1,4 +1,4 @@
-//! Exact minimax values of small integer classes (THEORY.md 6) and the inequalities
+//! Exact minimax values of small integer classes (docs/theory.md §6) and the inequalities
 //! they sit in: (count the corner adversary forces on every method) <= (true
 //! complexity) <= V_Q <= (worst case of each deterministic method querying inside Q).
 
@@ -46,7 +46,7 @@ fn values_sit_between_the_adversary_and_the_methods() {
         if upper == 1 {
             assert!(value >= 1 << n, "corner forces 2^n on {{0,1}}^{n}");
         }
-        // lattice-half forces floor(log2 |S|) + 1 on every method (THEORY.md 4).
+        // lattice-half forces floor(log2 |S|) + 1 on every method (docs/theory.md §4).
         let size = (upper as u64 + 1).pow(n as u32);
         assert!(value > 63 - size.leading_zeros());
         for method in ["enumerate", "lattice-centerpoint"] {
@@ -94,7 +94,7 @@ fn pruning_keeps_the_value() {
 
 /// {0..3}^2 with lattice and half-integer queries (the size target, 49 points):
 /// V_Q = 7, between what lattice-half forces on every method, floor(log2 16) + 1 = 5
-/// (THEORY.md 4), and the 16 queries enumeration may need. (Its time is measured by the
+/// (docs/theory.md §4), and the 16 queries enumeration may need. (Its time is measured by the
 /// `minimax` criterion benchmark, not here.)
 #[test]
 fn the_four_by_four_square_is_solved() {

@@ -1,9 +1,9 @@
-//! Property tests of the orthant-level adversary (THEORY.md 2.3, issue 5).
+//! Property tests of the orthant-level adversary (docs/theory.md §2.3, issue 5).
 //!
 //! Arbitrary query sequences (uniform points, points outside the box, repeated points,
 //! points on the dyadic grid j R 2^-k, and points exactly at the current level's centre
 //! m_k and at m_k +- h_k in chosen coordinates) are answered by the adversary and by an
-//! independent reference written here from the text of THEORY.md 2.3 in plain exact
+//! independent reference written here from the text of docs/theory.md §2.3 in plain exact
 //! rationals (every candidate value computed exactly, the maximum taken, ties broken by
 //! completed level < fixed < unfixed, then lowest level, then lowest coordinate). The
 //! tests check that
@@ -28,8 +28,8 @@ use naysayer::certificate::universal::{first_inconsistent_pair, Exchange};
 use naysayer::certificate::verify_records;
 use naysayer::class::{Class, FirstOrderClass, LipschitzNorm};
 use naysayer::exact::{f64_to_rational, nearest_f64, Exact};
-use naysayer::game::{Ending, FinalRecord, Header};
 use naysayer::oracle::{Answer, FirstOrderAnswer};
+use naysayer::transcript::{Ending, FinalRecord, Header};
 use naysayer::transcript::{QueryRecord, Record, FORMAT_VERSION};
 
 /// A level of the reference, all exact.
@@ -42,7 +42,7 @@ struct RefLevel {
     signs: Vec<i8>,
 }
 
-/// THEORY.md 2.3 transcribed literally, in exact rationals, with no filter; with
+/// docs/theory.md §2.3 transcribed literally, in exact rationals, with no filter; with
 /// `fix_outside`, plus the adversary's correction for queries outside X (the base of a
 /// new level is lowered to min over earlier outside queries of v_t - lambda' max_i
 /// |m'_i - y_{t,i}|; see `src/adversary/orthant.rs`).
@@ -129,7 +129,7 @@ impl Reference {
         }
     }
 
-    /// Step 4 of THEORY.md 2.3.
+    /// Step 4 of docs/theory.md §2.3.
     fn open(&mut self) {
         let one = BigRational::one();
         let two = BigRational::from_integer(2.into());
@@ -438,7 +438,7 @@ fn huge_queries_are_answered_exactly() {
     assert_eq!(first_inconsistent_pair(&exchanges), None);
 }
 
-/// THEORY.md 2.3 as written is inconsistent once a query lies outside X; the adversary
+/// docs/theory.md §2.3 as written is inconsistent once a query lies outside X; the adversary
 /// corrects it. The counterexample (defaults, d = 2, R = L = 1): y1 = (0, 2), y2 =
 /// (0, -1.7) (both outside X; y2 completes level 0), y3 = (0.5, -0.6). The literal
 /// construction answers y3 with a piece that exceeds the answer at y2 by about 0.05;

@@ -11,9 +11,9 @@ use std::process::{Command, Output};
 use std::time::Duration;
 
 use naysayer::class::{Class, FeasibilityClass, Promise};
-use naysayer::game::Ending;
 use naysayer::method::external::ExternalSettings;
 use naysayer::runner::{self, GameSpec};
+use naysayer::transcript::Ending;
 use tempfile::TempDir;
 
 const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
@@ -475,7 +475,7 @@ fn same_transcript(class_args: &[&str], builtin: &str, command: &[&str]) -> usiz
 fn python_bisection_plays_exactly_like_midpoint() {
     let Some(python) = python() else { return };
     let script = examples_python().join("bisection.py");
-    // d = 3, rho = 1e-3: k = 9, d k + 1 = 28 queries (THEORY.md 1.1, by hand), so 30
+    // d = 3, rho = 1e-3: k = 9, d k + 1 = 28 queries (docs/theory.md §1.1, by hand), so 30
     // records with the header and the final record.
     let records = same_transcript(
         &["-d", "3", "--rho", "1e-3"],

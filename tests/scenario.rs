@@ -99,7 +99,7 @@ const CASES: &[Case] = &[
         column: 14,
         word: "positive",
     },
-    // rho equal to R = 1.0 is the boundary of rho < R (THEORY.md 1; src/class.rs).
+    // rho equal to R = 1.0 is the boundary of rho < R (docs/theory.md §1; src/class.rs).
     Case {
         what: "rho >= half_width",
         line: 8,

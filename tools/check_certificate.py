@@ -5,8 +5,8 @@ Usage: python3 tools/check_certificate.py TRANSCRIPT.jsonl [MORE.jsonl ...]
 
 Reads exactly transcript format 1 (header "format") and certificate schema 1 (final
 record "certificate.schema"; absent = 1, from before the key existed); refuses others.
-Written from the documented format (README, rustdoc of naysayer::transcript) and THEORY.md
-0, 1, 2, 4, sharing no code with the Rust verifier. Every comparison is exact (Fraction
+Written from the documented format (README, rustdoc of naysayer::transcript) and docs/theory.md
+§0, §1, §2, §4, sharing no code with the Rust verifier. Every comparison is exact (Fraction
 over the stored numbers; square roots by squaring with the sign checked; no tolerance).
 
 Claims: records in order; numbers finite, {"exact": "p/q", "approx": f} with f nearest;

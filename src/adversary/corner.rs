@@ -1,4 +1,4 @@
-//! The corner adversary on {0,1}^n (THEORY.md 4) [ours, checked per run by the exact
+//! The corner adversary on {0,1}^n (docs/theory.md §4) [ours, checked per run by the exact
 //! verifier] for pure integer feasibility.
 //!
 //! K is kept inside the cube \[0,1\]^n. For a query x:
@@ -8,7 +8,7 @@
 //! - x a vertex z of the cube (every coordinate exactly 0 or 1 as an `f64`): the central
 //!   cut `{<1 - 2z, w - z> > 0}`, written `<2z - 1, w> < |z|`. On the cube
 //!   `<1 - 2z, w - z> = ||w - z||_1`, so the cut removes the vertex z alone and keeps every
-//!   point declared inside (none of them is a vertex). This is THEORY.md's cut with
+//!   point declared inside (none of them is a vertex). This is the cut of docs/theory.md §4 with
 //!   delta_z = 0, which lies strictly below every l1 distance from z to a declared point;
 //! - any other x in the cube: `inside` (no earlier cut excludes a non-vertex point of the
 //!   cube, so the answer is consistent), and x joins the declared set F.
@@ -24,8 +24,9 @@ use crate::adversary::{Adversary, Undecided};
 use crate::class::LatticeClass;
 use crate::error::Error;
 use crate::exact::Exact;
-use crate::instance::{FibreBall, LatticeHull, Witness, Witnesses};
+use crate::instance::{FibreBall, LatticeHull, Witness};
 use crate::oracle::{Answer, Cut, Normal};
+use crate::transcript::Witnesses;
 
 /// The corner resisting oracle.
 #[derive(Clone, Debug)]

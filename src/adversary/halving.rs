@@ -1,4 +1,4 @@
-//! The box-halving adversary (THEORY.md 1.1) for separation-oracle feasibility.
+//! The box-halving adversary (docs/theory.md §1.1) for separation-oracle feasibility.
 //!
 //! State: the alive box B = prod [l_i, u_i] (initially X = [-R, R]^d) and a cut counter
 //! k_i per coordinate. For a query x:
@@ -22,8 +22,9 @@ use std::cmp::Ordering;
 use crate::adversary::{Adversary, Undecided};
 use crate::class::{FeasibilityClass, Promise};
 use crate::exact::{cmp_diff, cmp_sides, Exact};
-use crate::instance::{Witness, Witnesses};
+use crate::instance::Witness;
 use crate::oracle::{Answer, Cut, Normal};
+use crate::transcript::Witnesses;
 
 /// The box-halving resisting oracle.
 #[derive(Clone, Debug)]

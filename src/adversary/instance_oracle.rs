@@ -1,6 +1,6 @@
 //! An exact first-order oracle for one explicit function: it answers every query from a
 //! [`FunctionWitness`] f(y) = max( max_p [a_p . y + b_p], floor + sigma ||y - c||_inf )
-//! (THEORY.md 2.2), with f(y) and one subgradient, both exact.
+//! (docs/theory.md §2.2), with f(y) and one subgradient, both exact.
 //!
 //! This is not a resisting oracle: it does not adapt to the method and it claims no
 //! lower bound ([`Adversary::witnesses`] is `None`). It turns a saved witness (for
@@ -26,8 +26,9 @@ use crate::certificate::first_order::{check_function, FilteredPiece};
 use crate::class::FirstOrderClass;
 use crate::error::Error;
 use crate::exact::{f64_to_rational, Exact};
-use crate::instance::{FunctionWitness, Witnesses};
+use crate::instance::FunctionWitness;
 use crate::oracle::{Answer, FirstOrderAnswer};
+use crate::transcript::Witnesses;
 
 /// The registered name written into transcripts played against an explicit function.
 pub const INSTANCE_NAME: &str = "instance";

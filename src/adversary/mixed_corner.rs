@@ -1,8 +1,8 @@
-//! The mixed-corner adversary on {0,1}^n x [-R, R]^d (THEORY.md 4) [ours, checked per
+//! The mixed-corner adversary on {0,1}^n x [-R, R]^d (docs/theory.md §4) [ours, checked per
 //! run by the exact verifier].
 //!
 //! Every vertex z of {0,1}^n carries its own box-halving adversary
-//! ([`crate::adversary::Halving`], THEORY.md 1.1) on its fibre `{z} x [-R, R]^d`. For a
+//! ([`crate::adversary::Halving`], docs/theory.md §1.1) on its fibre `{z} x [-R, R]^d`. For a
 //! query (x, y):
 //! 1. some x_i outside [0, 1]: the strict cut through the query parallel to that face of
 //!    the cube (it keeps every fibre);
@@ -19,7 +19,7 @@
 //!    scaled by 2^(a-k), a = max(0, k - 1074), so the normal is `(2z - 1) 2^a` on x and
 //!    `s 2^(a-k)` on y_i, every entry an exact `f64` power of two; the offset
 //!    `o 2^(a-k) + |z| 2^a` is an exact rational ([`Exact`]). M is unbounded as declared
-//!    points approach z; the scaling keeps the `f64` view finite. (THEORY.md's bounded
+//!    points approach z; the scaling keeps the `f64` view finite. (The bounded
 //!    near-vertex shortcut is not used: it is wrong.)
 //! 4. x a vertex z and y outside z's alive fibre box (but in [-R, R]^d): the face it
 //!    violates was set by an earlier lifted cut at (z, i, s); that cut is repeated.
@@ -56,8 +56,9 @@ use crate::adversary::{Adversary, Halving, Undecided};
 use crate::class::{FeasibilityClass, LatticeClass, Promise};
 use crate::error::Error;
 use crate::exact::{cmp_diff, f64_to_rational, two_diff, Exact};
-use crate::instance::{FibreBall, LatticeHull, Witness, Witnesses};
+use crate::instance::{FibreBall, LatticeHull, Witness};
 use crate::oracle::{Answer, Cut, Normal};
+use crate::transcript::Witnesses;
 
 /// Largest exponent of M: declared points have excess at most 2R < 2^998 and l1
 /// distance at least 2^-1074, so 2^2073 always suffices; the cap keeps 2^a finite.

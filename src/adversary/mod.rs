@@ -17,8 +17,8 @@ use serde::{Deserialize, Serialize};
 
 use crate::class::Class;
 use crate::error::Error;
-use crate::instance::Witnesses;
 use crate::oracle::Answer;
+use crate::transcript::Witnesses;
 
 pub use halving::Halving;
 
@@ -29,10 +29,10 @@ pub use halving::Halving;
 pub enum Undecided {
     /// log2 of the volume of the alive region.
     Log2Volume(f64),
-    /// The number of alive lattice points (lattice classes, THEORY.md 4).
+    /// The number of alive lattice points (lattice classes, docs/theory.md §4).
     AlivePoints(f64),
     /// log2 of the mixed-integer measure: the sum over integer fibres of the alive
-    /// fibre volume (THEORY.md 4).
+    /// fibre volume (docs/theory.md §4).
     Log2MixedMeasure(f64),
 }
 
@@ -80,28 +80,29 @@ pub const ADVERSARIES: &[AdversaryInfo] = &[
     AdversaryInfo {
         name: "halving",
         description: "separation, box: cuts the least-cut axis through the query, keeping \
-                      the larger half (forces d*k + 1 queries; theorem, THEORY.md 1.1)",
+                      the larger half (forces d*k + 1 queries; theorem, docs/theory.md §1.1)",
     },
     AdversaryInfo {
         name: "orthant",
-        description: "first-order, box: nested orthant levels revealing one sign per query \
-                      (ours, THEORY.md 2.3; every run certified by the universal certificate)",
+        description:
+            "first-order, box: nested orthant levels revealing one sign per query \
+                      (ours, docs/theory.md §2.3; every run certified by the universal certificate)",
     },
     AdversaryInfo {
         name: "lattice-half",
         description: "integer, box: cut through the query keeping the most alive lattice \
                       points it finds, at least (|S| - 1)/2 (forces floor(log2 |S|) + 1; \
-                      THEORY.md 4)",
+                      docs/theory.md §4)",
     },
     AdversaryInfo {
         name: "corner",
         description: "integer, {0,1}^n: cuts each queried vertex off alone (forces 2^n; ours, \
-                      THEORY.md 4, every run certified)",
+                      docs/theory.md §4, every run certified)",
     },
     AdversaryInfo {
         name: "mixed-corner",
         description: "mixed-integer, {0,1}^n x [-R,R]^d: box halving per vertex fibre with \
-                      exact lifted cuts (forces 2^n (d k + 1); ours, THEORY.md 4, every run \
+                      exact lifted cuts (forces 2^n (d k + 1); ours, docs/theory.md §4, every run \
                       certified)",
     },
 ];

@@ -1,6 +1,6 @@
-//! The orthant-level adversary for first-order classes (THEORY.md 2.3) [ours: no
+//! The orthant-level adversary for first-order classes (docs/theory.md §2.3) [ours: no
 //! closed-form guarantee is proven; every run is certified by the universal certificate
-//! of THEORY.md 2.2, and only what the verifier confirms is claimed].
+//! of docs/theory.md §2.2, and only what the verifier confirms is claimed].
 //!
 //! Levels k = 0, 1, ... each carry a centre m_k, half-width h_k, base value c_k, slope
 //! lambda_k and signs s_k in {+1, -1}^d fixed lazily; level k's piece is
@@ -13,19 +13,19 @@
 //!   s_i = sign(m_i - y_i), +1 on a tie; at most one sign is revealed per query).
 //!
 //! Ties go to completed levels, then fixed coordinates, then unfixed ones; within each,
-//! the lowest level, then the lowest coordinate (THEORY.md 2.3, step 3). The answer is
+//! the lowest level, then the lowest coordinate (docs/theory.md §2.3, step 3). The answer is
 //! (value, -lambda s e_i) of the winning term. When all d signs of the current level are
 //! fixed, level k+1 opens with margins beta, gamma and ratio theta:
 //!   h' = (1 - beta - gamma) h / 2, lambda' = theta lambda, m' = m + s (1 + beta - gamma) h / 2,
 //!   c' = c - (lambda beta h + 2 lambda' h').
 //!
-//! Queries outside X (a correction to THEORY.md 2.3, which as written is inconsistent
-//! there). A later level's piece grows without bound away from X, so it can exceed an
-//! answer given earlier at a point outside X. Counterexample with the defaults, d = 2,
-//! R = L = 1: y1 = (0, 2) is answered (2, (0, 1)) and fixes s_1 = -1; y2 = (0, -1.7) is
-//! answered (0, (-1, 0)) and fixes s_0 = +1, opening level 1 with m' = (0.5, -0.5),
-//! c' = -1/4, lambda' = 1/4; y3 = (0.5, -0.6) is answered (-0.225, (0, -1/4)), whose
-//! piece is 0.05 > 0 at y2. So when a level opens, its base is lowered to
+//! Queries outside X (the correction recorded in docs/theory.md §2.3; without it the
+//! construction is inconsistent there). A later level's piece grows without bound away from
+//! X, so it can exceed an answer given earlier at a point outside X. Counterexample with
+//! the defaults, d = 2, R = L = 1: y1 = (0, 2) is answered (2, (0, 1)) and fixes s_1 = -1;
+//! y2 = (0, -1.7) is answered (0, (-1, 0)) and fixes s_0 = +1, opening level 1 with m' =
+//! (0.5, -0.5), c' = -1/4, lambda' = 1/4; y3 = (0.5, -0.6) is answered (-0.225, (0, -1/4)),
+//! whose piece is 0.05 > 0 at y2. So when a level opens, its base is lowered to
 //!   c' = min(c' above, min over earlier queries y_t outside X of
 //!            v_t - lambda' max_i |m'_i - y_{t,i}|),
 //! which puts the new piece, whatever its signs, at or below every answer given outside
@@ -33,8 +33,8 @@
 //! unchanged.
 //!
 //! A known weakness: turn-backs (found by testing; it makes the adversary weaker than the
-//! prototype figures of THEORY.md 2.3 against some methods, never unsound). When level k's
-//! signs point back toward level k-1's centre, level k+1's box lies where level k-1's
+//! figures first measured on prototypes against some methods, never unsound). When level
+//! k's signs point back toward level k-1's centre, level k+1's box lies where level k-1's
 //! piece, already fully revealed, is larger than anything level k+1 can reach, so the
 //! minimiser is pinned by known pieces. Counterexample, d = 2, L = R = 1, eps = 1e-6,
 //! Kelley's method: y1 = (0, 0) and y2 = (1, 0) fix level 0's signs (+, +) (ties give +1);
@@ -53,7 +53,7 @@
 //! rigorous error bound (terms as exact TwoSum pairs when the centre is an `f64`, values
 //! relative to the current base as double-doubles) and decided exactly whenever the
 //! bound cannot separate two candidates; the answered value is computed exactly in
-//! dyadic arithmetic (THEORY.md section 0). Cost per answer is O(levels * d),
+//! dyadic arithmetic (docs/theory.md §0). Cost per answer is O(levels * d),
 //! independent of the number of earlier queries (opening a level also costs O(levels)
 //! exact operations, plus O(d) per earlier query outside X); the answers are kept so
 //! that [`Adversary::witnesses`] can run the universal certificate search.
@@ -67,10 +67,10 @@ use crate::certificate::universal;
 use crate::class::FirstOrderClass;
 use crate::error::Error;
 use crate::exact::{f64_to_rational, nearest_f64, two_diff, Exact};
-use crate::instance::Witnesses;
 use crate::oracle::{Answer, FirstOrderAnswer};
+use crate::transcript::Witnesses;
 
-/// Parameters of the orthant-level construction (THEORY.md 2.3).
+/// Parameters of the orthant-level construction (docs/theory.md §2.3).
 #[derive(Clone, Debug, PartialEq)]
 pub struct OrthantSettings {
     /// Margin beta >= 0 (default 0).

@@ -1,4 +1,4 @@
-//! Exact verification of separation-oracle feasibility certificates (THEORY.md 1):
+//! Exact verification of separation-oracle feasibility certificates (docs/theory.md §1):
 //! witnesses are the empty set and closed Euclidean balls of radius rho.
 
 use num_rational::BigRational;
@@ -8,10 +8,10 @@ use crate::certificate::{ClassVerifier, Outcome};
 use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::exact::{f64_to_rational, Exact};
-use crate::game::{Ending, FinalRecord};
 use crate::instance::Witness;
 use crate::oracle::{Answer, Cut, Normal, Output};
 use crate::transcript::QueryRecord;
+use crate::transcript::{Ending, FinalRecord};
 
 /// A ball witness prepared for exact checks.
 struct ExactBall {

@@ -1,4 +1,4 @@
-//! Exact verification of first-order certificates (THEORY.md 2.1, 2.2).
+//! Exact verification of first-order certificates (docs/theory.md §2.1, §2.2).
 //!
 //! Witnesses are max-of-affine-plus-cone functions ([`FunctionWitness`]). For each
 //! witness W the verifier checks, exactly:
@@ -27,10 +27,10 @@ use crate::certificate::{ClassVerifier, Outcome};
 use crate::class::{FirstOrderClass, LipschitzNorm};
 use crate::error::Error;
 use crate::exact::{f64_to_rational, Exact};
-use crate::game::{Ending, FinalRecord};
 use crate::instance::{AffinePiece, FunctionWitness, Witness};
 use crate::oracle::{Answer, Output};
 use crate::transcript::QueryRecord;
+use crate::transcript::{Ending, FinalRecord};
 
 /// A piece prepared for filtered evaluation.
 #[derive(Clone, Debug)]
@@ -256,7 +256,7 @@ impl FirstOrderVerifier {
     }
 
     /// The largest eps these witnesses certify: min over pairs of
-    /// ||c_A - c_B||_inf / (1/sigma_A + 1/sigma_B) (THEORY.md 2.2); `None` with fewer
+    /// ||c_A - c_B||_inf / (1/sigma_A + 1/sigma_B) (docs/theory.md §2.2); `None` with fewer
     /// than two witnesses.
     pub fn certified_uncertainty(&self) -> Option<f64> {
         let n = self.witnesses.len();

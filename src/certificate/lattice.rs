@@ -1,5 +1,5 @@
 //! Exact verification of integer and mixed-integer feasibility certificates
-//! (THEORY.md 4): witnesses are the empty set and hulls conv(F cup {v} x B(c, rho))
+//! (docs/theory.md §4): witnesses are the empty set and hulls conv(F cup {v} x B(c, rho))
 //! ([`crate::instance::LatticeHull`]).
 //!
 //! Checked, all in exact rational arithmetic, no tolerance:
@@ -23,11 +23,11 @@ use crate::certificate::{ClassVerifier, Outcome};
 use crate::class::lattice::{is_mixed_integer, LatticeClass};
 use crate::error::Error;
 use crate::exact::f64_to_rational;
-use crate::game::{Ending, FinalRecord};
 use crate::instance::lattice::ExactHull;
 use crate::instance::Witness;
 use crate::oracle::{Answer, Output};
 use crate::transcript::QueryRecord;
+use crate::transcript::{Ending, FinalRecord};
 
 /// Most lattice points the enumeration cross-check visits.
 pub const CROSS_CHECK_LIMIT: u64 = 4096;

@@ -4,7 +4,7 @@
 //! the transcript's records (header, queries with their answers, final record with the
 //! witnesses); it never sees adversary state. Every comparison is exact, in rational
 //! arithmetic over the exact numbers stored in the transcript, with no tolerance
-//! (THEORY.md section 0). Square roots are decided by squaring with signs checked: a
+//! (docs/theory.md §0). Square roots are decided by squaring with signs checked: a
 //! ball B(c, r) lies strictly inside the cut `{a.y < b}` iff `s = b - a.c > 0` and
 //! `r^2 ||a||^2 < s^2`.
 //!
@@ -23,9 +23,9 @@ use serde::{Deserialize, Serialize};
 
 use crate::class::Class;
 use crate::error::Error;
-use crate::game::{Ending, FinalRecord, Header};
 use crate::oracle::Output;
 use crate::transcript::{parse_line, QueryRecord, Record, TranscriptReader, FORMAT_VERSION};
+use crate::transcript::{Ending, FinalRecord, Header};
 
 /// What the verifier concluded about a game whose certificate checks out.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -69,13 +69,13 @@ pub struct Verdict {
     pub certified_prefix: Option<u64>,
     /// How the game ended, judged by the verified witnesses.
     pub outcome: Outcome,
-    /// First-order classes: the certified uncertainty eps_cert of THEORY.md 2.2, a lower
+    /// First-order classes: the certified uncertainty eps_cert of docs/theory.md §2.2, a lower
     /// estimate of the error no method can rule out from the certified prefix of answers.
     pub certified_uncertainty: Option<f64>,
 }
 
 impl Verdict {
-    /// Certified lower bound = T* + 1 (THEORY.md section 0).
+    /// Certified lower bound = T* + 1 (docs/theory.md §0).
     pub fn certified_lower_bound(&self) -> Option<u64> {
         self.certified_prefix.map(|t| t + 1)
     }
@@ -200,7 +200,7 @@ pub trait ClassVerifier {
     /// Checks the certificate's claim (if any) and judges the ending.
     fn finish(&mut self, final_line: u64) -> Result<Outcome, Error>;
     /// For accuracy classes: the largest accuracy the verified witnesses certify as
-    /// unreachable from these answers (THEORY.md 2.2); `None` elsewhere.
+    /// unreachable from these answers (docs/theory.md §2.2); `None` elsewhere.
     fn certified_uncertainty(&self) -> Option<f64> {
         None
     }

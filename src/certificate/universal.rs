@@ -1,4 +1,4 @@
-//! The universal certificate for any first-order transcript (THEORY.md 2.2).
+//! The universal certificate for any first-order transcript (docs/theory.md §2.2).
 //!
 //! For a slope sigma <= L and a centre c in X, let Lambda(c) = min_t [v_t - sigma
 //! ||x_t - c||_inf] and M(y) = max_t [v_t + g_t.(y - x_t)]. When M(c) <= Lambda(c), the
@@ -31,7 +31,8 @@ use crate::class::FirstOrderClass;
 use crate::error::Error;
 use crate::exact::{f64_to_rational, Exact};
 use crate::geometry::lp::{self, LpOutcome, Row};
-use crate::instance::{AffinePiece, FunctionWitness, Witness, Witnesses};
+use crate::instance::{AffinePiece, FunctionWitness, Witness};
+use crate::transcript::Witnesses;
 
 /// One first-order exchange: the query, the answered value and subgradient.
 #[derive(Clone, Debug, PartialEq)]
@@ -49,7 +50,7 @@ pub struct Exchange {
 pub struct Found {
     /// The witnesses (two functions) and the prefix they certify.
     pub witnesses: Witnesses,
-    /// eps_cert: the largest accuracy these verified witnesses certify (THEORY.md 2.2).
+    /// eps_cert: the largest accuracy these verified witnesses certify (docs/theory.md §2.2).
     pub certified_uncertainty: f64,
 }
 
@@ -564,7 +565,7 @@ pub fn certificate_for(
 /// over sigma = L 2^-j, j = 0, 1, ..., stopping once sigma R (an upper bound on what a
 /// smaller slope can certify, since the centres lie in X) is below the best found. The
 /// two witnesses returned have disjoint eps-solution sets for every eps below the
-/// reported eps_cert (THEORY.md 2.2; the audit of `naysayer check` reports this).
+/// reported eps_cert (docs/theory.md §2.2; the audit of `naysayer check` reports this).
 /// `None` when no slope yields two verified centres.
 pub fn best_certificate(
     class: &FirstOrderClass,
@@ -659,7 +660,7 @@ pub fn longest_certificate(
 }
 
 /// Checks that a transcript is consistent with some convex L-Lipschitz function
-/// (THEORY.md 2.1): every subgradient within L and v_s + g_s.(x_t - x_s) <= v_t for all
+/// (docs/theory.md §2.1): every subgradient within L and v_s + g_s.(x_t - x_s) <= v_t for all
 /// s, t. Returns the first violating pair `(s, t)` (0-based), exactly decided.
 pub fn first_inconsistent_pair(exchanges: &[Exchange]) -> Option<(usize, usize)> {
     let pieces: Vec<FilteredPiece> = exchanges

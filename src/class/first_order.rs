@@ -1,6 +1,6 @@
 //! First-order optimization: minimise a convex L-Lipschitz function over a box to
 //! additive accuracy eps, with an oracle returning f(x) and one subgradient
-//! (THEORY.md section 2).
+//! (docs/theory.md §2).
 
 use serde::{Deserialize, Serialize};
 
@@ -10,7 +10,7 @@ use crate::error::Error;
 /// The norm in which f is L-Lipschitz: every subgradient g satisfies ||g||_* <= L in the
 /// dual norm.
 ///
-/// The witnesses of the universal certificate (THEORY.md 2.2) are L-Lipschitz in every
+/// The witnesses of the universal certificate (docs/theory.md §2.2) are L-Lipschitz in every
 /// l_p norm as soon as every answered subgradient has dual norm at most L; the
 /// orthant-level adversary answers multiples of unit vectors, whose norm is the same in
 /// every l_p, so one transcript serves all three.

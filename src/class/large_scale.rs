@@ -1,10 +1,10 @@
-//! The large-scale first-order classes (THEORY.md section 3): the dimension d is far
+//! The large-scale first-order classes (docs/theory.md §3): the dimension d is far
 //! above the number of queries T, and the bounds depend on T, not on d.
 //!
 //! The start point is x_0 = 0 and R bounds ||x_0 - x*||_2 (l2 norm throughout). These
 //! classes are played by published-theorem *demonstrations* ([`crate::large_scale`]):
 //! their optimal values are irrational, so gaps are compared with the published values
-//! to a stated relative tolerance and are never called certificates (THEORY.md 0).
+//! to a stated relative tolerance and are never called certificates (docs/theory.md §0).
 
 use serde::{Deserialize, Serialize};
 
@@ -22,7 +22,7 @@ pub const MAX_LARGE_SCALE_DIM: usize = 10_000_000;
 ///   ||x_0 - x*|| <= R. Accuracy: the gap f(x_T) - f* at the output x_T.
 /// - [`LargeScaleClass::StronglyConvex`]: f mu-strongly convex with a beta-Lipschitz
 ///   gradient, ||x_0 - x*|| <= R. Accuracy: the gap at the output, evaluated as
-///   (1/2)(x - x*)^T H (x - x*) for quadratics (THEORY.md 3).
+///   (1/2)(x - x*)^T H (x - x*) for quadratics (docs/theory.md §3).
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "kind", rename_all = "kebab-case")]
 pub enum LargeScaleClass {

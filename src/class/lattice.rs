@@ -1,5 +1,5 @@
 //! Integer and mixed-integer feasibility over Z^n x R^d with a separation oracle
-//! (THEORY.md sections 0 and 4).
+//! (docs/theory.md §0 and §4).
 //!
 //! K is convex and lies in the box `prod [lower_i, upper_i] x [-R, R]^d` (integer bounds
 //! on the n integer coordinates, half-width R on the d continuous ones). The class
@@ -174,12 +174,12 @@ impl LatticeClass {
     }
 
     /// True when the integer box contains the cube {0,1}^n (what the corner
-    /// constructions of THEORY.md 4 need).
+    /// constructions of docs/theory.md §4 need).
     pub fn contains_unit_cube(&self) -> bool {
         self.lower.iter().all(|l| *l <= 0) && self.upper.iter().all(|u| *u >= 1)
     }
 
-    /// k = max{ j >= 0 : R 2^-j > rho } (THEORY.md 1.1), by that exact predicate.
+    /// k = max{ j >= 0 : R 2^-j > rho } (docs/theory.md §1.1), by that exact predicate.
     pub fn halvings(&self) -> u32 {
         let mut j = 0;
         let mut scaled = self.half_width;

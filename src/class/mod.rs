@@ -31,7 +31,7 @@ pub enum Promise {
     Nonempty,
 }
 
-/// Separation-oracle feasibility over a box (THEORY.md section 1).
+/// Separation-oracle feasibility over a box (docs/theory.md §1).
 ///
 /// K is convex, K lies in X = [-R, R]^d, and either K is empty or K contains a
 /// Euclidean ball of radius rho ([`Promise::MayBeEmpty`]), or K surely contains such a
@@ -90,7 +90,7 @@ impl FeasibilityClass {
     }
 
     /// k = max{ j >= 0 : R * 2^-j > rho }, computed by that exact predicate
-    /// (THEORY.md 1.1). Multiplying by 1/2 is exact in binary floating point while the
+    /// (docs/theory.md §1.1). Multiplying by 1/2 is exact in binary floating point while the
     /// result stays normal, which it does because R * 2^-j > rho >= f64::MIN_POSITIVE.
     pub fn halvings(&self) -> u32 {
         let mut j = 0;
@@ -133,7 +133,7 @@ mod tests {
 
     #[test]
     fn halvings_match_the_exact_predicate() {
-        // k = ceil(log2(R/rho)) - 1 (THEORY.md 1.1), derived by hand for these ratios.
+        // k = ceil(log2(R/rho)) - 1 (docs/theory.md §1.1), derived by hand for these ratios.
         let cases = [
             (64.0, 5),
             (1000.0, 9),

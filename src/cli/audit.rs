@@ -1,5 +1,5 @@
-//! The first-order audit run by `naysayer check` on any first-order transcript (THEORY.md
-//! 2.1, 2.2): from the answers alone, whatever produced them (an adversary, an explicit
+//! The first-order audit run by `naysayer check` on any first-order transcript (docs/theory.md
+//! §2.1, §2.2): from the answers alone, whatever produced them (an adversary, an explicit
 //! function through [`crate::adversary::instance_oracle`], another program's log in
 //! this format), it reports
 //! 1. whether the answers are consistent with some convex L-Lipschitz function at all
@@ -8,7 +8,7 @@
 //!    query numbers;
 //! 2. eps_cert, the largest accuracy for which [`universal::best_certificate`] finds two
 //!    verified witness functions that reproduce every answer exactly and whose
-//!    eps-solution sets are disjoint (THEORY.md 2.2), with the two witnesses (written
+//!    eps-solution sets are disjoint (docs/theory.md §2.2), with the two witnesses (written
 //!    with `--witnesses FILE`);
 //! 3. whether the method's output claims more than the answers allow: a method that
 //!    stops after T queries with a point claims accuracy eps (the class's eps, or
@@ -34,9 +34,9 @@ use crate::certificate::first_order::dual_norm_at_most;
 use crate::certificate::universal::{self, Exchange, Found};
 use crate::class::{Class, FirstOrderClass};
 use crate::error::Error;
-use crate::game::{Ending, Header};
-use crate::instance::Witnesses;
 use crate::oracle::{Answer, Output};
+use crate::transcript::Witnesses;
+use crate::transcript::{Ending, Header};
 use crate::transcript::{Record, TranscriptReader};
 
 /// A reason the answers fit no convex L-Lipschitz function (query numbers are 1-based).

@@ -22,12 +22,12 @@ pub struct BoundsArgs {
     /// Lattice class parameters (`--class lattice`).
     #[command(flatten)]
     pub lattice: crate::cli::minimax::LatticeArgs,
-    /// Large-scale class parameters (THEORY.md 3).
+    /// Large-scale class parameters (docs/theory.md §3).
     #[command(flatten)]
     pub large_scale: LargeScaleArgs,
 }
 
-/// Parameters of the large-scale classes (THEORY.md 3): given `--large-scale KIND`,
+/// Parameters of the large-scale classes (docs/theory.md §3): given `--large-scale KIND`,
 /// `bounds` prints the gap curves at T queries instead of query counts.
 #[derive(Debug, Args)]
 pub struct LargeScaleArgs {
@@ -48,7 +48,7 @@ pub struct LargeScaleArgs {
     pub strong_convexity: f64,
 }
 
-/// Prints the large-scale gap curves (THEORY.md 3 and 5).
+/// Prints the large-scale gap curves (docs/theory.md §3 and §5).
 fn run_large_scale(kind: &str, args: &BoundsArgs) -> Result<u8, Error> {
     use crate::class::LargeScaleClass;
     let ls = &args.large_scale;
@@ -77,7 +77,7 @@ fn run_large_scale(kind: &str, args: &BoundsArgs) -> Result<u8, Error> {
     println!();
     println!(
         "Published-theorem demonstrations, not certificates: the constants are irrational, \
-         so games compare gaps with these curves to a relative 1e-12 (THEORY.md 0, 3). \
+         so games compare gaps with these curves to a relative 1e-12 (docs/theory.md §0, §3). \
          A lower curve holds for span methods on the explicit instances and for every \
          deterministic method against the rotation adversaries when d is large enough \
          (nonsmooth d >= 2T + 2, smooth d >= 3T + 2; here d = {d})."

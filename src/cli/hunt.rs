@@ -150,7 +150,7 @@ fn summary(args: &HuntArgs, report: &HuntReport) -> String {
     line(
         "lower bound",
         format!(
-            "{} queries for every method (theorem: box halving, THEORY.md 1.1)",
+            "{} queries for every method (theorem: box halving, docs/theory.md §1.1)",
             report.lower_bound
         ),
     );

@@ -16,7 +16,7 @@ pub fn run() -> Result<u8, Error> {
     for a in ADVERSARIES {
         println!("  {:<18} {}", a.name, a.description);
     }
-    println!("large-scale methods (THEORY.md 3; scenario family \"large-scale\"):");
+    println!("large-scale methods (docs/theory.md §3; scenario family \"large-scale\"):");
     for m in crate::method::large_scale::LARGE_SCALE_METHODS {
         let kind = if m.deterministic { "" } else { " (seeded)" };
         println!("  {:<18} {}{kind}", m.name, m.description);

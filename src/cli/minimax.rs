@@ -1,4 +1,4 @@
-//! `naysayer minimax`: exact minimax values of small pure integer classes (THEORY.md 6),
+//! `naysayer minimax`: exact minimax values of small pure integer classes (docs/theory.md §6),
 //! and the lattice class flags shared with `naysayer play`.
 
 use std::time::Instant;
@@ -93,7 +93,7 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
             );
             if class.contains_unit_cube() && args.int_lower == 0 && args.int_upper == 1 {
                 println!(
-                    "                       corner forces 2^n = {} on every method (THEORY.md 4)",
+                    "                       corner forces 2^n = {} on every method (docs/theory.md §4)",
                     1u64 << args.int_dim
                 );
             }

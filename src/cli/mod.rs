@@ -96,7 +96,7 @@ pub enum Command {
     Merge(sweep::MergeArgs),
     /// Draw the charts of a sweep's results folder.
     Chart(chart::ChartArgs),
-    /// Exact minimax value of a small integer class over a finite query set (THEORY.md 6).
+    /// Exact minimax value of a small integer class over a finite query set (docs/theory.md §6).
     Minimax(minimax::MinimaxArgs),
     /// Play a built-in method against one saved first-order witness function (from a
     /// transcript's final record or an audit's witness file) with its exact oracle.
@@ -109,12 +109,12 @@ pub enum Command {
 /// Which family of classes a command plays.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum, Default)]
 pub enum Family {
-    /// Separation-oracle feasibility (THEORY.md 1): --rho, --nonempty.
+    /// Separation-oracle feasibility (docs/theory.md §1): --rho, --nonempty.
     #[default]
     Feasibility,
-    /// First-order minimisation (THEORY.md 2): --eps, --lipschitz, --norm.
+    /// First-order minimisation (docs/theory.md §2): --eps, --lipschitz, --norm.
     FirstOrder,
-    /// Integer and mixed-integer feasibility (THEORY.md 4): --int-dim, --int-lower,
+    /// Integer and mixed-integer feasibility (docs/theory.md §4): --int-dim, --int-lower,
     /// --int-upper, --cont-dim, with --half-width and --rho for the continuous part.
     Lattice,
 }

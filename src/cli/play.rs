@@ -12,9 +12,9 @@ use crate::cli::{
     EXIT_REJECTED,
 };
 use crate::error::Error;
-use crate::game::Ending;
 use crate::method::external::ExternalSettings;
 use crate::runner::{self, GameSpec, Report};
+use crate::transcript::Ending;
 
 /// Arguments of `naysayer play`.
 #[derive(Debug, Args)]
@@ -226,7 +226,7 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
             if let Some(eps_cert) = verdict.certified_uncertainty {
                 out.push_str(&format!(
                     "certified uncertainty  {eps_cert:e} (no method can guarantee a smaller \
-                     error from the certified answers; a lower estimate, THEORY.md 2.2)\n"
+                     error from the certified answers; a lower estimate, docs/theory.md §2.2)\n"
                 ));
             }
         }
@@ -237,7 +237,7 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
     if let Class::Feasibility(class) = &spec.class {
         out.push_str(&format!(
             "theory                 every method needs at least {} queries on this class \
-             (theorem: box halving, THEORY.md 1.1)\n",
+             (theorem: box halving, docs/theory.md §1.1)\n",
             halving_lower_bound(class)
         ));
     }

@@ -21,11 +21,12 @@ use crate::class::{Class, FirstOrderClass};
 use crate::cli::{describe_class, PathArg, EXIT_BAD_INPUT, EXIT_METHOD_FAILED, EXIT_OK};
 use crate::error::Error;
 use crate::exact::{f64_to_rational, rational_to_string};
-use crate::game::{self, Ending, FinalRecord, GameSettings, Header, Observer};
+use crate::game::{self, GameSettings, Observer};
 use crate::instance::{FunctionWitness, Witness};
 use crate::method;
 use crate::oracle::Output;
 use crate::transcript::{parse_line, Flush, MemoryTranscript, Record, TranscriptWriter};
+use crate::transcript::{Ending, FinalRecord, Header};
 
 /// Arguments of `naysayer replay`.
 #[derive(Debug, Args)]

@@ -45,7 +45,7 @@ pub struct MergeArgs {
 
 /// Runs `sweep`.
 pub fn run(args: &SweepArgs) -> Result<u8, Error> {
-    // Validate every scenario before playing any; large-scale scenarios (THEORY.md 3)
+    // Validate every scenario before playing any; large-scale scenarios (docs/theory.md §3)
     // are demonstrations with their own sweep.
     let mut large_scale = Vec::new();
     let mut scenarios = Vec::new();

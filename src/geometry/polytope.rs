@@ -2,7 +2,7 @@
 //!
 //! The model is P = {y : l <= y <= u, a_i . y <= b_i for every stored row i}: the box
 //! [-R, R]^d tightened by every axis cut, intersected with the closed halfspaces of the
-//! dense cuts (the closure of the strict cuts, THEORY.md section 0). Rows are stored with
+//! dense cuts (the closure of the strict cuts, docs/theory.md §0). Rows are stored with
 //! unit l2 norm. Every rounding is done outward (bounds and offsets loosened by a bound on
 //! the rounding error), so P always contains the set the cuts describe; knowing a hair
 //! more than the truth would be unsafe, knowing a hair less is not.

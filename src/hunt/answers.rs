@@ -1,10 +1,10 @@
-//! Admissible answers for the separation feasibility class (THEORY.md 0 and 1).
+//! Admissible answers for the separation feasibility class (docs/theory.md §0 and §1).
 //!
 //! The hunt's adversary state after a line of answers is the alive set: the box
 //! X = [-R, R]^d intersected with every strict cut given. Its witnesses are the empty
 //! set (consistent with every strict cut) and one closed rho-ball B(c, rho) strictly
 //! inside every cut and inside X; their solution sets are disjoint, so while such a ball
-//! exists no method can stop (THEORY.md 1.1, same pair as the halving adversary).
+//! exists no method can stop (docs/theory.md §1.1, same pair as the halving adversary).
 //!
 //! An answer to a query x is a strict cut `{y : a.y < b}` with `a.x >= b` (exactly).
 //! Candidates are central cuts (`b` = a.x rounded down to an `f64`, so the cut passes
@@ -186,7 +186,7 @@ fn dikin_potential(model: &Polytope, start: &[f64], rho: f64) -> f64 {
 }
 
 /// True when the closed ball B(`center`, rho) lies in [-R, R]^d and strictly inside
-/// every cut, decided exactly (the verifier's test, THEORY.md 0: `s = b - a.c > 0` and
+/// every cut, decided exactly (the verifier's test, docs/theory.md §0: `s = b - a.c > 0` and
 /// `rho^2 ||a||^2 < s^2`).
 pub fn ball_fits_exactly(center: &[f64], rho: f64, half_width: f64, cuts: &[Cut]) -> bool {
     let in_box = center.iter().all(|c| {

@@ -1,12 +1,12 @@
 //! Targeted adversary search ("hunt"): the answers that make one given deterministic
-//! method slowest on the separation feasibility class (THEORY.md 1).
+//! method slowest on the separation feasibility class (docs/theory.md §1).
 //!
 //! The built-in adversaries are method-agnostic. A hunt instead searches the game tree
 //! of one method: at each of its queries the hunt may give any admissible answer
 //! ([`answers`]: strict cuts that still leave a rho-ball strictly inside the alive set,
 //! checked exactly), and it looks for the line of answers after which the method has
 //! asked the most queries while the certificate still held: the *certified count*
-//! min(queries used, T* + 1), T* the certified prefix (THEORY.md 0). Ties go to more
+//! min(queries used, T* + 1), T* the certified prefix (docs/theory.md §0). Ties go to more
 //! queries used in all (queries after the certificate ends are valid answers for K =
 //! empty, but certify nothing). Ranking by queries used alone would let uncertified
 //! queries outweigh certified ones: on midpoint it chose games with more queries but a
@@ -43,16 +43,17 @@
 //!
 //! # What is guaranteed
 //! Before the search, the method plays the halving adversary (the generic adversary,
-//! THEORY.md 1.1) and a second fresh instance replays those answers: if the two disagree,
-//! the method is not deterministic and the hunt is refused. The halving game is also the
-//! first candidate for the worst game, so the worst certified count found is never below
-//! the halving game's (finished lines replace it only when strictly better). The worst game is finally replayed from scratch through
-//! the game loop ([`replay::ScriptedAdversary`]), which writes its transcript; the
-//! transcript is checked by the independent verifier ([`crate::certificate`]). Its
-//! certificate (the empty set and one rho-ball) covers the admissible prefix of the line.
-//! Counts are measured for this one method (and seed), not theorems: a longer line may
-//! exist that the search did not find. Lines on which the method failed (an error) are
-//! counted apart and never chosen as the worst game.
+//! docs/theory.md §1.1) and a second fresh instance replays those answers: if the two
+//! disagree, the method is not deterministic and the hunt is refused. The halving game is
+//! also the first candidate for the worst game, so the worst certified count found is never
+//! below the halving game's (finished lines replace it only when strictly better). The
+//! worst game is finally replayed from scratch through the game loop
+//! ([`replay::ScriptedAdversary`]), which writes its transcript; the transcript is checked
+//! by the independent verifier ([`crate::certificate`]). Its certificate (the empty set and
+//! one rho-ball) covers the admissible prefix of the line. Counts are measured for this one
+//! method (and seed), not theorems: a longer line may exist that the search did not find.
+//! Lines on which the method failed (an error) are counted apart and never chosen as the
+//! worst game.
 //!
 //! The hunt supports the class that allows K to be empty; the nonempty promise would
 //! need two disjoint rho-balls as witnesses and is refused.
@@ -68,10 +69,12 @@ use crate::certificate::{self, Verdict};
 use crate::class::{Class, FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::exact::Exact;
-use crate::game::{self, Ending, GameSettings, Header, Observer};
-use crate::instance::{Witness, Witnesses};
+use crate::game::{self, GameSettings, Observer};
+use crate::instance::Witness;
 use crate::method::{self, Method};
 use crate::oracle::{Answer, Cut, Normal, Step};
+use crate::transcript::Witnesses;
+use crate::transcript::{Ending, Header};
 use crate::transcript::{Flush, MemoryTranscript, Record, TranscriptWriter, FORMAT_VERSION};
 
 use answers::{candidate_cuts, node_rng, Admission, Alive, CandidateSettings};
@@ -192,7 +195,7 @@ pub struct HuntReport {
     pub worst: GameFigures,
     /// The same method against the halving adversary (the generic adversary).
     pub generic: GameFigures,
-    /// The theorem's lower bound for the class (THEORY.md 1.1: d k + 1).
+    /// The theorem's lower bound for the class (docs/theory.md §1.1: d k + 1).
     pub lower_bound: u64,
     /// True when the worst game came from the search, false when no line beat the
     /// halving game (the seed line).

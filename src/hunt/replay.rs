@@ -17,10 +17,11 @@
 use crate::adversary::{Adversary, Undecided};
 use crate::error::Error;
 use crate::exact::Exact;
-use crate::game::{self, Ending, FinalRecord, GameSettings, Header};
-use crate::instance::Witnesses;
+use crate::game::{self, GameSettings};
 use crate::method::Method;
 use crate::oracle::{Answer, Cut, Normal};
+use crate::transcript::Witnesses;
+use crate::transcript::{Ending, FinalRecord, Header};
 use crate::transcript::{MemoryTranscript, Record, TranscriptReader};
 
 /// A recorded game as `(query, answer)` pairs, in order.

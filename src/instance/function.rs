@@ -1,4 +1,4 @@
-//! Function witnesses for first-order classes (THEORY.md 2.2): a max of affine pieces
+//! Function witnesses for first-order classes (docs/theory.md §2.2): a max of affine pieces
 //! and an l_inf cone,
 //!   f(y) = max( max_p [a_p . y + b_p], floor + slope * ||y - center||_inf ),
 //! all numbers exact. When every piece is at most `floor` at `center`, f attains its

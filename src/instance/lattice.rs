@@ -1,4 +1,4 @@
-//! Mixed-integer witnesses (THEORY.md 4): K = conv(F cup {v} x B(c, rho)), the convex
+//! Mixed-integer witnesses (docs/theory.md §4): K = conv(F cup {v} x B(c, rho)), the convex
 //! hull of finitely many points F and, optionally, one fibre ball.
 //!
 //! Every check here is exact, in rational arithmetic over the stored numbers. A strict

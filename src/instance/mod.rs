@@ -31,7 +31,7 @@ pub enum Witness {
     },
     /// A convex function: max of affine pieces and an l_inf cone (first-order classes).
     Function(FunctionWitness),
-    /// A mixed-integer hull conv(F cup {v} x B(c, rho)) (lattice classes, THEORY.md 4).
+    /// A mixed-integer hull conv(F cup {v} x B(c, rho)) (lattice classes, docs/theory.md §4).
     LatticeHull(LatticeHull),
 }
 
@@ -64,64 +64,5 @@ impl Witness {
             Witness::Function(_) => "function",
             Witness::LatticeHull(_) => "lattice hull",
         }
-    }
-}
-
-/// Witnesses for a prefix of the transcript.
-///
-/// On disk (the final record's `certificate`) this is `{"schema":S,"prefix":T*,
-/// "instances":[...]}` with `S` the certificate schema version
-/// ([`crate::transcript::CERTIFICATE_SCHEMA`]); a certificate without `schema` was
-/// written before the key existed and is read as schema 1. Reading a schema this build
-/// does not know is an error that names the version.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Witnesses {
-    /// The number of leading answers every witness agrees with (T* in THEORY.md 0).
-    pub prefix: u64,
-    /// The instances.
-    pub instances: Vec<Witness>,
-}
-
-impl Serialize for Witnesses {
-    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        #[derive(Serialize)]
-        struct OnDisk<'a> {
-            schema: u32,
-            prefix: u64,
-            instances: &'a [Witness],
-        }
-        OnDisk {
-            schema: crate::transcript::CERTIFICATE_SCHEMA,
-            prefix: self.prefix,
-            instances: &self.instances,
-        }
-        .serialize(serializer)
-    }
-}
-
-impl<'de> Deserialize<'de> for Witnesses {
-    fn deserialize<D: serde::Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
-        fn first_schema() -> u32 {
-            1
-        }
-        #[derive(Deserialize)]
-        struct OnDisk {
-            #[serde(default = "first_schema")]
-            schema: u32,
-            prefix: u64,
-            instances: Vec<Witness>,
-        }
-        let raw = OnDisk::deserialize(deserializer)?;
-        if !crate::transcript::CERTIFICATE_SCHEMAS_READ.contains(&raw.schema) {
-            return Err(serde::de::Error::custom(format!(
-                "certificate schema {} is not supported (this build reads schema {:?})",
-                raw.schema,
-                crate::transcript::CERTIFICATE_SCHEMAS_READ
-            )));
-        }
-        Ok(Witnesses {
-            prefix: raw.prefix,
-            instances: raw.instances,
-        })
     }
 }

@@ -1,5 +1,5 @@
 //! An orthonormal basis grown one vector at a time, for the adaptive-rotation
-//! adversaries (THEORY.md 3).
+//! adversaries (docs/theory.md §3).
 //!
 //! The basis spans every query seen so far and every revealed direction. A new hidden
 //! direction is a deterministic pseudo-random vector orthogonalised against the whole

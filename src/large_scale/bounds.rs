@@ -1,5 +1,5 @@
 //! Lower and upper gap curves of the large-scale classes against the number of queries
-//! T, each with what it assumes and its source (THEORY.md 3 and 5).
+//! T, each with what it assumes and its source (docs/theory.md §3 and §5).
 //!
 //! Lower curves hold for span methods by the explicit instances, and for every
 //! deterministic method by the adaptive-rotation adversaries when d is large enough
@@ -45,7 +45,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                 status: Status::Proven,
                 source: "Drori & Teboulle, Math. Program. 160, 2016 (span methods, d >= T+1); \
                          any deterministic method by the rotation adversary when d >= 2T + 2 \
-                         (THEORY.md 3)",
+                         (docs/theory.md §3)",
                 method: None,
             },
             GapBound {
@@ -76,7 +76,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                 status: Status::Proven,
                 source: "Nesterov 2004, Thm 2.1.7 (span methods, d >= 2T + 1); any \
                          deterministic method by the rotation-chain adversary when d >= 3T + 2 \
-                         (THEORY.md 3)",
+                         (docs/theory.md §3)",
                 method: None,
             },
             GapBound {
@@ -85,7 +85,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                 gap: Some(2.0 * b * r * r / ((t + 1.0) * (t + 1.0))),
                 formula: "2 beta R^2 / (T+1)^2",
                 status: Status::Proven,
-                source: "Beck & Teboulle 2009, Thm 4.4 (from memory); THEORY.md 5",
+                source: "Beck & Teboulle 2009, Thm 4.4 (from memory); docs/theory.md §5",
                 method: Some("accelerated"),
             },
             GapBound {
@@ -114,7 +114,7 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                     status: Status::Proven,
                     source: "Nesterov 2004, Thm 2.1.13 (span methods; stated in infinite \
                              dimension, checked at d = 2T + 1); rotation-chain adversary for any \
-                             deterministic method when d >= 3T + 2 (THEORY.md 3)",
+                             deterministic method when d >= 3T + 2 (docs/theory.md §3)",
                     method: None,
                 },
                 GapBound {
@@ -124,7 +124,8 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                     formula: "(1 - sqrt(mu/beta))^T (beta + mu) R^2 / 2 (bounding f(x_0) - f* \
                               by beta R^2 / 2)",
                     status: Status::Proven,
-                    source: "Nesterov 2004, Thm 2.2.3, scheme (2.2.11) (from memory); THEORY.md 5",
+                    source:
+                        "Nesterov 2004, Thm 2.2.3, scheme (2.2.11) (from memory); docs/theory.md §5",
                     method: Some("accelerated"),
                 },
                 GapBound {

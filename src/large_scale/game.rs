@@ -1,14 +1,13 @@
 //! The demonstration loop of the large-scale regime: an ordinary [`Method`] asks, an
 //! [`Oracle`] (an explicit instance or a rotation adversary) answers in `f64`, and the
 //! loop counts queries. It mirrors [`crate::game::play`] but writes no certificate:
-//! what comes out is a gap to compare with a published bound (THEORY.md 0 and 3).
+//! what comes out is a gap to compare with a published bound (docs/theory.md §0 and §3).
 
 use std::time::{Duration, Instant};
 
 use crate::class::LargeScaleClass;
 use crate::error::Error;
 use crate::exact::Exact;
-use crate::game::Ending;
 use crate::large_scale::instances::{
     DroriTeboulle, NesterovNonsmooth, SmoothChain, StronglyConvexChain,
 };
@@ -19,6 +18,7 @@ use crate::large_scale::{KnownFunction, Oracle};
 use crate::method::large_scale as methods;
 use crate::method::Method;
 use crate::oracle::{Answer, FirstOrderAnswer, Output, Step};
+use crate::transcript::Ending;
 
 /// What one demonstration game produced.
 #[derive(Clone, Debug)]

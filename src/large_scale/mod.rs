@@ -1,4 +1,4 @@
-//! The large-scale first-order regime (THEORY.md section 3): worst-case chain functions
+//! The large-scale first-order regime (docs/theory.md §3): worst-case chain functions
 //! and the adaptive-rotation adversary, for methods in dimension d far above the number
 //! of queries T.
 //!
@@ -7,7 +7,7 @@
 //! rotation adversary's directions come from a floating-point Gram-Schmidt process. So
 //! nothing in this module is an exact certificate: answers are `f64`, gaps are compared
 //! with the published values to the relative tolerance [`RELATIVE_TOLERANCE`], and the
-//! exact verifier ([`crate::certificate`]) is neither used nor weakened (THEORY.md 0,
+//! exact verifier ([`crate::certificate`]) is neither used nor weakened (docs/theory.md §0,
 //! "published-theorem demonstrations"). Everything here says "demonstration".
 //!
 //! Pieces:

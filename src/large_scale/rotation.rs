@@ -1,4 +1,4 @@
-//! The adaptive-rotation adversary for the nonsmooth class (THEORY.md 3), valid against
+//! The adaptive-rotation adversary for the nonsmooth class (docs/theory.md §3), valid against
 //! any deterministic method, not only span methods.
 //!
 //! Hidden function: a rotation of the Drori-Teboulle function ([`super::instances::
@@ -77,7 +77,7 @@ impl Rotation {
                 needed,
                 what: format!(
                     "the rotation adversary for {queries} queries and N = {steps} (queries + N \
-                     + 2, the output need not be a queried point; THEORY.md 3)"
+                     + 2, the output need not be a queried point; docs/theory.md §3)"
                 ),
             });
         }

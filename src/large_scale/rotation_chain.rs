@@ -1,5 +1,5 @@
 //! The adaptive-rotation adversary for the smooth and strongly convex classes
-//! (THEORY.md 3): the chain of [`super::instances::Chain`] revealed along directions
+//! (docs/theory.md §3): the chain of [`super::instances::Chain`] revealed along directions
 //! chosen orthogonal to everything the method has seen.
 //!
 //! Hidden function: f(x) = h(U^T x) + (mu/2) ||x||^2 with h(z) = (c/2) z^T A z - c s z_1
@@ -72,7 +72,7 @@ impl RotationChain {
                 needed,
                 what: format!(
                     "the rotation-chain adversary for {queries} queries (queries + chain length \
-                     2T + 1 + 1 for the output; THEORY.md 3)"
+                     2T + 1 + 1 for the output; docs/theory.md §3)"
                 ),
             });
         }

@@ -1,4 +1,4 @@
-//! The `large-scale` scenario family (THEORY.md 3): a sweep of demonstration games over
+//! The `large-scale` scenario family (docs/theory.md §3): a sweep of demonstration games over
 //! a grid of query counts T in one large-scale class.
 //!
 //! ```toml

@@ -276,7 +276,7 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         ),
         subtitle: Some(format!(
             "{}: d = {}, R = {}; demonstration, not a certificate (irrational constants, \
-             compared to 1e-12 relative; THEORY.md 3)",
+             compared to 1e-12 relative; docs/theory.md §3)",
             scenario.name,
             scenario.class.dim(),
             scenario.class.radius()

@@ -27,12 +27,13 @@
 //! leaves the model unchanged (outward rounding swallowed it), the method stops with
 //! [`crate::error::Error::MethodFailed`] rather than repeat a query or claim anything.
 //!
-//! First-order classes ([`AnalyticCenter::first_order`]): each answer becomes its objective cut
-//! `g.y < g.x`, which keeps every point better than the query, so the model P contains
-//! all of them; the method keeps its best point and the lower bound
-//! f* >= min(f_best, min_P M_t) of [`PolytopeObjective`](crate::method::kelley::PolytopeObjective) (an LP over P of the
-//! cutting-plane model, Kelley 1960), and outputs its best point once that gap is at most
-//! eps or once P holds no ball of radius [`volume_radius`](crate::method::kelley::volume_radius) (the volume argument).
+//! First-order classes ([`AnalyticCenter::first_order`]): each answer becomes its objective
+//! cut `g.y < g.x`, which keeps every point better than the query, so the model P contains
+//! all of them; the method keeps its best point and the lower bound f* >= min(f_best, min_P
+//! M_t) of [`PolytopeObjective`](crate::method::kelley::PolytopeObjective) (an LP over P of
+//! the cutting-plane model, Kelley 1960), and outputs its best point once that gap is at
+//! most eps or once P holds no ball of radius
+//! [`volume_radius`](crate::method::kelley::volume_radius) (the volume argument).
 
 use nalgebra::{DMatrix, DVector};
 
@@ -208,8 +209,9 @@ impl AnalyticCenter {
 
     /// The method on a first-order class (module doc): objective cuts `g.y < g.x`
     /// ([`Answer::to_separation`]), the best point kept, and a stop with that point once
-    /// the LP bound of [`PolytopeObjective`](crate::method::kelley::PolytopeObjective) leaves a gap of at most eps or the model
-    /// holds no ball of radius [`volume_radius`](crate::method::kelley::volume_radius); never "empty".
+    /// the LP bound of [`PolytopeObjective`](crate::method::kelley::PolytopeObjective)
+    /// leaves a gap of at most eps or the model holds no ball of radius
+    /// [`volume_radius`](crate::method::kelley::volume_radius); never "empty".
     pub fn first_order(class: &FirstOrderClass) -> Result<AnalyticCenter, Error> {
         let mut method = AnalyticCenter::new(&CutModel::relaxed(class)?)?;
         method.model = method.model.with_objective(class);

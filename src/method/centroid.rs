@@ -157,7 +157,7 @@ mod tests {
             );
             if d == 1 {
                 // The midpoint of an interval with dyadic ends is exact: bisection meets
-                // the bound exactly (THEORY.md 1.1).
+                // the bound exactly (docs/theory.md §1.1).
                 assert_eq!(queries, bound);
             }
         }

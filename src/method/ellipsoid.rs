@@ -33,6 +33,7 @@
 //! volume of a ball of radius [`crate::method::kelley::volume_radius`] (then no
 //! eps-optimal point remains in E beyond the best one). It never answers "empty".
 
+use crate::bounds::ellipsoid_log_volume_ratio;
 use crate::class::{FeasibilityClass, FirstOrderClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
@@ -116,7 +117,11 @@ impl Ellipsoid {
             log_volume: d as f64 * log_radius,
             // A relative margin so rounding in the running sum never claims too early.
             log_volume_floor: d as f64 * rho.ln() - 1e-9 * (1.0 + d as f64 * log_radius.abs()),
-            log_ratio: if d >= 2 { log_volume_ratio(d) } else { 0.0 },
+            log_ratio: if d >= 2 {
+                ellipsoid_log_volume_ratio(d)
+            } else {
+                0.0
+            },
             interval: (d == 1).then(|| BoxModel::cube(1, half_width)),
             rho,
             promise,
@@ -264,15 +269,6 @@ impl Ellipsoid {
         self.log_volume += self.log_ratio;
         Ok(())
     }
-}
-
-/// ln r_d = ln(d/(d+1)) + ((d-1)/2) ln(d^2/(d^2-1)), computed with `ln_1p` so the
-/// tiny second term keeps its digits (THEORY.md 1.2).
-pub fn log_volume_ratio(d: usize) -> f64 {
-    let df = d as f64;
-    let first = -(1.0 / df).ln_1p();
-    let second = 0.5 * (df - 1.0) * (1.0 / (df * df - 1.0)).ln_1p();
-    first + second
 }
 
 impl Method for Ellipsoid {

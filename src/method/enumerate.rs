@@ -3,7 +3,7 @@
 //! excludes (lattice enumeration; common practice, no source). Pure integer classes.
 //!
 //! Against the corner adversary on {0,1}^n it meets the lower bound 2^n with equality
-//! (THEORY.md 4).
+//! (docs/theory.md §4).
 
 use num_rational::BigRational;
 

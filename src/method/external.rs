@@ -23,7 +23,7 @@
 //!    `{"kind":"cut","normal":N,"offset":b}` (the strict cut {y : N.y < b}; `N` a dense
 //!    array or `{"axis":i,"sign":s}` meaning s e_i, axis from 0), or
 //!    `{"kind":"first-order","value":v,"subgradient":[...]}`.
-//!    Numbers the adversary computed are exact rationals (THEORY.md section 0): a plain
+//!    Numbers the adversary computed are exact rationals (docs/theory.md §0): a plain
 //!    JSON number is exactly the `f64` it parses to; a value no `f64` holds is
 //!    `{"exact":"p/q","approx":f}` with `approx` its nearest `f64`. A method may use
 //!    either; the verifier always uses the exact value.

@@ -39,7 +39,7 @@ pub const LP_MARGIN: f64 = 1e-8;
 ///
 /// Values and subgradients are kept as their nearest `f64` (a method that reads only the
 /// `f64` views knows less than one that reads the exact values, which never helps it
-/// beat the lower bound; THEORY.md section 0).
+/// beat the lower bound; docs/theory.md §0).
 #[derive(Clone, Debug)]
 pub struct Bundle {
     dim: usize,

@@ -7,15 +7,15 @@
 //! linear optimization", Oper. Res. Lett. 42 (2014): when A = K cap Z^n for a convex K,
 //! some point of A has depth at least |A| / 2^n, so every answer removes at least that
 //! many points. Depth is computed as |A| minus the best open halfspace through the point
-//! found by [`crate::adversary::lattice_half::best_split`] (exact for n <= 2, a
+//! found by [`crate::geometry::lattice_split::best_split`] (exact for n <= 2, a
 //! candidate search above, where the depth found is an upper estimate). Candidates: the
 //! lattice points of A's bounding box for n <= 2 (a point has positive depth exactly
 //! when it lies in conv(A)), the points of A for n >= 3 (so every query removes a point).
 //! Ties: the lowest lexicographic index.
 
-use crate::adversary::lattice_half::best_split;
 use crate::class::LatticeClass;
 use crate::error::Error;
+use crate::geometry::lattice_split::best_split;
 use crate::method::enumerate::{cut_excludes, lattice_of};
 use crate::method::Method;
 use crate::oracle::{Answer, Output, Separation, Step};

@@ -1,6 +1,6 @@
 //! Midpoint: query the centre of the method's own box model (multidimensional
 //! bisection; common practice, no source). Against the box-halving adversary it is
-//! optimal: it meets the lower bound d*k + 1 exactly (THEORY.md 1.1).
+//! optimal: it meets the lower bound d*k + 1 exactly (docs/theory.md §1.1).
 
 use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;

@@ -11,8 +11,6 @@
 //! register it in [`METHODS`] and [`build`].
 
 pub mod analytic_center;
-#[cfg(feature = "argmin")]
-pub mod argmin_adapter;
 pub mod centroid;
 mod cut_model;
 pub mod ellipsoid;
@@ -168,7 +166,7 @@ pub fn build(name: &str, class: &Class, seed: u64) -> Result<Box<dyn Method + Se
     }
 }
 
-/// The built-in methods of the lattice classes (THEORY.md 4).
+/// The built-in methods of the lattice classes (docs/theory.md §4).
 pub const LATTICE_METHODS: &[&str] = &[
     "enumerate",
     "lattice-centerpoint",
@@ -176,7 +174,7 @@ pub const LATTICE_METHODS: &[&str] = &[
     "mixed-centerpoint",
 ];
 
-/// Builds a built-in method for a lattice class (THEORY.md 4).
+/// Builds a built-in method for a lattice class (docs/theory.md §4).
 fn build_lattice(
     name: &str,
     class: &crate::class::LatticeClass,

@@ -65,7 +65,7 @@ impl Subgradient {
     }
 
     /// The unconstrained variant with a given fixed step, for the large-scale classes
-    /// (THEORY.md 3): x_0 = 0, x_{t+1} = x_t - step g_t (no projection), `planned`
+    /// (docs/theory.md §3): x_0 = 0, x_{t+1} = x_t - step g_t (no projection), `planned`
     /// queries, the best point seen as output. With step R / (M sqrt(N+1)) and N + 1
     /// planned queries it is the method Drori & Teboulle 2016 show tight.
     pub fn unconstrained(dim: usize, step: f64, planned: u64) -> Subgradient {

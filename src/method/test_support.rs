@@ -71,7 +71,7 @@ impl AxisHalver {
 
 /// Plays `make`'s method against [`AxisHalver`] for d = 1..=`max_dim`, R = 1, rho in
 /// {1/64, 1e-3}, axis and dense normals. Checks that "empty" comes only once no rho-ball
-/// fits the oracle's box, and after at least d k + 1 queries (THEORY.md 1.1, the
+/// fits the oracle's box, and after at least d k + 1 queries (docs/theory.md §1.1, the
 /// box-halving lower bound). Returns (d, rho, queries) for every game.
 pub(crate) fn play_halver(
     max_dim: usize,

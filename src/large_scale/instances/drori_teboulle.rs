@@ -1,5 +1,5 @@
 //! The tight nonsmooth function of Drori & Teboulle, "An optimal variant of Kelley's
-//! cutting-plane method", Math. Program. 160, 2016 (THEORY.md 3):
+//! cutting-plane method", Math. Program. 160, 2016 (docs/theory.md §3):
 //!
 //! f(x) = M max{ max_{i <= N+1} x_i, ||x|| - R (1 + 1/sqrt(N+1)) }.
 //!

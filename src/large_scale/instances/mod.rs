@@ -1,4 +1,4 @@
-//! Explicit worst-case instances of the large-scale classes (THEORY.md 3), each with its
+//! Explicit worst-case instances of the large-scale classes (docs/theory.md §3), each with its
 //! exact-in-form oracle (the `f64` evaluation of a closed formula), its minimiser, its
 //! optimal value and the bound it demonstrates. Published-theorem demonstrations: the
 //! constants are irrational, so comparisons use [`super::RELATIVE_TOLERANCE`].

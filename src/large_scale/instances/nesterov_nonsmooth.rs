@@ -1,5 +1,5 @@
 //! The nonsmooth worst-case function of Nesterov, Introductory Lectures on Convex
-//! Optimization, 2004, Thm 3.2.1 (THEORY.md 3):
+//! Optimization, 2004, Thm 3.2.1 (docs/theory.md §3):
 //!
 //! f(x) = gamma max_{i <= k+1} x_i + (mu/2) ||x||^2,
 //! gamma = sqrt(k+1) M / (2 + sqrt(k+1)), mu = M / ((2 + sqrt(k+1)) R).

@@ -1,5 +1,5 @@
 //! The smooth worst-case chain of Nesterov, Introductory Lectures on Convex
-//! Optimization, 2004, Thm 2.1.7 (THEORY.md 3):
+//! Optimization, 2004, Thm 2.1.7 (docs/theory.md §3):
 //!
 //! f(x) = (beta/4) [ (1/2)(x_1^2 + sum_{i=1}^{2k} (x_i - x_{i+1})^2 + x_{2k+1}^2) - s x_1 ],
 //!

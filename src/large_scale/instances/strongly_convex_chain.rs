@@ -1,18 +1,18 @@
 //! The strongly convex worst-case chain of Nesterov, Introductory Lectures on Convex
-//! Optimization, 2004, Thm 2.1.13 (THEORY.md 3):
+//! Optimization, 2004, Thm 2.1.13 (docs/theory.md §3):
 //!
 //! f(x) = ((beta - mu)/8) [x_1^2 + sum (x_i - x_{i+1})^2 - 2 s x_1] + (mu/2) ||x||^2,
 //!
 //! truncated to a [`Chain`] of length p = 2k + 1 (coupling c = (beta - mu)/4), so f is
 //! mu-strongly convex and beta-smooth. The book states the bound in infinite dimension;
-//! THEORY.md 3 records that it holds at p = 2k + 1 (checked there in high precision at
+//! docs/theory.md §3 records that it holds at p = 2k + 1 (checked there in high precision at
 //! Q = 10, k = 60; the test suite checks it again for the k it uses).
 //!
 //! Bound demonstrated: every span method has f(x_k) - f* >= (mu/2) q^(2k) ||x_0 - x*||^2
 //! after k queries, q = (sqrt(Q) - 1)/(sqrt(Q) + 1), Q = beta/mu. The gap is evaluated
 //! as (1/2)(x - x*)^T H (x - x*) with the closed-form minimiser (no subtraction of
 //! values); keep k where (mu/2) q^(2k) R^2 is far above the rounding of the minimiser,
-//! about 1e-16 beta R^2 (THEORY.md 3).
+//! about 1e-16 beta R^2 (docs/theory.md §3).
 
 use crate::error::Error;
 use crate::large_scale::instances::Chain;

@@ -4,13 +4,13 @@
 //! Imaging Sci. 2, 2009, sec. 4): y_1 = x_0 = 0, t_1 = 1; query y_k;
 //! x_k = y_k - (1/beta) grad f(y_k); t_{k+1} = (1 + sqrt(1 + 4 t_k^2))/2;
 //! y_{k+1} = x_k + ((t_k - 1)/t_{k+1})(x_k - x_{k-1}). After T queries it outputs x_T, with
-//! f(x_T) - f* <= 2 beta ||x_0 - x*||^2 / (T+1)^2 (their Thm 4.4; THEORY.md 5).
+//! f(x_T) - f* <= 2 beta ||x_0 - x*||^2 / (T+1)^2 (their Thm 4.4; docs/theory.md §5).
 //!
 //! Strongly convex class (Nesterov, Introductory Lectures, 2004, constant step scheme
 //! (2.2.11)): y_0 = x_0 = 0; query y_k; x_{k+1} = y_k - (1/beta) grad f(y_k);
 //! y_{k+1} = x_{k+1} + m (x_{k+1} - x_k), m = (sqrt(beta) - sqrt(mu))/(sqrt(beta) + sqrt(mu)).
 //! After T queries it outputs x_T, with f(x_T) - f* <= (1 - sqrt(mu/beta))^T (f(x_0) - f* +
-//! (mu/2) ||x_0 - x*||^2) (Nesterov 2004, Thm 2.2.3; from memory; THEORY.md 5).
+//! (mu/2) ||x_0 - x*||^2) (Nesterov 2004, Thm 2.2.3; from memory; docs/theory.md §5).
 //!
 //! Both keep every iterate in x_0 + span of the past gradients.
 

@@ -1,7 +1,7 @@
 //! Gradient descent with the fixed step 1/beta (Cauchy 1847), x_0 = 0,
 //! x_{t+1} = x_t - (1/beta) grad f(x_t); after T queries it outputs x_T.
 //!
-//! Guarantees (THEORY.md 5; from memory): on a convex beta-smooth f,
+//! Guarantees (docs/theory.md §5; from memory): on a convex beta-smooth f,
 //! f(x_T) - f* <= beta ||x_0 - x*||^2 / (2T) (Beck & Teboulle, SIAM J. Imaging Sci. 2,
 //! 2009, Thm 3.1, with no nonsmooth part); on a mu-strongly convex one,
 //! f(x_T) - f* <= (1 - mu/beta)^T (f(x_0) - f*) (common practice, no source pinned).

@@ -1,4 +1,4 @@
-//! Methods of the large-scale first-order regime (THEORY.md 3 and 5): the span methods
+//! Methods of the large-scale first-order regime (docs/theory.md §3 and §5): the span methods
 //! `gradient`, `accelerated`, `heavy-ball` (and the existing `subgradient`, reused in its
 //! unconstrained fixed-step form), and the deliberately non-span `coordinate-search` and
 //! `random-direction`, which exercise the adaptive-rotation adversary.

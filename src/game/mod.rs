@@ -4,14 +4,15 @@
 //! deterministic given the method's seed. How it ended is data ([`Ending`]); an
 //! [`Error`] means the game could not be played or recorded (an observer failed).
 
-use serde::{Deserialize, Serialize};
+mod observers;
+
+pub use observers::UndecidedTrace;
 
 use crate::adversary::Adversary;
-use crate::class::Class;
 use crate::error::Error;
-use crate::instance::Witnesses;
 use crate::method::Method;
 use crate::oracle::{Answer, Output, Step};
+use crate::transcript::{Ending, FinalRecord, Header};
 
 /// Settings of one game.
 #[derive(Clone, Debug, PartialEq)]
@@ -26,54 +27,6 @@ impl Default for GameSettings {
     fn default() -> Self {
         GameSettings { budget: 1_000_000 }
     }
-}
-
-/// How a game ended.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(tag = "kind", rename_all = "kebab-case")]
-pub enum Ending {
-    /// The method stopped with an output.
-    Output {
-        /// What it claimed.
-        output: Output,
-    },
-    /// The method wanted more queries than the budget allows.
-    BudgetExhausted,
-    /// The method broke the rules or failed internally.
-    MethodFailed {
-        /// What went wrong.
-        reason: String,
-    },
-}
-
-/// Identifies a game: written first in every transcript.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct Header {
-    /// Transcript format version ([`crate::transcript::FORMAT_VERSION`]).
-    pub format: u32,
-    /// The tool that wrote it, `naysayer <version>`.
-    pub tool: String,
-    /// The class and all its parameters.
-    pub class: Class,
-    /// Adversary name.
-    pub adversary: String,
-    /// Method name.
-    pub method: String,
-    /// The method's seed (recorded also for deterministic methods).
-    pub seed: u64,
-    /// The query budget.
-    pub budget: u64,
-}
-
-/// Written last: how the game ended and the witnesses for the longest certified prefix.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct FinalRecord {
-    /// Queries the method asked (censored at the budget when the budget ended the game).
-    pub queries_used: u64,
-    /// How the game ended.
-    pub ending: Ending,
-    /// Witnesses and the prefix they certify; `None` when no prefix is certifiable.
-    pub certificate: Option<Witnesses>,
 }
 
 /// Watches a game. Every hook may fail (for example a transcript write), which aborts
@@ -184,25 +137,5 @@ fn check_output(output: &Output, dim: usize) -> Result<(), String> {
                 Ok(())
             }
         }
-    }
-}
-
-/// Records the undecided measure after every answer (for charts of progress).
-#[derive(Clone, Debug, Default)]
-pub struct UndecidedTrace {
-    /// `(query index, undecided measure after that answer)`, from index 1.
-    pub points: Vec<(u64, f64)>,
-}
-
-impl Observer for UndecidedTrace {
-    fn on_query(
-        &mut self,
-        index: u64,
-        _query: &[f64],
-        _answer: &Answer,
-        adversary: &dyn Adversary,
-    ) -> Result<(), Error> {
-        self.points.push((index, adversary.undecided().value()));
-        Ok(())
     }
 }

@@ -1,0 +1,165 @@
+//! The records of a transcript: what each line holds. These types know nothing of who
+//! writes them: the game loop, the verifier and the readers all depend on them, never
+//! the other way round.
+
+use serde::{Deserialize, Serialize};
+
+use crate::class::Class;
+use crate::instance::Witness;
+use crate::oracle::{Answer, Output};
+
+/// The transcript format version this build writes and reads.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// The certificate schema version this build writes: the `schema` key of the final
+/// record's `certificate`, versioned separately from [`FORMAT_VERSION`] so that the
+/// witness kinds can change while the record layout stays (changelog in the README).
+pub const CERTIFICATE_SCHEMA: u32 = 1;
+
+/// Every certificate schema version this build reads (old certificates stay checkable;
+/// a certificate without `schema` is schema 1).
+pub const CERTIFICATE_SCHEMAS_READ: &[u32] = &[1];
+
+/// How a game ended.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum Ending {
+    /// The method stopped with an output.
+    Output {
+        /// What it claimed.
+        output: Output,
+    },
+    /// The method wanted more queries than the budget allows.
+    BudgetExhausted,
+    /// The method broke the rules or failed internally.
+    MethodFailed {
+        /// What went wrong.
+        reason: String,
+    },
+}
+
+/// Identifies a game: written first in every transcript.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Header {
+    /// Transcript format version ([`crate::transcript::FORMAT_VERSION`]).
+    pub format: u32,
+    /// The tool that wrote it, `naysayer <version>`.
+    pub tool: String,
+    /// The class and all its parameters.
+    pub class: Class,
+    /// Adversary name.
+    pub adversary: String,
+    /// Method name.
+    pub method: String,
+    /// The method's seed (recorded also for deterministic methods).
+    pub seed: u64,
+    /// The query budget.
+    pub budget: u64,
+}
+
+/// Written last: how the game ended and the witnesses for the longest certified prefix.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FinalRecord {
+    /// Queries the method asked (censored at the budget when the budget ended the game).
+    pub queries_used: u64,
+    /// How the game ended.
+    pub ending: Ending,
+    /// Witnesses and the prefix they certify; `None` when no prefix is certifiable.
+    pub certificate: Option<Witnesses>,
+}
+
+/// One query record.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct QueryRecord {
+    /// 1-based query number.
+    pub index: u64,
+    /// The query point.
+    pub point: Vec<f64>,
+    /// The oracle's answer.
+    pub answer: Answer,
+}
+
+/// One line of a transcript.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "type", content = "data", rename_all = "kebab-case")]
+pub enum Record {
+    /// First line.
+    Header(Header),
+    /// One exchange.
+    Query(QueryRecord),
+    /// Last line.
+    Final(FinalRecord),
+}
+
+#[derive(Serialize)]
+pub(crate) struct QueryRecordRef<'a> {
+    pub(crate) index: u64,
+    pub(crate) point: &'a [f64],
+    pub(crate) answer: &'a Answer,
+}
+
+#[derive(Serialize)]
+#[serde(tag = "type", content = "data", rename_all = "kebab-case")]
+pub(crate) enum RecordRef<'a> {
+    Header(&'a Header),
+    Query(QueryRecordRef<'a>),
+    Final(&'a FinalRecord),
+}
+
+/// Witnesses for a prefix of the transcript.
+///
+/// On disk (the final record's `certificate`) this is `{"schema":S,"prefix":T*,
+/// "instances":[...]}` with `S` the certificate schema version
+/// ([`CERTIFICATE_SCHEMA`]); a certificate without `schema` was
+/// written before the key existed and is read as schema 1. Reading a schema this build
+/// does not know is an error that names the version.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Witnesses {
+    /// The number of leading answers every witness agrees with (T* in THEORY.md 0).
+    pub prefix: u64,
+    /// The instances.
+    pub instances: Vec<Witness>,
+}
+
+impl Serialize for Witnesses {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        #[derive(Serialize)]
+        struct OnDisk<'a> {
+            schema: u32,
+            prefix: u64,
+            instances: &'a [Witness],
+        }
+        OnDisk {
+            schema: CERTIFICATE_SCHEMA,
+            prefix: self.prefix,
+            instances: &self.instances,
+        }
+        .serialize(serializer)
+    }
+}
+
+impl<'de> Deserialize<'de> for Witnesses {
+    fn deserialize<D: serde::Deserializer<'de>>(deserializer: D) -> Result<Self, D::Error> {
+        fn first_schema() -> u32 {
+            1
+        }
+        #[derive(Deserialize)]
+        struct OnDisk {
+            #[serde(default = "first_schema")]
+            schema: u32,
+            prefix: u64,
+            instances: Vec<Witness>,
+        }
+        let raw = OnDisk::deserialize(deserializer)?;
+        if !CERTIFICATE_SCHEMAS_READ.contains(&raw.schema) {
+            return Err(serde::de::Error::custom(format!(
+                "certificate schema {} is not supported (this build reads schema {:?})",
+                raw.schema, CERTIFICATE_SCHEMAS_READ
+            )));
+        }
+        Ok(Witnesses {
+            prefix: raw.prefix,
+            instances: raw.instances,
+        })
+    }
+}
