@@ -178,6 +178,7 @@ fn certificate_search(c: &mut Criterion) {
                     queries_used: exchanges.len() as u64,
                     ending: Ending::BudgetExhausted,
                     certificate: Some(found.witnesses),
+                    demonstration: None,
                 }));
                 let verdict = verify_records(&all).expect("the verifier accepts");
                 black_box(verdict)

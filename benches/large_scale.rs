@@ -16,10 +16,9 @@
 use std::cell::OnceCell;
 
 use criterion::{black_box, criterion_group, criterion_main, BatchSize, Criterion};
-use naysayer::large_scale::basis::{axpy, dot};
-use naysayer::large_scale::instances::SmoothChain;
-use naysayer::large_scale::rotation::Rotation;
-use naysayer::large_scale::Oracle;
+use naysayer::adversary::rotation::Rotation;
+use naysayer::geometry::basis::{axpy, dot};
+use naysayer::instance::large_scale::{Function, SmoothChain};
 
 const DIM: usize = 100_000;
 const QUERIES: usize = 1000;
@@ -34,7 +33,7 @@ fn rotation_state() -> (Rotation, Vec<f64>) {
     let mut x = vec![0.0; DIM];
     let mut g = vec![0.0; DIM];
     for _ in 0..QUERIES {
-        adversary.answer(&x, &mut g).unwrap();
+        adversary.respond(&x, &mut g).unwrap();
         axpy(-step, &g, &mut x);
     }
     (adversary, x)
@@ -83,7 +82,7 @@ fn rotation(c: &mut Criterion) {
         let mut g = vec![0.0; DIM];
         b.iter_batched_ref(
             || adversary.clone(),
-            |fresh| black_box(fresh.answer(query, &mut g).unwrap()),
+            |fresh| black_box(fresh.respond(query, &mut g).unwrap()),
             BatchSize::PerIteration,
         )
     });
@@ -92,12 +91,12 @@ fn rotation(c: &mut Criterion) {
 
 fn chain(c: &mut Criterion) {
     let d = 1_000_000;
-    let mut chain = SmoothChain::new(d, 1.0, 1.0, (d - 1) / 2).unwrap();
+    let chain = SmoothChain::new(d, 1.0, 1.0, (d - 1) / 2).unwrap();
     let x: Vec<f64> = (0..d).map(|i| ((i * 31) % 97) as f64 / 97.0).collect();
     let mut g = vec![0.0; d];
     let mut group = c.benchmark_group("large_scale");
     group.bench_function("chain_answer_d1000000", |b| {
-        b.iter(|| black_box(chain.answer(&x, &mut g).unwrap()))
+        b.iter(|| black_box(chain.evaluate(&x, &mut g)))
     });
     group.finish();
 }

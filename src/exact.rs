@@ -64,6 +64,15 @@ impl Exact {
         }
     }
 
+    /// False only for a `Float` holding NaN or an infinity, which breaks the type's
+    /// invariant (a rational is always finite).
+    pub fn is_finite(&self) -> bool {
+        match self {
+            Exact::Float(f) => f.is_finite(),
+            Exact::Ratio(_) => true,
+        }
+    }
+
     /// True when the value is exactly the `f64` returned by [`Exact::to_f64`].
     pub fn is_f64(&self) -> bool {
         matches!(self, Exact::Float(_))

@@ -4,10 +4,11 @@
 //! An expectation file is TOML (by convention in `adversaries/expectations/`, named like
 //! its scenario: `adversaries/expectations/halving.toml` for `adversaries/halving.toml`;
 //! outside `adversaries/` itself so that `sweep adversaries/*.toml` plays only scenarios),
-//! a list of `[[game]]` tables. Each table selects games by any of the keys `scenario`,
-//! `adversary`, `method`, `dim`, `accuracy` (rho or eps, compared exactly as `f64`) and
-//! `seed` (a key left out matches every game), and pins one or more numbers of every
-//! game it selects:
+//! a list of `[[game]]` tables. Each table selects games by any of the identity columns
+//! of `games.csv` ([`SELECTORS`]: `scenario`, `adversary`, `method`, `dim`, `accuracy`
+//! (rho or eps, compared exactly as `f64`), `seed`, `horizon` for large-scale games, ...;
+//! a key left out matches every game), and pins one or more results of every game it
+//! selects ([`PINS`]):
 //!
 //! ```toml
 //! [[game]]
@@ -16,93 +17,87 @@
 //! accuracy = 1e-2
 //! queries_used = 13                        # exactly 13
 //! certified_lower_bound = { min = 13 }     # at least 13
+//! outcome = "output-stands"                # a text result, exactly
 //!
 //! [[game]]
 //! method = "ellipsoid"
 //! queries_used = { min = 10, max = 400 }   # every ellipsoid game of the sweep
-//! certified_uncertainty = { max = 1e-2 }   # first-order games: eps_cert
+//! certified_uncertainty = { max = 1e-2 }   # first-order games: certified uncertainty
+//!
+//! [[game]]
+//! adversary = "rotation"                   # large-scale demonstrations
+//! horizon = 64
+//! gap_over_lower = { min = 1.0 }
+//! holds = "yes"
 //! ```
 //!
 //! A number is a whole number or float (exactly that value) or a table with `min`,
-//! `max` (inclusive) and/or `exact`. `queries_used` of a game the budget ended is its
-//! censored count (the budget); a game without a verified certificate has no certified
-//! lower bound, which fails every expectation on it. A table that selects no game at
-//! all is a drift too (the game disappeared), except when only one shard of a sweep is
-//! checked. Parsing is strict: an unknown key or a wrong type is an error naming the
+//! `max` (inclusive) and/or `exact`; a text result is a string, compared exactly.
+//! `queries_used` of a game the budget ended is its censored count (the budget); a game
+//! without a verified certificate has no certified lower bound, which fails every
+//! expectation on it (an empty cell never satisfies a pin). A table that selects no game
+//! at all is a drift too (the game disappeared), except when only one shard of a sweep
+//! is checked. Parsing is strict: an unknown key or a wrong type is an error naming the
 //! file, line and column.
 //!
 //! `naysayer play --expect FILE` and `naysayer sweep --expect FILE` check their results
-//! against the file and exit with [`crate::cli::EXIT_DRIFT`] when any number drifts,
-//! printing one line per drift that names the game and both numbers.
+//! against the file and exit with [`crate::cli::EXIT_DRIFT`] when any result drifts,
+//! printing one line per drift that names the game and both values.
 
+use std::collections::BTreeMap;
 use std::fmt;
 use std::path::{Path, PathBuf};
 
-use serde::Deserialize;
-use toml::Spanned;
+use toml::{Spanned, Value};
 
+use crate::csv;
 use crate::error::Error;
-use crate::runner::{GameSpec, Report};
-use crate::sweep::{split_csv_line, ClassFacts, COLUMNS};
+use crate::family::boxes::{outcome_name, ClassFacts};
+use crate::family::GameReport;
+use crate::runner::{DemoReport, GameSpec, Report};
+use crate::transcript::Ending;
 
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawFile {
-    #[serde(default)]
-    game: Vec<Spanned<RawGame>>,
-}
+/// The keys that select games (identity columns of `games.csv`).
+pub const SELECTORS: &[&str] = &[
+    "scenario",
+    "family",
+    "adversary",
+    "method",
+    "seed",
+    "dim",
+    "half_width",
+    "accuracy",
+    "ratio",
+    "lipschitz",
+    "promise",
+    "cont_dim",
+    "int_lower",
+    "int_upper",
+    "budget",
+    "kind",
+    "radius",
+    "smoothness",
+    "strong_convexity",
+    "horizon",
+];
 
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawGame {
-    scenario: Option<String>,
-    adversary: Option<String>,
-    method: Option<String>,
-    dim: Option<u64>,
-    accuracy: Option<f64>,
-    seed: Option<u64>,
-    queries_used: Option<Spanned<RawRange>>,
-    certified_lower_bound: Option<Spanned<RawRange>>,
-    certified_uncertainty: Option<Spanned<RawRange>>,
-}
+/// The results an expectation can pin: numbers first, then texts.
+pub const PINS: &[&str] = &[
+    "queries_used",
+    "certified_lower_bound",
+    "certified_uncertainty",
+    "gap",
+    "gap_over_lower",
+    "replayed",
+    "outcome",
+    "verified",
+    "censored",
+    "claimed",
+    "holds",
+];
 
-#[derive(Deserialize)]
-#[serde(untagged)]
-enum RawRange {
-    Integer(i64),
-    Float(f64),
-    Table(RawBounds),
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawBounds {
-    min: Option<f64>,
-    max: Option<f64>,
-    exact: Option<f64>,
-}
-
-/// The numbers of a game an expectation can pin.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Quantity {
-    /// Queries the method asked (the budget when the budget ended the game).
-    QueriesUsed,
-    /// T* + 1, from the verified certificate.
-    CertifiedLowerBound,
-    /// eps_cert of a first-order game (docs/theory.md §2.2).
-    CertifiedUncertainty,
-}
-
-impl Quantity {
-    /// The name used in files and messages.
-    pub fn name(self) -> &'static str {
-        match self {
-            Quantity::QueriesUsed => "queries used",
-            Quantity::CertifiedLowerBound => "certified lower bound",
-            Quantity::CertifiedUncertainty => "certified uncertainty",
-        }
-    }
-}
+/// The pinned results that are texts.
+const TEXT_PINS: &[&str] = &["outcome", "verified", "censored", "claimed", "holds"];
 
 /// An inclusive range `min <= value <= max` (either end may be open).
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -131,25 +126,40 @@ impl fmt::Display for Range {
     }
 }
 
+/// What a key of a `[[game]]` table asks of a game's cell.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Check {
+    /// A number in a range.
+    Number(Range),
+    /// Exactly this text.
+    Text(String),
+}
+
+impl Check {
+    fn holds(&self, cell: &str) -> bool {
+        match self {
+            Check::Text(t) => cell == t,
+            Check::Number(range) => cell.parse::<f64>().is_ok_and(|v| range.holds(v)),
+        }
+    }
+
+    fn expected(&self) -> String {
+        match self {
+            Check::Text(t) => format!("exactly {t:?}"),
+            Check::Number(range) => range.to_string(),
+        }
+    }
+}
+
 /// One `[[game]]` table: which games it selects and what it pins.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Expectation {
     /// 1-based line of the table in its file.
     pub line: usize,
-    /// Selectors; `None` matches every game.
-    pub scenario: Option<String>,
-    /// Adversary selector.
-    pub adversary: Option<String>,
-    /// Method selector.
-    pub method: Option<String>,
-    /// Dimension selector.
-    pub dim: Option<usize>,
-    /// Accuracy (rho or eps) selector, exact.
-    pub accuracy: Option<f64>,
-    /// Seed selector.
-    pub seed: Option<u64>,
-    /// The pinned numbers.
-    pub checks: Vec<(Quantity, Range)>,
+    /// Selectors (column, wanted value); a column left out matches every game.
+    pub selectors: Vec<(String, Check)>,
+    /// The pinned results (column, check).
+    pub checks: Vec<(String, Check)>,
 }
 
 /// A parsed expectation file.
@@ -161,114 +171,167 @@ pub struct Expectations {
     pub games: Vec<Expectation>,
 }
 
-/// The numbers of one finished game, as the gate compares them.
-#[derive(Clone, Debug, PartialEq)]
+/// The results of one finished game, as the gate compares them: its `games.csv` cells by
+/// column name.
+#[derive(Clone, Debug, PartialEq, Default)]
 pub struct GameResult {
-    /// Scenario name (empty for `play`).
-    pub scenario: String,
-    /// Adversary name.
-    pub adversary: String,
-    /// Method name.
-    pub method: String,
-    /// Query dimension.
-    pub dim: usize,
-    /// rho or eps (NaN for classes without one).
-    pub accuracy: f64,
-    /// The method's seed.
-    pub seed: u64,
-    /// Queries used (the budget when censored).
-    pub queries_used: u64,
-    /// True when the budget ended the game.
-    pub censored: bool,
-    /// T* + 1, when the certificate was verified.
-    pub certified_lower_bound: Option<u64>,
-    /// eps_cert, for first-order games with a verified certificate.
-    pub certified_uncertainty: Option<f64>,
+    /// Cells by column name.
+    pub cells: BTreeMap<String, String>,
 }
 
 impl GameResult {
-    /// The result of a game played by [`crate::runner`].
-    pub fn from_report(spec: &GameSpec, report: &Report) -> GameResult {
-        let facts = ClassFacts::of(&spec.class);
-        let verdict = report.verdict.as_ref().ok();
-        GameResult {
-            scenario: String::new(),
-            adversary: spec.adversary.clone(),
-            method: report.header.method.clone(),
-            dim: facts.dim,
-            accuracy: facts.accuracy,
-            seed: spec.seed,
-            queries_used: report.record.queries_used,
-            censored: matches!(
-                report.record.ending,
-                crate::transcript::Ending::BudgetExhausted
-            ),
-            certified_lower_bound: verdict.and_then(|v| v.certified_lower_bound()),
-            certified_uncertainty: verdict.and_then(|v| v.certified_uncertainty),
+    fn set(&mut self, column: &str, value: impl ToString) {
+        self.cells.insert(column.to_string(), value.to_string());
+    }
+
+    /// The cell of `column` (empty when the game has no such column).
+    pub fn get(&self, column: &str) -> &str {
+        self.cells.get(column).map_or("", String::as_str)
+    }
+
+    /// The result of a certificate game played outside a sweep.
+    pub fn from_certificate(spec: &GameSpec, report: &Report) -> GameResult {
+        Self::from_parts(spec, Some(report), None)
+    }
+
+    /// The result of a game played by `naysayer play` (no scenario).
+    pub fn from_report(spec: &GameSpec, report: &GameReport) -> GameResult {
+        match report {
+            GameReport::Certificate(r) => Self::from_parts(spec, Some(r), None),
+            GameReport::Demonstration(r) => Self::from_parts(spec, None, Some(r)),
         }
     }
 
-    /// Reads every row of a sweep's `games.csv`.
+    fn from_parts(
+        spec: &GameSpec,
+        certificate: Option<&Report>,
+        demonstration: Option<&DemoReport>,
+    ) -> GameResult {
+        let mut r = GameResult::default();
+        r.set("scenario", "");
+        r.set("family", spec.class.family_name());
+        r.set("adversary", &spec.adversary);
+        r.set("seed", spec.seed);
+        r.set("budget", spec.budget);
+        let number = |v: f64| {
+            if v.is_nan() {
+                String::new()
+            } else {
+                v.to_string()
+            }
+        };
+        match (certificate, demonstration) {
+            (Some(report), _) => {
+                let facts = ClassFacts::of(&spec.class);
+                r.set("family", facts.family);
+                r.set("method", &report.header.method);
+                r.set("dim", facts.dim);
+                r.set("accuracy", number(facts.accuracy));
+                r.set("queries_used", report.record.queries_used);
+                r.set(
+                    "censored",
+                    matches!(report.record.ending, Ending::BudgetExhausted),
+                );
+                match &report.verdict {
+                    Ok(v) => {
+                        r.set(
+                            "certified_lower_bound",
+                            v.certified_lower_bound()
+                                .map_or(String::new(), |b| b.to_string()),
+                        );
+                        r.set(
+                            "certified_uncertainty",
+                            v.certified_uncertainty
+                                .map_or(String::new(), |u| u.to_string()),
+                        );
+                        r.set("outcome", outcome_name(&v.outcome));
+                        r.set("verified", "yes");
+                    }
+                    Err(e) => {
+                        r.set("outcome", format!("rejected: {e}"));
+                        r.set("verified", "no");
+                    }
+                }
+            }
+            (None, None) => {}
+            (None, Some(report)) => {
+                r.set("method", &report.header.method);
+                r.set("dim", spec.class.query_dim());
+                r.set("horizon", spec.budget);
+                r.set("queries_used", report.record.queries_used);
+                r.set(
+                    "censored",
+                    matches!(report.record.ending, Ending::BudgetExhausted),
+                );
+                if let Ok(v) = &report.judgement {
+                    r.set("gap", v.gap.map_or(String::new(), |g| g.to_string()));
+                    r.set(
+                        "gap_over_lower",
+                        v.gap
+                            .map_or(String::new(), |g| (g / v.lower_bound).to_string()),
+                    );
+                    r.set("claimed", if v.claimed { "yes" } else { "no" });
+                    r.set(
+                        "holds",
+                        v.holds.map_or("", |h| if h { "yes" } else { "no" }),
+                    );
+                    r.set("replayed", v.replayed);
+                }
+            }
+        }
+        r
+    }
+
+    /// Reads every row of a sweep's `games.csv` (any family: the header names the
+    /// columns).
     pub fn from_csv(path: &Path) -> Result<Vec<GameResult>, Error> {
         let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
             action: "cannot read",
             path: path.to_path_buf(),
             source,
         })?;
-        let column = |name: &str| COLUMNS.iter().position(|c| *c == name).unwrap_or(0);
-        let bad = |line: usize, what: &str| Error::Results {
-            path: path.to_path_buf(),
-            reason: format!("line {line}: {what}"),
-        };
+        let mut lines = text.lines();
+        let columns = csv::split(lines.next().unwrap_or_default());
         let mut results = Vec::new();
-        for (i, line) in text.lines().enumerate().skip(1) {
-            let f = split_csv_line(line);
-            if f.len() != COLUMNS.len() {
-                return Err(bad(i + 1, "wrong number of fields"));
+        for (i, line) in lines.enumerate() {
+            let fields = csv::split(line);
+            if fields.len() != columns.len() {
+                return Err(Error::Results {
+                    path: path.to_path_buf(),
+                    reason: format!("line {}: wrong number of fields", i + 2),
+                });
             }
-            let get = |name: &str| f[column(name)].as_str();
-            let number = |name: &str| -> Result<u64, Error> {
-                get(name).parse().map_err(|_| bad(i + 1, name))
-            };
             results.push(GameResult {
-                scenario: get("scenario").to_string(),
-                adversary: get("adversary").to_string(),
-                method: get("method").to_string(),
-                dim: number("dim")? as usize,
-                accuracy: get("accuracy").parse().unwrap_or(f64::NAN),
-                seed: number("seed")?,
-                queries_used: number("queries_used")?,
-                censored: get("censored") == "true",
-                certified_lower_bound: get("certified_lower_bound").parse().ok(),
-                certified_uncertainty: get("certified_uncertainty").parse().ok(),
+                cells: columns.iter().cloned().zip(fields).collect(),
             });
         }
         Ok(results)
     }
 
-    /// A name for messages: scenario, method, adversary, d, accuracy, seed.
+    /// A name for messages: scenario, method, adversary, d, accuracy or horizon, seed.
     pub fn label(&self) -> String {
-        let scenario = if self.scenario.is_empty() {
-            String::new()
-        } else {
-            format!("scenario {}, ", self.scenario)
+        let scenario = match self.get("scenario") {
+            "" => String::new(),
+            s => format!("scenario {s}, "),
+        };
+        let place = match self.get("horizon") {
+            "" => format!(
+                "accuracy {}",
+                self.get("accuracy").parse::<f64>().unwrap_or(f64::NAN)
+            ),
+            t => format!("horizon {t}"),
         };
         format!(
-            "{scenario}method {} against {}, d = {}, accuracy {}, seed {}",
-            self.method, self.adversary, self.dim, self.accuracy, self.seed
+            "{scenario}method {} against {}, d = {}, {place}, seed {}",
+            self.get("method"),
+            self.get("adversary"),
+            self.get("dim"),
+            self.get("seed")
         )
-    }
-
-    fn value(&self, quantity: Quantity) -> Option<f64> {
-        match quantity {
-            Quantity::QueriesUsed => Some(self.queries_used as f64),
-            Quantity::CertifiedLowerBound => self.certified_lower_bound.map(|b| b as f64),
-            Quantity::CertifiedUncertainty => self.certified_uncertainty,
-        }
     }
 }
 
-/// One number that left its expected range.
+/// One result that left its expected range.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Drift {
     /// The expectation file.
@@ -277,9 +340,9 @@ pub struct Drift {
     pub line: usize,
     /// The game ([`GameResult::label`]), or `None` when the table selected no game.
     pub game: Option<String>,
-    /// What drifted.
-    pub quantity: Option<Quantity>,
-    /// The number found ("none" when the game has none).
+    /// The column that drifted.
+    pub quantity: Option<String>,
+    /// The value found ("none" when the game has none).
     pub found: String,
     /// The expected range.
     pub expected: String,
@@ -287,13 +350,13 @@ pub struct Drift {
 
 impl fmt::Display for Drift {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match (&self.game, self.quantity) {
+        match (&self.game, &self.quantity) {
             (Some(game), Some(q)) => write!(
                 f,
                 "{}:{}: game ({game}): {} {}, expected {}",
                 self.path.display(),
                 self.line,
-                q.name(),
+                q.replace('_', " "),
                 self.found,
                 self.expected
             ),
@@ -307,31 +370,53 @@ impl fmt::Display for Drift {
     }
 }
 
-fn range_of(raw: &Spanned<RawRange>, error: &dyn Fn(usize, &str) -> Error) -> Result<Range, Error> {
-    let bad = |reason: &str| error(raw.span().start, reason);
-    let range = match raw.get_ref() {
-        RawRange::Integer(v) => Range {
-            min: Some(*v as f64),
-            max: Some(*v as f64),
-        },
-        RawRange::Float(v) => Range {
-            min: Some(*v),
-            max: Some(*v),
-        },
-        RawRange::Table(b) => {
-            if b.exact.is_some() && (b.min.is_some() || b.max.is_some()) {
+/// Reads one pinned number: a number, or a table with `exact` or `min`/`max`.
+fn range_of(value: &Value, bad: &dyn Fn(&str) -> Error) -> Result<Range, Error> {
+    let number = |v: &Value| -> Result<f64, Error> {
+        match v {
+            Value::Integer(i) => Ok(*i as f64),
+            Value::Float(f) => Ok(*f),
+            other => Err(bad(&format!(
+                "expected a number, found {}",
+                other.type_str()
+            ))),
+        }
+    };
+    let range = match value {
+        Value::Integer(_) | Value::Float(_) => {
+            let v = number(value)?;
+            Range {
+                min: Some(v),
+                max: Some(v),
+            }
+        }
+        Value::Table(t) => {
+            if let Some(key) = t
+                .keys()
+                .find(|k| !["min", "max", "exact"].contains(&k.as_str()))
+            {
+                return Err(bad(&format!(
+                    "unknown key {key:?} in a range (use `exact`, `min`, `max`)"
+                )));
+            }
+            let get = |k: &str| t.get(k).map(number).transpose();
+            let (exact, min, max) = (get("exact")?, get("min")?, get("max")?);
+            if exact.is_some() && (min.is_some() || max.is_some()) {
                 return Err(bad("give either `exact` or `min`/`max`, not both"));
             }
-            match b.exact {
+            match exact {
                 Some(v) => Range {
                     min: Some(v),
                     max: Some(v),
                 },
-                None => Range {
-                    min: b.min,
-                    max: b.max,
-                },
+                None => Range { min, max },
             }
+        }
+        other => {
+            return Err(bad(&format!(
+                "expected a number or a table {{ min = ..., max = ... }}, found {}",
+                other.type_str()
+            )))
         }
     };
     if [range.min, range.max]
@@ -365,54 +450,78 @@ impl Expectations {
 
     /// Parses an expectation file's text; `path` is used in messages.
     pub fn parse(text: &str, path: &Path) -> Result<Expectations, Error> {
-        let position = |offset: usize| {
-            let before = &text[..offset.min(text.len())];
-            let line = before.matches('\n').count() + 1;
-            let column = before.len() - before.rfind('\n').map_or(0, |i| i + 1) + 1;
-            (line, column)
-        };
         let error = |offset: usize, reason: &str| {
-            let (line, column) = position(offset);
-            Error::Scenario {
-                path: path.to_path_buf(),
-                line,
-                column,
-                reason: format!("expectation file: {reason}"),
-            }
+            crate::family::error_at(path, text, offset, format!("expectation file: {reason}"))
         };
+        #[derive(serde::Deserialize)]
+        #[serde(deny_unknown_fields)]
+        struct RawFile {
+            #[serde(default)]
+            game: Vec<Spanned<BTreeMap<String, Spanned<Value>>>>,
+        }
         let raw: RawFile = toml::from_str(text).map_err(|e| {
             let offset = e.span().map_or(0, |s| s.start);
-            error(offset, e.message())
+            error(offset, e.message().trim())
         })?;
         let mut games = Vec::new();
         for table in &raw.game {
             let start = table.span().start;
-            let g = table.get_ref();
+            let mut selectors = Vec::new();
             let mut checks = Vec::new();
-            for (quantity, raw) in [
-                (Quantity::QueriesUsed, &g.queries_used),
-                (Quantity::CertifiedLowerBound, &g.certified_lower_bound),
-                (Quantity::CertifiedUncertainty, &g.certified_uncertainty),
-            ] {
-                if let Some(raw) = raw {
-                    checks.push((quantity, range_of(raw, &error)?));
+            for (key, value) in table.get_ref() {
+                let at = value.span().start;
+                let bad = |reason: &str| error(at, &format!("{key}: {reason}"));
+                if SELECTORS.contains(&key.as_str()) {
+                    let check = match value.get_ref() {
+                        Value::String(s) => Check::Text(s.clone()),
+                        Value::Integer(i) => Check::Number(Range {
+                            min: Some(*i as f64),
+                            max: Some(*i as f64),
+                        }),
+                        Value::Float(f) if f.is_finite() => Check::Number(Range {
+                            min: Some(*f),
+                            max: Some(*f),
+                        }),
+                        other => {
+                            return Err(bad(&format!(
+                                "a selector is a string or a number, not {}",
+                                other.type_str()
+                            )))
+                        }
+                    };
+                    selectors.push((key.clone(), check));
+                } else if TEXT_PINS.contains(&key.as_str()) {
+                    match value.get_ref() {
+                        Value::String(s) => checks.push((key.clone(), Check::Text(s.clone()))),
+                        other => {
+                            return Err(bad(&format!(
+                                "expected a string, found {}",
+                                other.type_str()
+                            )))
+                        }
+                    }
+                } else if PINS.contains(&key.as_str()) {
+                    checks.push((key.clone(), Check::Number(range_of(value.get_ref(), &bad)?)));
+                } else {
+                    return Err(error(
+                        at,
+                        &format!(
+                            "unknown key {key:?}; a [[game]] table selects by {} and pins {}",
+                            SELECTORS.join(", "),
+                            PINS.join(", ")
+                        ),
+                    ));
                 }
             }
             if checks.is_empty() {
                 return Err(error(
                     start,
-                    "a [[game]] table must pin queries_used, certified_lower_bound or \
-                     certified_uncertainty",
+                    &format!("a [[game]] table must pin a result ({})", PINS.join(", ")),
                 ));
             }
             games.push(Expectation {
-                line: position(start).0,
-                scenario: g.scenario.clone(),
-                adversary: g.adversary.clone(),
-                method: g.method.clone(),
-                dim: g.dim.map(|d| d as usize),
-                accuracy: g.accuracy,
-                seed: g.seed,
+                line: text[..start.min(text.len())].matches('\n').count() + 1,
+                selectors,
                 checks,
             });
         }
@@ -433,25 +542,25 @@ impl Expectations {
             let mut matched = false;
             for r in results.iter().filter(|r| e.selects(r)) {
                 matched = true;
-                for (quantity, range) in &e.checks {
-                    let value = r.value(*quantity);
-                    if value.is_some_and(|v| range.holds(v)) {
+                for (column, check) in &e.checks {
+                    let cell = r.get(column);
+                    if check.holds(cell) {
                         continue;
                     }
-                    let found = match value {
-                        None => "none".to_string(),
-                        Some(v) if *quantity == Quantity::QueriesUsed && r.censored => {
+                    let found = match cell {
+                        "" => "none".to_string(),
+                        v if column == "queries_used" && r.get("censored") == "true" => {
                             format!("{v} (censored by the budget)")
                         }
-                        Some(v) => v.to_string(),
+                        v => v.to_string(),
                     };
                     drifts.push(Drift {
                         path: self.path.clone(),
                         line: e.line,
                         game: Some(r.label()),
-                        quantity: Some(*quantity),
+                        quantity: Some(column.clone()),
                         found,
-                        expected: range.to_string(),
+                        expected: check.expected(),
                     });
                 }
             }
@@ -472,11 +581,8 @@ impl Expectations {
 
 impl Expectation {
     fn selects(&self, r: &GameResult) -> bool {
-        self.scenario.as_ref().is_none_or(|s| *s == r.scenario)
-            && self.adversary.as_ref().is_none_or(|a| *a == r.adversary)
-            && self.method.as_ref().is_none_or(|m| *m == r.method)
-            && self.dim.is_none_or(|d| d == r.dim)
-            && self.accuracy.is_none_or(|a| a == r.accuracy)
-            && self.seed.is_none_or(|s| s == r.seed)
+        self.selectors
+            .iter()
+            .all(|(column, check)| check.holds(r.get(column)))
     }
 }

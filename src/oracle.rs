@@ -181,6 +181,21 @@ pub enum Separation<'a> {
 }
 
 impl Answer {
+    /// True when every number of the answer is finite (an `f64` evaluation can overflow
+    /// for a query of enormous norm; such an answer is never written).
+    pub fn is_finite(&self) -> bool {
+        match self {
+            Answer::Inside => true,
+            Answer::Cut(cut) => match &cut.normal {
+                Normal::Axis { .. } => cut.offset.is_finite(),
+                Normal::Dense(a) => a.iter().all(|x| x.is_finite()) && cut.offset.is_finite(),
+            },
+            Answer::FirstOrder(fo) => {
+                fo.value.is_finite() && fo.subgradient.iter().all(Exact::is_finite)
+            }
+        }
+    }
+
     /// The answer as a separation answer: a first-order answer becomes its objective
     /// cut, or `Inside` when the subgradient is zero.
     pub fn to_separation(&self, query: &[f64]) -> Separation<'_> {

@@ -1,6 +1,7 @@
 //! One game from a specification to a verified report: builds the adversary and the
 //! method, plays, writes the transcript (to a file or to memory), and runs the
-//! independent verifier over what was written.
+//! independent verifier over what was written ([`run`] and its variants), or, for the
+//! large-scale demonstrations, the demonstration judge ([`demonstrate`]).
 
 use std::path::PathBuf;
 use std::time::{Duration, Instant};
@@ -8,6 +9,7 @@ use std::time::{Duration, Instant};
 use crate::adversary;
 use crate::certificate::{self, Verdict};
 use crate::class::Class;
+use crate::demonstration::{self, DemoVerdict};
 use crate::error::Error;
 use crate::game::{self, GameSettings, Observer};
 use crate::method::external::{ExternalMethod, ExternalSettings};
@@ -142,6 +144,74 @@ pub fn run_with_flush(
         header,
         record,
         verdict,
+        wall_time: start.elapsed(),
+    })
+}
+
+/// The result of one demonstration game (a large-scale class, docs/theory.md §3).
+#[derive(Debug)]
+pub struct DemoReport {
+    /// The header written.
+    pub header: Header,
+    /// The final record written.
+    pub record: FinalRecord,
+    /// The judge's verdict (an `Err`: the function does not reproduce the answers or the
+    /// recorded gap, an adversary bug).
+    pub judgement: Result<DemoVerdict, Error>,
+    /// Wall time of play plus judging.
+    pub wall_time: Duration,
+}
+
+/// Builds, plays and judges one demonstration game with a built-in method.
+pub fn demonstrate(spec: &GameSpec) -> Result<DemoReport, Error> {
+    let mut method = method::build(&spec.method, &spec.class, spec.seed)?;
+    demonstrate_with_flush(spec, method.as_mut(), Flush::Periodic)
+}
+
+/// Plays one demonstration game with a given method; the transcript file, if any, is
+/// replayed by the judge ([`crate::demonstration::judge_file`]); without one, only the
+/// final record is judged (nothing of the game is kept in memory: a large-scale game's
+/// points and gradients can take gigabytes).
+pub fn demonstrate_with_flush(
+    spec: &GameSpec,
+    method: &mut dyn Method,
+    flush: Flush,
+) -> Result<DemoReport, Error> {
+    if !matches!(spec.class, Class::LargeScale(_)) {
+        return Err(Error::Unsupported {
+            what: format!("the {} family", spec.class.family_name()),
+            reason: "its games are certificates: play them with runner::run".into(),
+        });
+    }
+    let start = Instant::now();
+    let mut adversary = adversary::build(&spec.adversary, &spec.class)?;
+    let header = header_for(spec, method.name());
+    let settings = GameSettings {
+        budget: spec.budget,
+    };
+    let (record, judgement) = match &spec.transcript {
+        Some(path) => {
+            let mut writer = TranscriptWriter::create(path, flush)?;
+            let record = game::play(
+                &header,
+                method,
+                adversary.as_mut(),
+                &settings,
+                &mut [&mut writer],
+            )?;
+            drop(writer);
+            (record, demonstration::judge_file(path))
+        }
+        None => {
+            let record = game::play(&header, method, adversary.as_mut(), &settings, &mut [])?;
+            let judgement = demonstration::judge_record(&header, &record);
+            (record, judgement)
+        }
+    };
+    Ok(DemoReport {
+        header,
+        record,
+        judgement,
         wall_time: start.elapsed(),
     })
 }

@@ -1,5 +1,12 @@
 //! Scenario files: TOML descriptions of a sweep (one per file in `adversaries/`).
 //!
+//! One format for every family: the keys below are common; the `[class]` table (and the
+//! optional `[charts]` table) belong to the family named in `class.family`, which reads
+//! them ([`crate::family`]; the examples here are the feasibility family's, the other
+//! families' keys are in the rustdoc of [`crate::family::feasibility`],
+//! [`crate::family::first_order`], [`crate::family::lattice`] and
+//! [`crate::family::large_scale`]).
+//!
 //! ```toml
 //! name = "halving"                      # results go to results/<name>/
 //! description = "Every method against the box-halving adversary."
@@ -39,33 +46,43 @@
 //! ```
 //!
 //! Parsing is strict: an unknown key, a wrong type or an impossible value (an empty
-//! grid, a negative rho, an unknown method or adversary, a method that supports no
-//! dimension of the grid) is an error naming the file, line and column.
+//! grid, a negative rho, an unknown method or adversary, an adversary of another family,
+//! a method that supports no class of the grid) is an error naming the file, line and
+//! column. The file is read once; the games are enumerated lazily ([`Scenario::games`]),
+//! so memory does not grow with the size of the grid.
 
 use std::path::{Path, PathBuf};
+use std::sync::Mutex;
 
 use serde::Deserialize;
 use toml::Spanned;
 
-use crate::adversary::ADVERSARIES;
-use crate::class::{
-    Class, FeasibilityClass, FirstOrderClass, LatticeClass, LipschitzNorm, Promise,
-};
+use crate::class::Class;
 use crate::error::Error;
-use crate::method::{self, METHODS};
+use crate::family::{self, Grid, ScenarioText};
+use crate::method;
 
+/// The common keys of a scenario file (the family's tables are read by the family).
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawScenario {
     name: Spanned<String>,
     description: String,
-    class: RawClass,
+    class: RawClassFamily,
     adversary: RawAdversary,
     play: RawPlay,
     #[serde(default)]
-    charts: Option<RawCharts>,
+    #[allow(dead_code)]
+    charts: Option<toml::Table>,
     #[serde(default)]
     external: Option<Spanned<std::collections::BTreeMap<String, RawExternal>>>,
+}
+
+/// The `[class]` table as the common parser sees it: its `family`, the rest for the
+/// family's parser.
+#[derive(Deserialize)]
+struct RawClassFamily {
+    family: Spanned<String>,
 }
 
 #[derive(Deserialize)]
@@ -80,30 +97,6 @@ struct RawExternal {
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
-struct RawClass {
-    family: Spanned<String>,
-    dims: Spanned<Vec<Spanned<i64>>>,
-    half_width: Spanned<f64>,
-    #[serde(default)]
-    rho: Option<Spanned<Vec<Spanned<f64>>>>,
-    #[serde(default)]
-    eps: Option<Spanned<Vec<Spanned<f64>>>>,
-    #[serde(default)]
-    lipschitz: Option<Spanned<f64>>,
-    #[serde(default)]
-    norm: Option<Spanned<String>>,
-    #[serde(default)]
-    promise: Option<Spanned<String>>,
-    #[serde(default)]
-    int_lower: Option<Spanned<i64>>,
-    #[serde(default)]
-    int_upper: Option<Spanned<i64>>,
-    #[serde(default)]
-    cont_dim: Option<Spanned<i64>>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
 struct RawAdversary {
     name: Spanned<String>,
 }
@@ -113,69 +106,31 @@ struct RawAdversary {
 struct RawPlay {
     methods: Spanned<Vec<Spanned<String>>>,
     seeds: Spanned<Vec<Spanned<i64>>>,
-    budget: Spanned<i64>,
+    #[serde(default)]
+    budget: Option<Spanned<i64>>,
     #[serde(default)]
     transcripts: bool,
 }
 
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawCharts {
-    #[serde(default)]
-    dim: Option<Spanned<i64>>,
-    #[serde(default)]
-    rho: Option<Spanned<f64>>,
-    #[serde(default)]
-    eps: Option<Spanned<f64>>,
-}
-
-pub use crate::large_scale::scenario::{is_large_scale, LargeScaleScenario};
-
-/// Reads the scenario file at `path` as a `large-scale` scenario (docs/theory.md §3, parsed
-/// strictly by [`LargeScaleScenario::parse`]) when its `class.family` says so; `Ok(None)`
-/// for every other family, which [`Scenario::from_file`] reads.
-pub fn read_large_scale(path: &Path) -> Result<Option<LargeScaleScenario>, Error> {
-    let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-        action: "cannot read scenario",
-        path: path.to_path_buf(),
-        source,
-    })?;
-    if is_large_scale(&text) {
-        LargeScaleScenario::parse(&text, path).map(Some)
-    } else {
-        Ok(None)
-    }
-}
-
 /// A validated scenario.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Debug)]
 pub struct Scenario {
     /// Name; results go to `results/<name>/`.
     pub name: String,
     /// What the scenario shows.
     pub description: String,
-    /// Dimensions, ascending, distinct.
-    pub dims: Vec<usize>,
-    /// Box half-width R.
-    pub half_width: f64,
-    /// Accuracies (rho or eps), descending (so R/rho or L R/eps ascends), distinct.
-    pub accuracies: Vec<f64>,
-    /// The family and its fixed parameters.
-    pub family: Family,
+    /// The family's grid of classes (it knows its family).
+    pub grid: Box<dyn Grid>,
     /// Adversary name.
     pub adversary: String,
     /// Method names, in file order.
     pub methods: Vec<String>,
     /// Seeds, in file order.
     pub seeds: Vec<u64>,
-    /// Query budget per game.
-    pub budget: u64,
+    /// The `[play]` budget (queries per game), when the family takes one.
+    pub budget: Option<u64>,
     /// Whether to write a transcript per game.
     pub transcripts: bool,
-    /// d of the "queries against log2(R/rho)" chart (default: the largest d).
-    pub chart_dim: usize,
-    /// Accuracy of the "queries against d" chart (default: the smallest).
-    pub chart_accuracy: f64,
     /// The TOML text, for fingerprinting resumed sweeps.
     pub source_text: String,
     /// External methods named in `[external.<name>]` tables, in name order.
@@ -202,83 +157,6 @@ impl Scenario {
     }
 }
 
-/// The class of `family` at (d, accuracy), for validation before a [`Scenario`] exists.
-fn class_for(family: &Family, d: usize, half_width: f64, accuracy: f64) -> Result<Class, Error> {
-    Ok(match family {
-        Family::Feasibility { promise } => {
-            Class::Feasibility(FeasibilityClass::new(d, half_width, accuracy, *promise)?)
-        }
-        Family::FirstOrder { lipschitz, norm } => Class::FirstOrder(FirstOrderClass::new(
-            d, half_width, accuracy, *lipschitz, *norm,
-        )?),
-        Family::Lattice {
-            int_lower,
-            int_upper,
-            cont_dim,
-        } => Class::Lattice(LatticeClass::mixed(
-            d,
-            *int_lower,
-            *int_upper,
-            *cont_dim,
-            half_width,
-            if *cont_dim == 0 {
-                PURE_INTEGER_RHO
-            } else {
-                accuracy
-            },
-        )?),
-    })
-}
-
-/// The accuracy of every game of a pure integer scenario, which has none: `games.csv`
-/// leaves the `accuracy` and `ratio` cells empty and reads them back as this value.
-pub const NO_ACCURACY: f64 = f64::NAN;
-
-/// The rho a pure integer class carries (unused: it has no continuous part).
-const PURE_INTEGER_RHO: f64 = 0.5;
-
-/// The family of a scenario's classes, with the parameters that do not vary.
-#[derive(Clone, Debug, PartialEq)]
-pub enum Family {
-    /// Separation-oracle feasibility (`rho` grid).
-    Feasibility {
-        /// The class promise.
-        promise: Promise,
-    },
-    /// First-order minimisation (`eps` grid).
-    FirstOrder {
-        /// Lipschitz constant L.
-        lipschitz: f64,
-        /// The norm L is measured in.
-        norm: LipschitzNorm,
-    },
-    /// Integer and mixed-integer feasibility over {int_lower..int_upper}^n x [-R, R]^d
-    /// (`dims` is the grid of n; a `rho` grid when d > 0, none when d = 0).
-    Lattice {
-        /// Lower bound of every integer coordinate.
-        int_lower: i64,
-        /// Upper bound of every integer coordinate.
-        int_upper: i64,
-        /// Continuous dimension d (0: pure integer).
-        cont_dim: usize,
-    },
-}
-
-impl Scenario {
-    /// The class at dimension `d` and accuracy `accuracy` (rho or eps).
-    pub fn class_at(&self, d: usize, accuracy: f64) -> Result<Class, Error> {
-        class_for(&self.family, d, self.half_width, accuracy)
-    }
-
-    /// The name of the accuracy parameter: "rho" or "eps".
-    pub fn accuracy_name(&self) -> &'static str {
-        match self.family {
-            Family::Feasibility { .. } | Family::Lattice { .. } => "rho",
-            Family::FirstOrder { .. } => "eps",
-        }
-    }
-}
-
 /// One game of a sweep.
 #[derive(Clone, Debug, PartialEq)]
 pub struct GridGame {
@@ -292,35 +170,8 @@ pub struct GridGame {
     pub seed: u64,
 }
 
-/// A scenario error at byte `offset` of `text`, with its 1-based line and column.
-pub(crate) fn error_at(path: &Path, text: &str, offset: usize, reason: impl Into<String>) -> Error {
-    let offset = offset.min(text.len());
-    let before = &text[..offset];
-    Error::Scenario {
-        path: path.to_path_buf(),
-        line: before.matches('\n').count() + 1,
-        column: before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1,
-        reason: reason.into(),
-    }
-}
-
-struct Locator<'a> {
-    path: &'a Path,
-    text: &'a str,
-}
-
-impl Locator<'_> {
-    fn error_at(&self, offset: usize, reason: impl Into<String>) -> Error {
-        error_at(self.path, self.text, offset, reason)
-    }
-
-    fn error<T>(&self, spanned: &Spanned<T>, reason: impl Into<String>) -> Error {
-        self.error_at(spanned.span().start, reason)
-    }
-}
-
 impl Scenario {
-    /// Reads and validates the scenario file at `path`.
+    /// Reads and validates the scenario file at `path` (read once).
     pub fn from_file(path: &Path) -> Result<Scenario, Error> {
         let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
             action: "cannot read scenario",
@@ -332,10 +183,12 @@ impl Scenario {
 
     /// Parses and validates scenario text; `path` names it in errors.
     pub fn parse(text: &str, path: &Path) -> Result<Scenario, Error> {
-        let at = Locator { path, text };
+        let error_at = |offset: usize, reason: String| family::error_at(path, text, offset, reason);
+        let error =
+            |spanned: std::ops::Range<usize>, reason: String| error_at(spanned.start, reason);
         let raw: RawScenario = toml::from_str(text).map_err(|e| {
             let offset = e.span().map_or(0, |s| s.start);
-            at.error_at(offset, e.message().trim().to_string())
+            error_at(offset, e.message().trim().to_string())
         })?;
         let name = raw.name.get_ref().clone();
         if name.is_empty()
@@ -343,208 +196,48 @@ impl Scenario {
                 .chars()
                 .all(|c| c.is_ascii_alphanumeric() || c == '-' || c == '_')
         {
-            return Err(at.error(
-                &raw.name,
-                "name must be non-empty and use only letters, digits, '-' and '_'",
+            return Err(error(
+                raw.name.span(),
+                "name must be non-empty and use only letters, digits, '-' and '_'".into(),
             ));
         }
         let family_name = raw.class.family.get_ref().as_str();
-        if !["feasibility", "first-order", "lattice"].contains(&family_name) {
-            return Err(at.error(
-                &raw.class.family,
+        let Some(family) = family::find(family_name) else {
+            return Err(error(
+                raw.class.family.span(),
                 format!(
-                    "unknown class family {family_name:?}; known: \"feasibility\", \
-                     \"first-order\", \"lattice\", \"large-scale\""
+                    "unknown class family {family_name:?}; known: {}",
+                    family::names()
                 ),
             ));
-        }
-        let first_order = family_name == "first-order";
-        let lattice = family_name == "lattice";
-        // Keys that belong to one family only.
-        let owned: [(&str, Option<usize>, &str); 6] = [
-            (
-                "promise",
-                raw.class.promise.as_ref().map(|v| v.span().start),
-                "feasibility",
-            ),
-            (
-                "lipschitz",
-                raw.class.lipschitz.as_ref().map(|v| v.span().start),
-                "first-order",
-            ),
-            (
-                "norm",
-                raw.class.norm.as_ref().map(|v| v.span().start),
-                "first-order",
-            ),
-            (
-                "int_lower",
-                raw.class.int_lower.as_ref().map(|v| v.span().start),
-                "lattice",
-            ),
-            (
-                "int_upper",
-                raw.class.int_upper.as_ref().map(|v| v.span().start),
-                "lattice",
-            ),
-            (
-                "cont_dim",
-                raw.class.cont_dim.as_ref().map(|v| v.span().start),
-                "lattice",
-            ),
-        ];
-        for (key, offset, owner) in owned {
-            if let Some(offset) = offset {
-                if owner != family_name {
-                    return Err(at.error_at(offset, format!("{key} belongs to the {owner} family")));
-                }
-            }
-        }
-        let promise = match &raw.class.promise {
-            None => Promise::MayBeEmpty,
-            Some(p) => match p.get_ref().as_str() {
-                "may-be-empty" => Promise::MayBeEmpty,
-                "nonempty" => Promise::Nonempty,
-                other => {
-                    return Err(at.error(
-                        p,
-                        format!("promise must be \"may-be-empty\" or \"nonempty\", not {other:?}"),
-                    ))
-                }
-            },
         };
-        let family = if first_order {
-            if let Some(r) = &raw.class.rho {
-                return Err(at.error(r, "the first-order family takes eps, not rho"));
-            }
-            let lipschitz = raw.class.lipschitz.as_ref().map_or(1.0, |l| *l.get_ref());
-            if let Some(l) = &raw.class.lipschitz {
-                if !(lipschitz.is_finite() && lipschitz > 0.0) {
-                    return Err(at.error(l, "lipschitz must be a positive finite number"));
-                }
-            }
-            let norm = match &raw.class.norm {
-                None => LipschitzNorm::L2,
-                Some(n) => match n.get_ref().as_str() {
-                    "l1" => LipschitzNorm::L1,
-                    "l2" => LipschitzNorm::L2,
-                    "linf" => LipschitzNorm::Linf,
-                    other => {
-                        return Err(at.error(
-                            n,
-                            format!("norm must be \"l1\", \"l2\" or \"linf\", not {other:?}"),
-                        ))
-                    }
-                },
-            };
-            Family::FirstOrder { lipschitz, norm }
-        } else if lattice {
-            if let Some(e) = &raw.class.eps {
-                return Err(at.error(
-                    e,
-                    "the lattice family takes rho (when cont_dim > 0), not eps",
-                ));
-            }
-            let int_lower = raw.class.int_lower.as_ref().map_or(0, |v| *v.get_ref());
-            let int_upper = raw.class.int_upper.as_ref().map_or(1, |v| *v.get_ref());
-            let cont_dim = match &raw.class.cont_dim {
-                None => 0,
-                Some(v) if !(0..=1_000_000).contains(v.get_ref()) => {
-                    return Err(at.error(
-                        v,
-                        format!("cont_dim = {} must be between 0 and 1000000", v.get_ref()),
-                    ))
-                }
-                Some(v) => *v.get_ref() as usize,
-            };
-            if let Err(e) = LatticeClass::integer(1, int_lower, int_upper) {
-                let place = raw
-                    .class
-                    .int_upper
-                    .as_ref()
-                    .or(raw.class.int_lower.as_ref())
-                    .map_or(raw.class.family.span().start, |v| v.span().start);
-                return Err(at.error_at(place, e.to_string()));
-            }
-            if cont_dim == 0 {
-                if let Some(r) = &raw.class.rho {
-                    return Err(at.error(
-                        r,
-                        "a pure integer class (cont_dim = 0) has no accuracy; remove rho",
-                    ));
-                }
-            }
-            Family::Lattice {
-                int_lower,
-                int_upper,
-                cont_dim,
-            }
-        } else {
-            if let Some(e) = &raw.class.eps {
-                return Err(at.error(e, "the feasibility family takes rho, not eps"));
-            }
-            Family::Feasibility { promise }
-        };
-        let half_width = *raw.class.half_width.get_ref();
-        if !(half_width.is_finite() && half_width > 0.0) {
-            return Err(at.error(
-                &raw.class.half_width,
-                "half_width must be a positive finite number",
-            ));
-        }
-        if raw.class.dims.get_ref().is_empty() {
-            return Err(at.error(&raw.class.dims, "the grid of dimensions is empty"));
-        }
-        let mut dims = Vec::new();
-        for d in raw.class.dims.get_ref() {
-            let value = *d.get_ref();
-            if !(1..=1_000_000).contains(&value) {
-                return Err(at.error(
-                    d,
-                    format!("dimension {value} must be between 1 and 1000000"),
-                ));
-            }
-            dims.push(value as usize);
-        }
-        dims.sort_unstable();
-        dims.dedup();
-        let pure_integer = matches!(family, Family::Lattice { cont_dim: 0, .. });
-        let grid_name = if first_order { "eps" } else { "rho" };
-        let mut accuracies = Vec::new();
-        if pure_integer {
-            accuracies.push(NO_ACCURACY);
-        } else {
-            let grid = match (&raw.class.rho, &raw.class.eps, first_order) {
-                (Some(r), _, false) => r,
-                (_, Some(e), true) => e,
-                _ => {
-                    return Err(at.error(
-                        &raw.class.family,
-                        format!("the {family_name} family needs a grid {grid_name} = [...]"),
-                    ))
-                }
-            };
-            if grid.get_ref().is_empty() {
-                return Err(at.error(grid, format!("the grid of accuracies {grid_name} is empty")));
-            }
-            let probe = |value: f64| -> Result<(), Error> {
-                class_for(&family, 1, half_width, value).map(|_| ())
-            };
-            for r in grid.get_ref() {
-                let value = *r.get_ref();
-                probe(value).map_err(|e| at.error(r, format!("{grid_name} = {value}: {e}")))?;
-                accuracies.push(value);
-            }
-            accuracies.sort_by(|a, b| b.total_cmp(a));
-            accuracies.dedup();
-        }
         let adversary = raw.adversary.name.get_ref().clone();
-        if !ADVERSARIES.iter().any(|a| a.name == adversary) {
-            return Err(at.error(
-                &raw.adversary.name,
-                format!("unknown adversary {adversary:?}; `naysayer list` shows them"),
-            ));
+        match crate::adversary::info(&adversary) {
+            None => {
+                return Err(error(
+                    raw.adversary.name.span(),
+                    format!("unknown adversary {adversary:?}; `naysayer list` shows them"),
+                ))
+            }
+            Some(info) if info.family != family.name() => {
+                return Err(error(
+                    raw.adversary.name.span(),
+                    format!(
+                        "adversary {adversary:?} plays the {} family, not {}",
+                        info.family,
+                        family.name()
+                    ),
+                ))
+            }
+            Some(_) => {}
         }
+        let grid = family.parse(&ScenarioText {
+            path,
+            text,
+            adversary: &raw.adversary.name,
+            budget: raw.play.budget.as_ref(),
+        })?;
+        let at = Locator { path, text };
         let mut external: Vec<ExternalEntry> = Vec::new();
         if let Some(table) = &raw.external {
             for (name, entry) in table.get_ref() {
@@ -562,7 +255,7 @@ impl Scenario {
                         ),
                     ));
                 }
-                if METHODS.iter().any(|m| m.name == name) {
+                if method::info(name).is_some() {
                     return Err(at.error(
                         here,
                         format!("external method {name:?} has the name of a built-in method"),
@@ -608,32 +301,38 @@ impl Scenario {
         let mut methods = Vec::new();
         for m in raw.play.methods.get_ref() {
             let name = m.get_ref();
+            if methods.contains(name) {
+                return Err(at.error(m, format!("method {name:?} is listed twice")));
+            }
             if external.iter().any(|e| &e.name == name) {
-                if methods.contains(name) {
-                    return Err(at.error(m, format!("method {name:?} is listed twice")));
-                }
                 methods.push(name.clone());
                 continue;
             }
-            if !METHODS.iter().any(|info| info.name == name) {
+            if method::info(name).is_none() {
                 return Err(at.error(
                     m,
                     format!("unknown method {name:?}; `naysayer list` shows the built-in methods"),
                 ));
             }
-            let any_dim = dims.iter().any(|&d| {
-                class_for(&family, d, half_width, accuracies[0])
-                    .map(|c| method::supports(name, &c).is_ok())
-                    .unwrap_or(false)
+            let mut reason = None;
+            let any_class = (0..grid.len()).any(|p| match grid.class(p) {
+                Ok(c) => match method::supports(name, &c) {
+                    Ok(()) => true,
+                    Err(why) => {
+                        reason.get_or_insert(why);
+                        false
+                    }
+                },
+                Err(_) => false,
             });
-            if !any_dim {
+            if !any_class {
                 return Err(at.error(
                     m,
-                    format!("method {name:?} supports no dimension of the grid"),
+                    format!(
+                        "method {name:?} supports no class of the grid{}",
+                        reason.map_or(String::new(), |r| format!(": {r}"))
+                    ),
                 ));
-            }
-            if methods.contains(name) {
-                return Err(at.error(m, format!("method {name:?} is listed twice")));
             }
             methods.push(name.clone());
         }
@@ -661,111 +360,148 @@ impl Scenario {
             }
             seeds.push(value as u64);
         }
-        let budget = *raw.play.budget.get_ref();
-        if budget < 1 {
-            return Err(at.error(
-                &raw.play.budget,
-                format!("budget {budget} must be at least 1"),
-            ));
-        }
-        let (mut chart_dim, mut chart_accuracy) = (
-            *dims.last().expect("non-empty"),
-            *accuracies.last().expect("non-empty"),
-        );
-        if let Some(charts) = &raw.charts {
-            if let Some(d) = &charts.dim {
-                let value = *d.get_ref();
-                if value < 1 || !dims.contains(&(value as usize)) {
-                    return Err(at.error(
-                        d,
-                        format!("charts.dim = {value} is not in the grid of dimensions"),
-                    ));
-                }
-                chart_dim = value as usize;
-            }
-            for (key, spanned) in [("rho", &charts.rho), ("eps", &charts.eps)] {
-                let Some(r) = spanned else { continue };
-                let value = *r.get_ref();
-                if key != grid_name {
-                    return Err(at.error(
-                        r,
-                        format!(
-                            "charts.{key} does not belong to this family (use charts.{grid_name})"
-                        ),
-                    ));
-                }
-                if !accuracies.contains(&value) {
-                    return Err(at.error(
-                        r,
-                        format!("charts.{key} = {value} is not in the grid of accuracies"),
-                    ));
-                }
-                chart_accuracy = value;
-            }
-        }
         Ok(Scenario {
             name,
             description: raw.description,
-            dims,
-            half_width,
-            accuracies,
-            family,
+            grid,
             adversary,
             methods,
             seeds,
-            budget: budget as u64,
+            budget: raw.play.budget.map(|b| *b.get_ref() as u64),
             transcripts: raw.play.transcripts,
-            chart_dim,
-            chart_accuracy,
             source_text: text.to_string(),
             external,
         })
     }
 
-    /// Every game in canonical order: d ascending, then accuracy descending (R/rho or
-    /// L R/eps ascending), then methods in file order, then seeds in file order
-    /// (deterministic methods play the first seed only). Pairs a method does not support
-    /// are left out.
-    pub fn games(&self) -> Vec<GridGame> {
-        let mut games = Vec::new();
-        for &d in &self.dims {
-            for &accuracy in &self.accuracies {
-                let Ok(class) = self.class_at(d, accuracy) else {
-                    continue;
-                };
-                for name in &self.methods {
-                    let external = self.external_method(name);
-                    if external.is_none() && method::supports(name, &class).is_err() {
-                        continue;
-                    }
-                    let deterministic = match external {
-                        Some(entry) => entry.deterministic,
-                        None => METHODS
-                            .iter()
-                            .find(|m| m.name == name)
-                            .is_some_and(|m| m.deterministic),
-                    };
-                    let seeds = if deterministic {
-                        &self.seeds[..1]
-                    } else {
-                        &self.seeds[..]
-                    };
-                    for &seed in seeds {
-                        games.push(GridGame {
-                            index: games.len() as u64,
-                            class: class.clone(),
-                            method: name.clone(),
-                            seed,
-                        });
-                    }
-                }
-            }
+    /// The family's grid as its concrete type, for callers that know it.
+    pub fn grid_as<G: Grid>(&self) -> Option<&G> {
+        self.grid.as_any().downcast_ref::<G>()
+    }
+
+    /// Every game in canonical order, lazily: the grid's classes in its order, then
+    /// methods in file order, then seeds in file order (deterministic methods play the
+    /// first seed only). Pairs a method does not support are left out.
+    pub fn games(&self) -> GridGames<'_> {
+        GridGames {
+            scenario: self,
+            point: 0,
+            class: None,
+            method: 0,
+            seed: 0,
+            index: 0,
         }
-        games
+    }
+
+    /// The number of games of the grid (one pass over [`Scenario::games`]).
+    pub fn game_count(&self) -> u64 {
+        self.games().count() as u64
+    }
+
+    /// The query budget of a game of `class`.
+    pub fn budget_for(&self, class: &Class) -> u64 {
+        self.grid.budget(class, self.budget)
+    }
+
+    /// Whether method `name` plays only its first seed.
+    pub fn deterministic(&self, name: &str) -> bool {
+        match self.external_method(name) {
+            Some(entry) => entry.deterministic,
+            None => method::info(name).is_some_and(|m| m.deterministic),
+        }
     }
 
     /// The results folder: `<root>/<name>`.
     pub fn results_dir(&self, root: &Path) -> PathBuf {
         root.join(&self.name)
+    }
+}
+
+/// The games of a scenario in canonical order ([`Scenario::games`]).
+pub struct GridGames<'a> {
+    scenario: &'a Scenario,
+    point: u64,
+    class: Option<Class>,
+    method: usize,
+    seed: usize,
+    index: u64,
+}
+
+impl Iterator for GridGames<'_> {
+    type Item = GridGame;
+
+    fn next(&mut self) -> Option<GridGame> {
+        let s = self.scenario;
+        loop {
+            if self.class.is_none() {
+                if self.point >= s.grid.len() {
+                    return None;
+                }
+                let point = self.point;
+                self.point += 1;
+                if let Ok(class) = s.grid.class(point) {
+                    self.class = Some(class);
+                    self.method = 0;
+                    self.seed = 0;
+                }
+                continue;
+            }
+            let class = self.class.as_ref().expect("set above");
+            let Some(name) = s.methods.get(self.method) else {
+                self.class = None;
+                continue;
+            };
+            let seeds = if s.deterministic(name) {
+                1
+            } else {
+                s.seeds.len()
+            };
+            let playable =
+                s.external_method(name).is_some() || method::supports(name, class).is_ok();
+            if !playable || self.seed >= seeds {
+                self.method += 1;
+                self.seed = 0;
+                continue;
+            }
+            let game = GridGame {
+                index: self.index,
+                class: class.clone(),
+                method: name.clone(),
+                seed: s.seeds[self.seed],
+            };
+            self.seed += 1;
+            self.index += 1;
+            return Some(game);
+        }
+    }
+}
+
+/// A shared, lazily enumerated queue of games, for parallel workers.
+pub struct GameQueue<'a> {
+    games: Mutex<Box<dyn Iterator<Item = GridGame> + Send + 'a>>,
+}
+
+impl<'a> GameQueue<'a> {
+    /// Wraps an iterator of games.
+    pub fn new(games: impl Iterator<Item = GridGame> + Send + 'a) -> Self {
+        GameQueue {
+            games: Mutex::new(Box::new(games)),
+        }
+    }
+
+    /// The next game, or `None` when the queue is empty.
+    pub fn next(&self) -> Option<GridGame> {
+        self.games.lock().ok()?.next()
+    }
+}
+
+struct Locator<'a> {
+    path: &'a Path,
+    text: &'a str,
+}
+
+impl Locator<'_> {
+    fn error<T>(&self, spanned: &Spanned<T>, reason: impl Into<String>) -> Error {
+        family::error_at(self.path, self.text, spanned.span().start, reason)
     }
 }

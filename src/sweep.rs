@@ -1,75 +1,39 @@
 //! Sweeps: every game of a scenario's grid, played in parallel, streamed to a tidy CSV.
+//! One engine for every family: the family's grid ([`crate::family::Grid`]) names the
+//! columns, plays a game and writes its row; resume, shards and merge are shared.
 //!
 //! Output: `<root>/<scenario>/games.csv` (or `<root>/<scenario>/shard-K-of-N/games.csv`
 //! for a shard), one row per game in canonical order (the `game` column, see
-//! [`Scenario::games`]), with the columns of [`COLUMNS`]. Beside it, `scenario.toml` is
-//! a copy of the scenario text, used to refuse resuming with a different scenario.
+//! [`Scenario::games`]), with the family's columns. Beside it, `scenario.toml` is a copy
+//! of the scenario text, used to refuse resuming with a different scenario.
 //!
 //! Durability and resume: rows are written in game order and flushed one by one; a
 //! worker's result waits in a small reorder buffer until every earlier game is written.
 //! After an interruption (Ctrl-C or kill -9) the rerun reads the CSV, drops a torn last
-//! line, checks that the rows are exactly the first games of the shard in order, and
-//! plays only the rest. No row is ever duplicated or torn.
+//! line, checks that every row is exactly the game of the shard it claims to be (its
+//! identity columns against the grid), and plays only the rest. No row is ever
+//! duplicated or torn.
 //!
 //! Parallelism: one game is single-threaded and deterministic given its seed; `jobs`
-//! workers in a rayon pool take games in order from a shared counter, so completed
-//! games arrive nearly in order and the reorder buffer stays small; memory does not grow
-//! with the number of games (rows are streamed, not held).
+//! workers in a rayon pool take games in order from a shared, lazily enumerated queue,
+//! so completed games arrive nearly in order and the reorder buffer stays small; memory
+//! does not grow with the number of games (rows are streamed, games enumerated lazily).
 
 use std::collections::BTreeMap;
 use std::fs::{File, OpenOptions};
 use std::io::{BufRead, BufReader, IsTerminal, Write};
 use std::path::{Path, PathBuf};
-use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc;
 
-use crate::bounds::{centre_of_gravity_upper_bound, ellipsoid_upper_bound, halving_lower_bound};
-use crate::certificate::Outcome;
-use crate::class::{Class, Promise};
+use crate::csv;
 use crate::error::Error;
-use crate::runner::{self, GameSpec};
-use crate::scenario::{GridGame, Scenario};
-use crate::transcript::Ending;
-
-/// The columns of `games.csv`, in order. Timing columns (`wall_time_ms`) are the only
-/// ones that differ between two runs of the same sweep.
-///
-/// `accuracy` is rho (feasibility, mixed-integer) or eps (first-order); `ratio` is R/rho
-/// or L R/eps; both are empty for pure integer classes, which have no accuracy. `dim` is
-/// the grid dimension: d, or the integer dimension n for lattice classes, whose
-/// continuous dimension and integer box are in `cont_dim`, `int_lower`, `int_upper`
-/// (empty for the other families). `lipschitz` and `certified_uncertainty` are empty
-/// for feasibility classes, `promise` for first-order ones; bound columns are empty
-/// where the class has no proven number (for lattice classes `lower_bound` is the
-/// lattice-halving bound of docs/theory.md §4, pure integer only).
-pub const COLUMNS: &[&str] = &[
-    "game",
-    "scenario",
-    "family",
-    "adversary",
-    "method",
-    "seed",
-    "dim",
-    "half_width",
-    "accuracy",
-    "ratio",
-    "lipschitz",
-    "promise",
-    "cont_dim",
-    "int_lower",
-    "int_upper",
-    "budget",
-    "queries_used",
-    "censored",
-    "certified_lower_bound",
-    "certified_uncertainty",
-    "outcome",
-    "verified",
-    "lower_bound",
-    "upper_centre_of_gravity",
-    "upper_ellipsoid",
-    "wall_time_ms",
-];
+use crate::family::{self, GameReport};
+use crate::method::external::{ExternalMethod, ExternalSettings};
+use crate::method::{self, Method};
+use crate::runner::GameSpec;
+use crate::scenario::{GameQueue, GridGame, Scenario};
+use crate::transcript::Flush;
 
 /// Columns that hold timings (excluded when comparing two runs).
 pub const TIMING_COLUMNS: &[&str] = &["wall_time_ms"];
@@ -131,7 +95,8 @@ pub struct SweepSummary {
     pub resumed: u64,
     /// Games played now.
     pub played: u64,
-    /// Games whose certificate the verifier rejected (adversary bugs).
+    /// Games the verifier rejected (certificates: adversary bugs), or whose claimed lower
+    /// curve did not hold or whose demonstration the judge refused.
     pub rejected: u64,
     /// The CSV written.
     pub csv: PathBuf,
@@ -146,6 +111,16 @@ pub fn output_dir(scenario: &Scenario, settings: &SweepSettings) -> PathBuf {
     }
 }
 
+/// The games of `scenario` that `shard` owns (all of them without a shard), lazily.
+fn shard_games<'a>(
+    scenario: &'a Scenario,
+    shard: Option<Shard>,
+) -> impl Iterator<Item = GridGame> + Send + 'a {
+    scenario
+        .games()
+        .filter(move |g| shard.is_none_or(|s| s.owns(g.index)))
+}
+
 /// Runs (or resumes) a sweep.
 pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary, Error> {
     let dir = output_dir(scenario, settings);
@@ -155,13 +130,9 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         source,
     })?;
     claim_folder(&dir, scenario)?;
-    let games: Vec<GridGame> = scenario
-        .games()
-        .into_iter()
-        .filter(|g| settings.shard.is_none_or(|s| s.owns(g.index)))
-        .collect();
+    let total = shard_games(scenario, settings.shard).count() as u64;
     let csv_path = dir.join("games.csv");
-    let (done, kept_bytes) = resume_point(&csv_path, &games)?;
+    let (done, kept_bytes) = resume_point(&csv_path, scenario, settings.shard)?;
     let mut csv = OpenOptions::new()
         .append(true)
         .create(true)
@@ -177,10 +148,9 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         source,
     };
     if kept_bytes == 0 {
-        csv.write_all(format!("{}\n", COLUMNS.join(",")).as_bytes())
+        csv.write_all(format!("{}\n", scenario.grid.columns().join(",")).as_bytes())
             .map_err(write_error)?;
     }
-    let remaining = &games[done..];
     let transcripts = scenario
         .transcripts
         .then(|| scenario.results_dir(&settings.root).join("transcripts"));
@@ -191,7 +161,7 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
             source,
         })?;
     }
-    let bar = progress_bar(settings.progress, games.len() as u64, done as u64);
+    let bar = progress_bar(settings.progress, total, done);
     let jobs = settings.jobs.max(1);
     let pool = rayon::ThreadPoolBuilder::new()
         .num_threads(jobs)
@@ -201,48 +171,61 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
             path: dir.clone(),
             source: std::io::Error::other(e),
         })?;
-    let next = AtomicUsize::new(0);
-    let (sender, receiver) = mpsc::channel::<(usize, Result<(String, bool), Error>)>();
+    let queue = GameQueue::new(shard_games(scenario, settings.shard).skip(done as usize));
+    let stop = AtomicBool::new(false);
+    let (sender, receiver) = mpsc::channel::<(u64, Result<(String, bool), Error>)>();
     let mut rejected = 0u64;
+    let mut played = 0u64;
     let mut failure: Option<Error> = None;
     pool.in_place_scope(|scope| {
         for _ in 0..jobs {
             let sender = sender.clone();
-            let next = &next;
+            let queue = &queue;
+            let stop = &stop;
             let transcripts = transcripts.as_deref();
             scope.spawn(move |_| loop {
-                let i = next.fetch_add(1, Ordering::SeqCst);
-                let Some(game) = remaining.get(i) else { break };
-                let row = play_row(scenario, game, transcripts);
-                if sender.send((i, row)).is_err() {
+                if stop.load(Ordering::SeqCst) {
+                    break;
+                }
+                let Some(game) = queue.next() else { break };
+                let row = play_row(scenario, &game, transcripts);
+                if sender.send((game.index, row)).is_err() {
                     break;
                 }
             });
         }
         drop(sender);
-        let mut pending: BTreeMap<usize, (String, bool)> = BTreeMap::new();
-        let mut written = 0usize;
-        for (i, row) in receiver {
+        // Rows are written in game order: the next game index this shard expects.
+        let mut expected = shard_games(scenario, settings.shard)
+            .skip(done as usize)
+            .map(|g| g.index);
+        let mut next = expected.next();
+        let mut pending: BTreeMap<u64, (String, bool)> = BTreeMap::new();
+        for (index, row) in receiver {
             match row {
                 Ok(row) => {
-                    pending.insert(i, row);
+                    pending.insert(index, row);
                 }
                 Err(e) => {
                     // Stop handing out games; keep what is already written.
-                    next.store(usize::MAX / 2, Ordering::SeqCst);
+                    stop.store(true, Ordering::SeqCst);
                     failure.get_or_insert(e);
                 }
             }
-            while let Some((row, verified)) = pending.remove(&written) {
-                if !verified {
+            while let Some(want) = next {
+                let Some((row, accepted)) = pending.remove(&want) else {
+                    break;
+                };
+                if !accepted {
                     rejected += 1;
                 }
                 if let Err(e) = csv.write_all(row.as_bytes()).and_then(|_| csv.flush()) {
-                    next.store(usize::MAX / 2, Ordering::SeqCst);
+                    stop.store(true, Ordering::SeqCst);
                     failure.get_or_insert(write_error(e));
                     break;
                 }
-                written += 1;
+                played += 1;
+                next = expected.next();
                 if let Some(bar) = &bar {
                     bar.inc(1);
                 }
@@ -256,9 +239,9 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         return Err(e);
     }
     Ok(SweepSummary {
-        games: games.len() as u64,
-        resumed: done as u64,
-        played: remaining.len() as u64,
+        games: total,
+        resumed: done,
+        played,
         rejected,
         csv: csv_path,
     })
@@ -307,10 +290,14 @@ fn claim_folder(dir: &Path, scenario: &Scenario) -> Result<(), Error> {
     }
 }
 
-/// How many leading games of `games` the CSV already holds, and how many bytes of it are
-/// whole lines; truncates a torn last line.
-fn resume_point(path: &Path, games: &[GridGame]) -> Result<(usize, u64), Error> {
-    let (rows, good_bytes) = match scan_csv(path, games)? {
+/// How many leading games of the shard the CSV already holds, and how many bytes of it
+/// are whole lines; truncates a torn last line.
+fn resume_point(
+    path: &Path,
+    scenario: &Scenario,
+    shard: Option<Shard>,
+) -> Result<(u64, u64), Error> {
+    let (rows, good_bytes) = match scan_csv(path, scenario, shard)? {
         None => return Ok((0, 0)),
         Some(found) => found,
     };
@@ -330,11 +317,15 @@ fn resume_point(path: &Path, games: &[GridGame]) -> Result<(usize, u64), Error> 
     Ok((rows, good_bytes))
 }
 
-/// Checks a games.csv against the games it should hold, in order: the header, the
-/// number of fields, and the `game` column. Returns the number of whole rows and the
-/// length in bytes of the whole lines (a torn last line is not counted); `None` when
-/// the file does not exist.
-fn scan_csv(path: &Path, games: &[GridGame]) -> Result<Option<(usize, u64)>, Error> {
+/// Checks a games.csv against the games of the shard it should hold, in order: the
+/// header, the number of fields, and every identity cell of every row. Returns the
+/// number of whole rows and the length in bytes of the whole lines (a torn last line is
+/// not counted); `None` when the file does not exist.
+fn scan_csv(
+    path: &Path,
+    scenario: &Scenario,
+    shard: Option<Shard>,
+) -> Result<Option<(u64, u64)>, Error> {
     let bad = |reason: String| Error::Results {
         path: path.to_path_buf(),
         reason,
@@ -350,10 +341,12 @@ fn scan_csv(path: &Path, games: &[GridGame]) -> Result<Option<(usize, u64)>, Err
             })
         }
     };
+    let columns = scenario.grid.columns();
+    let mut games = shard_games(scenario, shard);
     let mut reader = BufReader::new(file);
     let mut line = Vec::new();
     let mut good_bytes: u64 = 0;
-    let mut rows = 0usize;
+    let mut rows = 0u64;
     let mut line_no = 0usize;
     loop {
         line.clear();
@@ -371,26 +364,38 @@ fn scan_csv(path: &Path, games: &[GridGame]) -> Result<Option<(usize, u64)>, Err
         let text = String::from_utf8_lossy(&line);
         let text = text.trim_end();
         if line_no == 1 {
-            if text != COLUMNS.join(",") {
-                return Err(bad(
-                    "line 1: not the games.csv header of this version".into()
-                ));
+            if text != columns.join(",") {
+                return Err(bad(format!(
+                    "line 1: not the games.csv header of the {} family in this version",
+                    scenario.grid.family().name()
+                )));
             }
         } else {
-            let fields = split_csv_line(text);
-            if fields.len() != COLUMNS.len() {
+            let fields = csv::split(text);
+            if fields.len() != columns.len() {
                 return Err(bad(format!(
                     "line {line_no}: {} fields, expected {}",
                     fields.len(),
-                    COLUMNS.len()
+                    columns.len()
                 )));
             }
-            let expected = games.get(rows).map(|g| g.index);
-            if fields[0].parse::<u64>().ok() != expected || expected.is_none() {
+            let Some(game) = games.next() else {
                 return Err(bad(format!(
-                    "line {line_no}: game {} is not the next game of this sweep",
+                    "line {line_no}: game {} is not a game of this sweep (it has {rows} games)",
                     fields[0]
                 )));
+            };
+            let identity = scenario.grid.identity(scenario, &game);
+            for ((column, want), found) in columns.iter().zip(&identity).zip(&fields) {
+                if let Some(want) = want {
+                    if want != found {
+                        return Err(bad(format!(
+                            "line {line_no}: {column} is {found:?}, but game {} of this sweep \
+                             has {want:?}; these rows belong to another scenario or grid",
+                            game.index
+                        )));
+                    }
+                }
             }
             rows += 1;
         }
@@ -399,8 +404,36 @@ fn scan_csv(path: &Path, games: &[GridGame]) -> Result<Option<(usize, u64)>, Err
     Ok(Some((rows, good_bytes)))
 }
 
+/// Builds the method of a game: a built-in, or the scenario's external program (whose
+/// transcript is flushed after every record: it may not be replayable).
+fn build_player(
+    scenario: &Scenario,
+    spec: &GameSpec,
+) -> Result<(Box<dyn Method + Send>, Flush), Error> {
+    match scenario.external_method(&spec.method) {
+        Some(entry) => {
+            let settings = ExternalSettings {
+                answer_timeout: std::time::Duration::from_secs_f64(entry.answer_timeout),
+                ..Default::default()
+            };
+            let method = ExternalMethod::new(
+                &entry.command,
+                &spec.class,
+                spec.budget,
+                spec.seed,
+                settings,
+            )?;
+            Ok((Box::new(method), Flush::EveryRecord))
+        }
+        None => Ok((
+            method::build(&spec.method, &spec.class, spec.seed)?,
+            Flush::Periodic,
+        )),
+    }
+}
+
 /// Plays one game and formats its CSV row (with the trailing newline); the flag says
-/// whether the verifier accepted the certificate.
+/// whether the verifier (or the demonstration judge) accepted the game.
 fn play_row(
     scenario: &Scenario,
     game: &GridGame,
@@ -411,228 +444,13 @@ fn play_row(
         adversary: scenario.adversary.clone(),
         method: game.method.clone(),
         seed: game.seed,
-        budget: scenario.budget,
+        budget: scenario.budget_for(&game.class),
         transcript: transcripts.map(|t| t.join(format!("game-{}.jsonl", game.index))),
     };
-    let report = match scenario.external_method(&game.method) {
-        Some(entry) => {
-            let settings = crate::method::external::ExternalSettings {
-                answer_timeout: std::time::Duration::from_secs_f64(entry.answer_timeout),
-                ..Default::default()
-            };
-            runner::run_external(&spec, &entry.command, &settings)?
-        }
-        None => runner::run(&spec)?,
-    };
-    let censored = matches!(report.record.ending, Ending::BudgetExhausted);
-    let (lower, uncertainty, outcome, verified) = match &report.verdict {
-        Ok(v) => (
-            v.certified_lower_bound()
-                .map_or(String::new(), |b| b.to_string()),
-            v.certified_uncertainty
-                .map_or(String::new(), |u| u.to_string()),
-            outcome_name(&v.outcome).to_string(),
-            "yes",
-        ),
-        Err(e) => (String::new(), String::new(), format!("rejected: {e}"), "no"),
-    };
-    let facts = ClassFacts::of(&game.class);
-    let fields: Vec<String> = vec![
-        game.index.to_string(),
-        scenario.name.clone(),
-        facts.family.into(),
-        scenario.adversary.clone(),
-        game.method.clone(),
-        game.seed.to_string(),
-        facts.dim.to_string(),
-        facts.half_width.to_string(),
-        number(facts.accuracy),
-        number(facts.ratio),
-        facts.lipschitz.map_or(String::new(), |l| l.to_string()),
-        facts.promise.unwrap_or_default().into(),
-        facts
-            .lattice
-            .map_or(String::new(), |(d, _, _)| d.to_string()),
-        facts
-            .lattice
-            .map_or(String::new(), |(_, l, _)| l.to_string()),
-        facts
-            .lattice
-            .map_or(String::new(), |(_, _, u)| u.to_string()),
-        scenario.budget.to_string(),
-        report.record.queries_used.to_string(),
-        censored.to_string(),
-        lower,
-        uncertainty,
-        outcome,
-        verified.into(),
-        opt(facts.lower_bound),
-        opt(facts.upper_centre_of_gravity),
-        opt(facts.upper_ellipsoid),
-        format!("{:.3}", report.wall_time.as_secs_f64() * 1e3),
-    ];
-    Ok((csv_row(&fields), report.verdict.is_ok()))
-}
-
-/// A number cell; NaN (no such number) is written as an empty cell.
-fn number(value: f64) -> String {
-    if value.is_nan() {
-        String::new()
-    } else {
-        value.to_string()
-    }
-}
-
-fn opt(value: Option<u64>) -> String {
-    value.map_or(String::new(), |v| v.to_string())
-}
-
-/// The per-class numbers a games.csv row records.
-#[derive(Clone, Debug, PartialEq)]
-pub struct ClassFacts {
-    /// "feasibility" or "first-order".
-    pub family: &'static str,
-    /// Dimension d.
-    pub dim: usize,
-    /// Half-width R.
-    pub half_width: f64,
-    /// rho or eps.
-    pub accuracy: f64,
-    /// R/rho or L R/eps.
-    pub ratio: f64,
-    /// L (first-order).
-    pub lipschitz: Option<f64>,
-    /// The promise (feasibility).
-    pub promise: Option<&'static str>,
-    /// Continuous dimension, integer lower and upper bound (lattice classes).
-    pub lattice: Option<(usize, i64, i64)>,
-    /// The proven lower bound, where the class has one with a constant.
-    pub lower_bound: Option<u64>,
-    /// The centre-of-gravity upper bound.
-    pub upper_centre_of_gravity: Option<u64>,
-    /// The ellipsoid upper bound.
-    pub upper_ellipsoid: Option<u64>,
-}
-
-impl ClassFacts {
-    /// The facts of a class.
-    pub fn of(class: &Class) -> ClassFacts {
-        match class {
-            Class::Feasibility(c) => ClassFacts {
-                family: "feasibility",
-                dim: c.dim,
-                half_width: c.half_width,
-                accuracy: c.rho,
-                ratio: c.half_width / c.rho,
-                lipschitz: None,
-                promise: Some(match c.promise {
-                    Promise::MayBeEmpty => "may-be-empty",
-                    Promise::Nonempty => "nonempty",
-                }),
-                lattice: None,
-                lower_bound: Some(halving_lower_bound(c)),
-                upper_centre_of_gravity: Some(centre_of_gravity_upper_bound(c)),
-                upper_ellipsoid: Some(ellipsoid_upper_bound(c)),
-            },
-            Class::FirstOrder(c) => ClassFacts {
-                family: "first-order",
-                dim: c.dim,
-                half_width: c.half_width,
-                accuracy: c.eps,
-                ratio: c.lipschitz * c.half_width / c.eps,
-                lipschitz: Some(c.lipschitz),
-                promise: None,
-                lattice: None,
-                lower_bound: None,
-                upper_centre_of_gravity: Some(
-                    crate::bounds::first_order_centre_of_gravity_upper_bound(c),
-                ),
-                upper_ellipsoid: None,
-            },
-            Class::Lattice(c) => ClassFacts {
-                family: if c.cont_dim == 0 {
-                    "lattice"
-                } else {
-                    "mixed-integer"
-                },
-                dim: c.int_dim(),
-                half_width: c.half_width,
-                accuracy: if c.cont_dim == 0 {
-                    crate::scenario::NO_ACCURACY
-                } else {
-                    c.rho
-                },
-                ratio: if c.cont_dim == 0 {
-                    f64::NAN
-                } else {
-                    c.half_width / c.rho
-                },
-                lipschitz: None,
-                promise: None,
-                lattice: Some((c.cont_dim, c.lower[0], c.upper[0])),
-                lower_bound: crate::bounds::lattice_half_lower_bound(c),
-                upper_centre_of_gravity: None,
-                upper_ellipsoid: None,
-            },
-        }
-    }
-}
-
-/// A short stable name for an outcome (CSV and charts).
-pub fn outcome_name(outcome: &Outcome) -> &'static str {
-    match outcome {
-        Outcome::OutputRefuted { .. } => "output-refuted",
-        Outcome::EmptyRefuted { .. } => "empty-refuted",
-        Outcome::EmptyBreaksPromise => "empty-breaks-promise",
-        Outcome::OutputStands => "output-stands",
-        Outcome::BudgetExhausted => "budget-exhausted",
-        Outcome::MethodFailed { .. } => "method-failed",
-    }
-}
-
-/// Quotes a CSV field when it holds a comma, a quote or a line break (RFC 4180).
-pub fn csv_field(text: &str) -> String {
-    if text.contains([',', '"', '\n', '\r']) {
-        format!(
-            "\"{}\"",
-            text.replace('"', "\"\"").replace(['\n', '\r'], " ")
-        )
-    } else {
-        text.to_string()
-    }
-}
-
-/// One CSV line (with its line break) from unquoted fields.
-pub fn csv_row(fields: &[String]) -> String {
-    let mut row = fields
-        .iter()
-        .map(|f| csv_field(f))
-        .collect::<Vec<_>>()
-        .join(",");
-    row.push('\n');
-    row
-}
-
-/// Splits one CSV line into fields (RFC 4180 quoting, no embedded line breaks).
-pub fn split_csv_line(line: &str) -> Vec<String> {
-    let mut fields = Vec::new();
-    let mut field = String::new();
-    let mut quoted = false;
-    let mut chars = line.chars().peekable();
-    while let Some(c) = chars.next() {
-        match (quoted, c) {
-            (true, '"') if chars.peek() == Some(&'"') => {
-                field.push('"');
-                chars.next();
-            }
-            (true, '"') => quoted = false,
-            (false, '"') if field.is_empty() => quoted = true,
-            (false, ',') => fields.push(std::mem::take(&mut field)),
-            (_, c) => field.push(c),
-        }
-    }
-    fields.push(field);
-    fields
+    let (mut player, flush) = build_player(scenario, &spec)?;
+    let report: GameReport = family::play(&spec, player.as_mut(), flush)?;
+    let cells = scenario.grid.row(scenario, game, &report);
+    Ok((csv::row(&cells), report.accepted()))
 }
 
 /// Merges shard folders `<root>/<scenario>/shard-K-of-N/games.csv` into
@@ -673,7 +491,6 @@ pub fn merge(scenario_dir: &Path) -> Result<PathBuf, Error> {
     }
     let scenario = Scenario::from_file(&shard_dirs[0].1.join("scenario.toml"))?;
     claim_folder(scenario_dir, &scenario)?;
-    let games = scenario.games();
     let mut rows: Vec<Vec<String>> = Vec::new();
     for (shard, dir) in &shard_dirs {
         let text = std::fs::read_to_string(dir.join("scenario.toml")).unwrap_or_default();
@@ -684,34 +501,38 @@ pub fn merge(scenario_dir: &Path) -> Result<PathBuf, Error> {
             )));
         }
         let path = dir.join("games.csv");
-        let mine: Vec<&GridGame> = games.iter().filter(|g| shard.owns(g.index)).collect();
+        let mine = shard_games(&scenario, Some(*shard)).count() as u64;
         let content = std::fs::read_to_string(&path).map_err(|source| Error::Io {
             action: "cannot read",
             path: path.clone(),
             source,
         })?;
-        let mine: Vec<GridGame> = mine.into_iter().cloned().collect();
-        let (whole_rows, whole_bytes) = scan_csv(&path, &mine)?.unwrap_or((0, 0));
+        let (whole_rows, whole_bytes) = scan_csv(&path, &scenario, Some(*shard))?.unwrap_or((0, 0));
         let torn = whole_bytes != content.len() as u64;
-        let lines: Vec<&str> = content.lines().skip(1).take(whole_rows).collect();
-        if torn || whole_rows != mine.len() {
+        if torn || whole_rows != mine {
             return Err(bad(format!(
                 "shard {}/{} is incomplete ({} of {} games{}); rerun it first",
                 shard.index,
                 shard.count,
                 whole_rows,
-                mine.len(),
+                mine,
                 if torn { ", last line torn" } else { "" }
             )));
         }
-        rows.extend(lines.iter().map(|l| split_csv_line(l)));
+        rows.extend(
+            content
+                .lines()
+                .skip(1)
+                .take(whole_rows as usize)
+                .map(csv::split),
+        );
     }
     rows.sort_by_key(|r| r[0].parse::<u64>().unwrap_or(u64::MAX));
     let out_path = scenario_dir.join("games.csv");
     let tmp = scenario_dir.join("games.csv.tmp");
-    let mut text = format!("{}\n", COLUMNS.join(","));
+    let mut text = format!("{}\n", scenario.grid.columns().join(","));
     for row in &rows {
-        text.push_str(&csv_row(row));
+        text.push_str(&csv::row(row));
     }
     std::fs::write(&tmp, text).map_err(|source| Error::Io {
         action: "cannot write",

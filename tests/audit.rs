@@ -219,6 +219,7 @@ fn the_audit_of_a_subgradient_run_writes_witnesses_the_verifier_confirms() {
         queries_used: t,
         ending: Ending::BudgetExhausted,
         certificate: Some(witnesses.certificate.clone()),
+        demonstration: None,
     }));
     let verdict = verify_records(&all).expect("the verifier confirms the witnesses");
     assert_eq!(verdict.certified_prefix, Some(t));

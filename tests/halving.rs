@@ -194,6 +194,7 @@ impl Driven {
             queries_used: n,
             ending,
             certificate: self.adversary.witnesses(),
+            demonstration: None,
         }));
         records
     }
@@ -498,6 +499,7 @@ fn truncated(records: &[Record], t: u64, instances: &[naysayer::instance::Witnes
             prefix: t,
             instances: instances.to_vec(),
         }),
+        demonstration: None,
     }));
     out
 }

@@ -13,9 +13,9 @@ use naysayer::certificate::{verify_file, Verdict};
 use naysayer::class::lattice::LatticeClass;
 use naysayer::class::{Class, FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
 use naysayer::error::Error;
+use naysayer::family::boxes::outcome_name;
 use naysayer::method::METHODS;
 use naysayer::runner::{self, GameSpec};
-use naysayer::sweep::outcome_name;
 use serde_json::Value;
 use tempfile::TempDir;
 

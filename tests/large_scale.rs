@@ -1,22 +1,50 @@
-//! The large-scale first-order regime (issue 9, docs/theory.md §3): published-theorem
-//! demonstrations. Every comparison with a published value uses the relative tolerance
-//! 1e-12 (`RELATIVE_TOLERANCE`), because the constants are irrational (docs/theory.md §0);
-//! nothing here is an exact certificate.
+//! The large-scale first-order regime (docs/theory.md §3): published-theorem
+//! demonstrations, played through the one game loop. Every comparison with a published
+//! value uses the relative tolerance 1e-12 (`DEMONSTRATION_TOLERANCE`), because the
+//! constants are irrational (docs/theory.md §0); nothing here is an exact certificate.
 
-use naysayer::class::LargeScaleClass;
+use naysayer::adversary::fixed_function::build_instance;
+use naysayer::adversary::rotation::Rotation;
+use naysayer::adversary::rotation_chain::RotationChain;
+use naysayer::class::{Class, LargeScale, LargeScaleClass};
+use naysayer::demonstration::{judge_file, DemoVerdict};
 use naysayer::error::Error;
-use naysayer::large_scale::game::{self, class_gap, play, DemoSpec};
-use naysayer::large_scale::instances::{
-    DroriTeboulle, NesterovNonsmooth, SmoothChain, StronglyConvexChain,
-};
-use naysayer::large_scale::rotation::Rotation;
-use naysayer::large_scale::rotation_chain::RotationChain;
-use naysayer::large_scale::witness::{self, DemoQuery, DemoRecord};
-use naysayer::large_scale::{KnownFunction, Oracle, RELATIVE_TOLERANCE};
-use naysayer::method::large_scale as methods;
+use naysayer::geometry::basis::norm;
+use naysayer::instance::large_scale::{DroriTeboulle, KnownFunction, SmoothChain};
+use naysayer::runner::{self, DemoReport, GameSpec};
+use naysayer::transcript::{parse_line, Record, DEMONSTRATION_TOLERANCE};
 use proptest::prelude::*;
 
-const TOL: f64 = RELATIVE_TOLERANCE;
+const TOL: f64 = DEMONSTRATION_TOLERANCE;
+
+/// A demonstration game of `method` against `adversary` on `function` at horizon T.
+fn spec(
+    function: LargeScaleClass,
+    horizon: usize,
+    adversary: &str,
+    method: &str,
+    seed: u64,
+) -> GameSpec {
+    GameSpec {
+        class: Class::LargeScale(LargeScale::new(function, horizon as u64).unwrap()),
+        adversary: adversary.into(),
+        method: method.into(),
+        seed,
+        budget: horizon as u64,
+        transcript: None,
+    }
+}
+
+/// Plays a spec with a built-in method; the judge's verdict.
+fn verdict(spec: &GameSpec) -> (DemoReport, DemoVerdict) {
+    let report = runner::demonstrate(spec).unwrap();
+    let verdict = report
+        .judgement
+        .as_ref()
+        .expect("the judge accepts")
+        .clone();
+    (report, verdict)
+}
 
 fn at_least(gap: f64, bound: f64, what: &str) {
     assert!(
@@ -39,11 +67,35 @@ fn subgradient_meets_the_drori_teboulle_bound_exactly() {
     let (m, r) = (2.0, 3.0);
     for n in [1usize, 10, 100] {
         let class = LargeScaleClass::nonsmooth(n + 3, m, r).unwrap();
-        let mut instance = DroriTeboulle::new(n + 3, m, r, n).unwrap();
-        let mut method = methods::build("subgradient", &class, (n + 1) as u64, 0).unwrap();
-        let played = play(method.as_mut(), &mut instance, (n + 1) as u64, false).unwrap();
-        assert_eq!(played.queries_used, (n + 1) as u64);
-        let gap = class_gap(&class, &played, &instance).unwrap();
+        // N = n steps, n + 1 points: a horizon of n + 1 queries, the instance built for
+        // N = n.
+        let game = spec(
+            class,
+            n + 1,
+            "drori-teboulle",
+            "unconstrained-subgradient",
+            0,
+        );
+        let instance = DroriTeboulle::new(n + 3, m, r, n).unwrap();
+        let mut method = naysayer::method::build(&game.method, &game.class, 0).unwrap();
+        let mut adversary = naysayer::adversary::fixed_function::FixedFunction::from_instance(
+            "drori-teboulle",
+            Box::new(instance.clone()),
+            true,
+        );
+        let header = runner::header_for(&game, method.name());
+        let record = naysayer::game::play(
+            &header,
+            method.as_mut(),
+            &mut adversary,
+            &naysayer::game::GameSettings {
+                budget: (n + 1) as u64,
+            },
+            &mut [],
+        )
+        .unwrap();
+        assert_eq!(record.queries_used, (n + 1) as u64);
+        let gap = record.demonstration.unwrap().gap.unwrap();
         let published = m * r / ((n + 1) as f64).sqrt();
         assert!(
             (gap - published).abs() <= TOL * published,
@@ -53,21 +105,24 @@ fn subgradient_meets_the_drori_teboulle_bound_exactly() {
         // The minimiser and optimal value the instance states agree with its oracle.
         let star = instance.minimiser();
         assert!(instance.gap(&star).abs() <= TOL * published);
-        assert!((naysayer::large_scale::norm(&star) - r).abs() <= TOL * r);
+        assert!((norm(&star) - r).abs() <= TOL * r);
     }
 }
 
-/// Plays span method `name` for k queries on a fresh instance and returns the gap.
-fn span_gap(
-    name: &str,
-    class: &LargeScaleClass,
-    instance: &mut dyn game::Instance,
-    k: usize,
-) -> f64 {
-    let mut method = methods::build(name, class, k as u64, 0).unwrap();
-    let played = play(method.as_mut(), instance, k as u64, false).unwrap();
-    assert_eq!(played.queries_used, k as u64, "{name}");
-    class_gap(class, &played, instance.as_known()).unwrap()
+/// Plays span method `name` for k queries against the published instance `instance`
+/// and returns the gap and the instance's bound.
+fn span_gap(name: &str, class: &LargeScaleClass, instance: &str, k: usize) -> (f64, f64) {
+    let game = spec(*class, k, instance, name, 0);
+    let (report, v) = verdict(&game);
+    assert_eq!(report.record.queries_used, k as u64, "{name}");
+    assert!(
+        v.claimed,
+        "{name} is a span method, so the instance's curve binds it"
+    );
+    let bound = build_instance(instance, &LargeScale::new(*class, k as u64).unwrap())
+        .unwrap()
+        .bound();
+    (v.gap.unwrap(), bound)
 }
 
 #[test]
@@ -81,9 +136,7 @@ fn span_methods_stay_above_the_smooth_chain_bound() {
         let class = LargeScaleClass::smooth(d, beta, r).unwrap();
         let mut gaps = Vec::new();
         for name in ["gradient", "accelerated", "heavy-ball"] {
-            let mut instance = SmoothChain::new(d, beta, r, k).unwrap();
-            let bound = instance.bound();
-            let gap = span_gap(name, &class, &mut instance, k);
+            let (gap, bound) = span_gap(name, &class, "smooth-chain", k);
             at_least(gap, bound, &format!("{name}, k = {k}"));
             gaps.push(gap);
         }
@@ -110,12 +163,15 @@ fn span_methods_stay_above_the_strongly_convex_chain_bound() {
             let d = 2 * k + 1;
             let class = LargeScaleClass::strongly_convex(d, beta, mu, r).unwrap();
             for name in ["gradient", "accelerated", "heavy-ball"] {
-                let mut instance = StronglyConvexChain::new(d, beta, mu, r, k).unwrap();
-                let bound = instance.bound();
+                let (gap, bound) = span_gap(name, &class, "strongly-convex-chain", k);
                 assert!(bound >= 1e-20 * mu * r * r);
-                let gap = span_gap(name, &class, &mut instance, k);
                 at_least(gap, bound, &format!("{name}, Q = {}, k = {k}", beta / mu));
                 if name == "accelerated" {
+                    let instance = build_instance(
+                        "strongly-convex-chain",
+                        &LargeScale::new(class, k as u64).unwrap(),
+                    )
+                    .unwrap();
                     let start = instance.gap(&vec![0.0; d]) + 0.5 * mu * r * r;
                     let upper = (k as f64 * (-(mu / beta).sqrt()).ln_1p()).exp() * start;
                     at_most(gap, upper, &format!("accelerated upper, k = {k}"));
@@ -133,55 +189,55 @@ fn the_subgradient_method_stays_above_the_nonsmooth_bounds() {
     for k in 1..=200 {
         let d = 2 * k + 1;
         let class = LargeScaleClass::nonsmooth(d, m, r).unwrap();
-        let mut nesterov = NesterovNonsmooth::new(d, m, r, k).unwrap();
-        let bound = nesterov.bound();
-        let gap = span_gap("subgradient", &class, &mut nesterov, k);
+        let (gap, bound) = span_gap("unconstrained-subgradient", &class, "nesterov-nonsmooth", k);
         at_least(gap, bound, &format!("Nesterov instance, k = {k}"));
         at_most(
             gap,
             m * r * 2.0 / (k as f64).sqrt(),
             "subgradient upper (M = 1 on B(0, 2R))",
         );
-        let mut tight = DroriTeboulle::new(d, m, r, k).unwrap();
-        let bound = tight.bound();
-        let gap = span_gap("subgradient", &class, &mut tight, k);
+        let (gap, bound) = span_gap("unconstrained-subgradient", &class, "drori-teboulle", k);
         at_least(gap, bound, &format!("Drori-Teboulle instance, k = {k}"));
     }
 }
 
-/// Plays a method against the nonsmooth rotation adversary, checks the forced gap and
-/// the exported witness, and returns the replay's largest errors.
-fn rotation_game(name: &str, seed: u64, queries: usize, dim: usize) -> (f64, f64) {
+/// The final record of a transcript file (its last line).
+fn final_record(path: &std::path::Path) -> naysayer::transcript::FinalRecord {
+    let text = std::fs::read_to_string(path).unwrap();
+    let lines: Vec<&str> = text.lines().collect();
+    match parse_line(lines[lines.len() - 1], lines.len() as u64).unwrap() {
+        Record::Final(f) => f,
+        other => panic!("not a final record: {other:?}"),
+    }
+}
+
+/// Plays a method against the nonsmooth rotation adversary with a transcript, checks the
+/// forced gap, and replays every answer against the exported witness; returns the
+/// replay's largest relative error.
+fn rotation_game(name: &str, seed: u64, queries: usize, dim: usize) -> f64 {
     let (m, r) = (1.5, 0.75);
     let class = LargeScaleClass::nonsmooth(dim, m, r).unwrap();
-    let spec = DemoSpec {
-        class,
-        oracle: "rotation".into(),
-        method: name.into(),
-        queries: queries as u64,
-        seed,
-        record: true,
-    };
-    let report = game::run(&spec).unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("rotation.jsonl");
+    let mut game = spec(class, queries, "rotation", name, seed);
+    game.transcript = Some(path.clone());
+    let (report, v) = verdict(&game);
     let forced = m * r / ((queries + 1) as f64).sqrt();
-    let gap = report.gap.unwrap();
     at_least(
-        gap,
+        v.gap.unwrap(),
         forced,
         &format!("{name} seed {seed}, T = {queries}, d = {dim}"),
     );
-    assert!((report.bound - forced).abs() <= TOL * forced);
-    // Export, read back bit for bit, replay every answer against the witness.
-    let dir = tempfile::tempdir().unwrap();
-    let path = dir.path().join("rotation.jsonl");
-    let records = report.records(&spec).unwrap();
-    witness::write_transcript(&path, &records).unwrap();
-    let back = witness::read_transcript(&path).unwrap();
-    assert_eq!(back, records, "the export must round-trip exactly");
-    let replayed = witness::replay(&back).unwrap();
-    assert_eq!(replayed.answers, queries as u64);
-    assert!(replayed.orthonormality_error <= 1e-13);
-    (replayed.value_error, replayed.gradient_error)
+    assert!((v.lower_bound - forced).abs() <= TOL * forced);
+    assert!(v.claimed && v.holds == Some(true));
+    // The file's final record is exactly the one played, witness directions bit for bit.
+    let written = final_record(&path);
+    assert_eq!(written, report.record, "the export must round-trip exactly");
+    let witness = written.demonstration.unwrap().witness.unwrap();
+    assert!(witness.orthonormality_error() <= 1e-13);
+    // The judge replayed every answer against the witness.
+    assert_eq!(v.replayed, queries as u64);
+    v.replay_error
 }
 
 #[test]
@@ -190,12 +246,12 @@ fn the_rotation_adversary_forces_the_bound_on_non_span_methods() {
     // measured equality to 2e-16 against coordinate steps and random search).
     for queries in [1usize, 5, 20, 60] {
         for dim in [2 * queries + 2, 3 * queries + 7] {
-            let (v, g) = rotation_game("coordinate-search", 0, queries, dim);
-            assert!(v <= TOL && g <= TOL);
+            let error = rotation_game("coordinate-search", 0, queries, dim);
+            assert!(error <= TOL);
             for seed in [0, 1, 2] {
                 rotation_game("random-direction", seed, queries, dim);
             }
-            rotation_game("subgradient", 0, queries, dim);
+            rotation_game("unconstrained-subgradient", 0, queries, dim);
         }
     }
 }
@@ -214,19 +270,14 @@ fn the_rotation_chain_adversary_forces_the_chain_bounds() {
                 ("accelerated", 0),
                 ("gradient", 0),
             ] {
-                let spec = DemoSpec {
-                    class,
-                    oracle: "rotation-chain".into(),
-                    method: name.into(),
-                    queries: queries as u64,
-                    seed,
-                    record: true,
-                };
-                let report = game::run(&spec).unwrap();
+                let dir = tempfile::tempdir().unwrap();
+                let mut game = spec(class, queries, "rotation-chain", name, seed);
+                game.transcript = Some(dir.path().join("chain.jsonl"));
+                let (_, v) = verdict(&game);
                 let what = format!("{name} on {} T = {queries}", class.kind());
-                at_least(report.gap.unwrap(), report.bound, &what);
-                let replayed = witness::replay(&report.records(&spec).unwrap()).unwrap();
-                assert!(replayed.value_error <= TOL, "{what}");
+                at_least(v.gap.unwrap(), v.lower_bound, &what);
+                assert_eq!(v.replayed, queries as u64, "{what}");
+                assert!(v.replay_error <= TOL, "{what}");
             }
         }
     }
@@ -255,32 +306,51 @@ fn a_too_small_dimension_is_a_clear_error() {
     let e = RotationChain::new(&class, 3).unwrap_err();
     assert!(e.to_string().contains("d >= 11"), "{e}");
     // Through the game runner, with the class's dimension too small.
-    let spec = DemoSpec {
-        class: LargeScaleClass::nonsmooth(9, 1.0, 1.0).unwrap(),
-        oracle: "rotation".into(),
-        method: "coordinate-search".into(),
-        queries: 4,
-        seed: 0,
-        record: false,
-    };
-    let e = game::run(&spec).unwrap_err();
+    let game = spec(
+        LargeScaleClass::nonsmooth(9, 1.0, 1.0).unwrap(),
+        4,
+        "rotation",
+        "coordinate-search",
+        0,
+    );
+    let e = runner::demonstrate(&game).unwrap_err();
     assert!(e.to_string().contains("d >= 10"), "{e}");
     // One query more than the adversary was built for.
     let mut adversary = Rotation::new(10, 1.0, 1.0, 2, 2).unwrap();
     let mut g = vec![0.0; 10];
-    adversary.answer(&[0.0; 10], &mut g).unwrap();
-    adversary.answer(&[0.5; 10], &mut g).unwrap();
-    let e = adversary.answer(&[0.25; 10], &mut g).unwrap_err();
+    adversary.respond(&[0.0; 10], &mut g).unwrap();
+    adversary.respond(&[0.5; 10], &mut g).unwrap();
+    let e = adversary.respond(&[0.25; 10], &mut g).unwrap_err();
     assert!(e.to_string().contains("built for 2 queries"), "{e}");
+    // A budget beyond the horizon is refused before the first query.
+    let mut game = spec(
+        LargeScaleClass::nonsmooth(20, 1.0, 1.0).unwrap(),
+        4,
+        "rotation",
+        "coordinate-search",
+        0,
+    );
+    game.budget = 5;
+    let e = runner::demonstrate(&game).unwrap_err();
+    assert!(e.to_string().contains("at most 4 queries"), "{e}");
     // Instances too.
     assert!(SmoothChain::new(4, 1.0, 1.0, 2).is_err());
 }
 
+/// One answered query of a property test.
+#[derive(Clone, Debug)]
+struct Exchange {
+    index: u64,
+    point: Vec<f64>,
+    value: f64,
+    gradient: Vec<f64>,
+}
+
 /// Interpolation consistency (docs/theory.md §2.1, here with a tolerance): for all s, t,
 /// v_t + <g_t, x_s - x_t> <= v_s, and ||g_t|| <= M.
-fn check_interpolation(exchanges: &[DemoQuery], lipschitz: f64, radius: f64) {
+fn check_interpolation(exchanges: &[Exchange], lipschitz: f64, radius: f64) {
     for t in exchanges {
-        let gn = naysayer::large_scale::norm(&t.gradient);
+        let gn = norm(&t.gradient);
         assert!(gn <= lipschitz * (1.0 + TOL), "subgradient norm {gn}");
         for s in exchanges {
             let lin: f64 = t
@@ -289,10 +359,7 @@ fn check_interpolation(exchanges: &[DemoQuery], lipschitz: f64, radius: f64) {
                 .zip(s.point.iter().zip(&t.point))
                 .map(|(g, (a, b))| g * (a - b))
                 .sum();
-            let scale = lipschitz
-                * (radius
-                    + naysayer::large_scale::norm(&s.point)
-                    + naysayer::large_scale::norm(&t.point));
+            let scale = lipschitz * (radius + norm(&s.point) + norm(&t.point));
             assert!(
                 t.value + lin <= s.value + TOL * scale,
                 "answers {} and {} are inconsistent: {} > {}",
@@ -353,20 +420,18 @@ proptest! {
         let mut exchanges = Vec::new();
         let mut g = vec![0.0; dim];
         for (i, q) in queries.iter().enumerate() {
-            let value = adversary.answer(q, &mut g).unwrap();
+            let value = adversary.respond(q, &mut g).unwrap();
             prop_assert!(value >= 0.0, "a query value fell below 0 with a direction hidden");
-            exchanges.push(DemoQuery { index: i as u64 + 1, point: q.clone(), value, gradient: g.clone() });
+            exchanges.push(Exchange { index: i as u64 + 1, point: q.clone(), value, gradient: g.clone() });
         }
         let output: Vec<f64> = output.iter().map(|c| f64::from(*c) * 0.3).collect();
         let witness = adversary.finish(Some(&output)).unwrap();
         check_interpolation(&exchanges, m, r);
-        let records: Vec<DemoRecord> = exchanges.iter().cloned().map(DemoRecord::DemoQuery)
-            .chain([DemoRecord::DemoFinal(witness::DemoFinal {
-                queries_used: t as u64, output: Some(output.clone()), gap: 0.0, bound: 0.0,
-                witness: witness.clone(),
-            })]).collect();
-        let report = witness::replay(&records).unwrap();
-        prop_assert!(report.value_error <= TOL && report.gradient_error <= TOL);
+        // The replay the demonstration judge runs: every answer reproduced by the witness.
+        for e in &exchanges {
+            let (v, g) = witness.check_answer(&e.point, e.value, &e.gradient);
+            prop_assert!(v <= TOL && g <= TOL, "answer {}: errors {v:e}, {g:e}", e.index);
+        }
         // The output keeps the forced gap.
         prop_assert!(witness.gap(&output) >= m * r / ((t + extra + 1) as f64).sqrt() * (1.0 - TOL));
     }
@@ -389,17 +454,14 @@ proptest! {
         let mut exchanges = Vec::new();
         let mut g = vec![0.0; dim];
         for (i, q) in queries.iter().enumerate() {
-            let value = adversary.answer(q, &mut g).unwrap();
-            exchanges.push(DemoQuery { index: i as u64 + 1, point: q.clone(), value, gradient: g.clone() });
+            let value = adversary.respond(q, &mut g).unwrap();
+            exchanges.push(Exchange { index: i as u64 + 1, point: q.clone(), value, gradient: g.clone() });
         }
         let witness = adversary.finish(None).unwrap();
-        let records: Vec<DemoRecord> = exchanges.iter().cloned().map(DemoRecord::DemoQuery)
-            .chain([DemoRecord::DemoFinal(witness::DemoFinal {
-                queries_used: t as u64, output: None, gap: 0.0, bound: 0.0,
-                witness,
-            })]).collect();
-        let report = witness::replay(&records).unwrap();
-        prop_assert!(report.value_error <= TOL && report.gradient_error <= TOL);
+        for e in &exchanges {
+            let (v, g) = witness.check_answer(&e.point, e.value, &e.gradient);
+            prop_assert!(v <= TOL && g <= TOL, "answer {}: errors {v:e}, {g:e}", e.index);
+        }
     }
 }
 
@@ -411,22 +473,26 @@ kind = "nonsmooth"
 dim = 20
 radius = 1.0
 lipschitz = 1.0
-queries = [1, 2, 4, 8]
+horizon = [1, 2, 4, 8]
 [adversary]
 name = "rotation"
 [play]
-methods = ["subgradient", "random-direction"]
+methods = ["unconstrained-subgradient", "random-direction"]
 seeds = [0, 1]
 "#;
 
 #[test]
 fn large_scale_scenarios_are_parsed_strictly() {
-    use naysayer::scenario::LargeScaleScenario;
+    use naysayer::family::large_scale::LargeScaleGrid;
+    use naysayer::scenario::Scenario;
     let path = std::path::Path::new("tiny.toml");
-    let ok = LargeScaleScenario::parse(SCENARIO, path).unwrap();
-    assert_eq!(ok.queries, vec![1, 2, 4, 8]);
-    assert_eq!(ok.games().len(), 4 * 3);
-    assert!(naysayer::scenario::is_large_scale(SCENARIO));
+    let ok = Scenario::parse(SCENARIO, path).unwrap();
+    assert_eq!(
+        ok.grid_as::<LargeScaleGrid>().unwrap().horizons,
+        vec![1, 2, 4, 8]
+    );
+    assert_eq!(ok.games().count(), 4 * 3);
+    assert_eq!(ok.grid.family().name(), "large-scale");
     let cases = [
         (SCENARIO.replace("dim = 20", "dim = 17"), 6, "needs d >= 18"),
         (
@@ -435,7 +501,7 @@ fn large_scale_scenarios_are_parsed_strictly() {
             "unknown field",
         ),
         (
-            SCENARIO.replace("\"subgradient\",", "\"gradient\","),
+            SCENARIO.replace("\"unconstrained-subgradient\",", "\"gradient\","),
             13,
             "needs a smooth class",
         ),
@@ -447,11 +513,11 @@ fn large_scale_scenarios_are_parsed_strictly() {
         (
             SCENARIO.replace("name = \"rotation\"", "name = \"rotation-chain\""),
             11,
-            "does not play",
+            "plays the smooth and strongly convex classes",
         ),
     ];
     for (text, line, words) in cases {
-        let e = LargeScaleScenario::parse(&text, path).unwrap_err();
+        let e = Scenario::parse(&text, path).unwrap_err();
         let Error::Scenario {
             line: got, reason, ..
         } = &e
@@ -465,18 +531,25 @@ fn large_scale_scenarios_are_parsed_strictly() {
 
 #[test]
 fn a_large_scale_sweep_writes_its_table_and_chart() {
-    use naysayer::scenario::LargeScaleScenario;
+    use naysayer::scenario::Scenario;
+    use naysayer::sweep::SweepSettings;
     let dir = tempfile::tempdir().unwrap();
-    let scenario = LargeScaleScenario::parse(SCENARIO, std::path::Path::new("tiny.toml")).unwrap();
-    let summary = naysayer::large_scale::sweep::run(&scenario, dir.path(), 2).unwrap();
-    assert_eq!((summary.games, summary.broken), (12, 0));
+    let scenario = Scenario::parse(SCENARIO, std::path::Path::new("tiny.toml")).unwrap();
+    let settings = SweepSettings {
+        jobs: 2,
+        shard: None,
+        root: dir.path().to_path_buf(),
+        progress: false,
+    };
+    let summary = naysayer::sweep::run(&scenario, &settings).unwrap();
+    assert_eq!((summary.games, summary.rejected), (12, 0));
     let text = std::fs::read_to_string(&summary.csv).unwrap();
     assert_eq!(text.lines().count(), 13);
     assert!(
         text.lines().skip(1).all(|l| l.contains(",yes,yes,")),
         "{text}"
     );
-    let pngs = naysayer::large_scale::sweep::draw_all(&dir.path().join("tiny")).unwrap();
+    let pngs = naysayer::gallery::draw_all(&dir.path().join("tiny")).unwrap();
     assert!(pngs[0].exists());
     assert!(dir.path().join("tiny/gap-vs-queries.csv").exists());
 }
@@ -509,9 +582,8 @@ fn the_binary_sweeps_a_large_scale_scenario_and_exports_replayable_witnesses() {
     let folder = out.join("tiny");
     assert!(folder.join("games.csv").exists() && folder.join("gap-vs-queries.png").exists());
     let game = folder.join("transcripts/game-0.jsonl");
-    let records = witness::read_transcript(&game).unwrap();
-    let report = witness::replay(&records).unwrap();
-    assert_eq!(report.answers, 1);
+    let report = judge_file(&game).unwrap();
+    assert_eq!(report.replayed, 1);
     // A demonstration transcript is not a certificate: the exact verifier refuses it.
     let check = std::process::Command::new(bin)
         .arg("check")
@@ -533,9 +605,11 @@ fn the_binary_sweeps_a_large_scale_scenario_and_exports_replayable_witnesses() {
     let bounds = std::process::Command::new(bin)
         .args([
             "bounds",
-            "--large-scale",
+            "--class",
+            "large-scale",
+            "--kind",
             "smooth",
-            "--queries",
+            "--horizon",
             "10",
             "-d",
             "40",
@@ -568,11 +642,19 @@ fn an_overflowing_query_ends_the_game_as_a_method_failure() {
             Ok(())
         }
     }
-    let mut oracle = DroriTeboulle::new(4, 1.0, 1.0, 2).unwrap();
-    let played = play(&mut Huge, &mut oracle, 5, false).unwrap();
-    assert_eq!(played.queries_used, 0);
+    let game = spec(
+        LargeScaleClass::nonsmooth(4, 1.0, 1.0).unwrap(),
+        2,
+        "drori-teboulle",
+        "huge",
+        0,
+    );
+    let report =
+        runner::demonstrate_with_flush(&game, &mut Huge, naysayer::transcript::Flush::Periodic)
+            .unwrap();
+    assert_eq!(report.record.queries_used, 0);
     assert!(matches!(
-        played.ending,
+        report.record.ending,
         naysayer::transcript::Ending::MethodFailed { .. }
     ));
 }

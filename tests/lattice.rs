@@ -330,6 +330,7 @@ fn scripted(class: &LatticeClass, queries: &[Vec<f64>]) -> Vec<Record> {
         queries_used: queries.len() as u64,
         ending: Ending::BudgetExhausted,
         certificate: adversary.witnesses(),
+        demonstration: None,
     }));
     records
 }

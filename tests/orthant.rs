@@ -312,6 +312,7 @@ impl Game {
             queries_used: n,
             ending: Ending::BudgetExhausted,
             certificate: self.adversary.witnesses(),
+            demonstration: None,
         }));
         all
     }

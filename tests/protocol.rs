@@ -596,7 +596,7 @@ fn scenarios_name_external_methods() {
     assert!(entry.deterministic);
     assert_eq!(entry.answer_timeout, 20.0);
     // Two dimensions, two deterministic methods, the first seed only: four games.
-    let games = scenario.games();
+    let games: Vec<_> = scenario.games().collect();
     assert_eq!(games.len(), 4);
     assert_eq!(games[1].method, "py-bisection");
 }
@@ -687,14 +687,10 @@ fn a_sweep_plays_an_external_method_like_the_builtin() {
         text(&out.stderr)
     );
     let csv = std::fs::read_to_string(dir.path().join("results/external/games.csv")).unwrap();
-    let rows: Vec<Vec<String>> = csv
-        .lines()
-        .skip(1)
-        .map(naysayer::sweep::split_csv_line)
-        .collect();
+    let rows: Vec<Vec<String>> = csv.lines().skip(1).map(naysayer::csv::split).collect();
     assert_eq!(rows.len(), 4, "{csv}");
     let col = |name: &str| {
-        naysayer::sweep::COLUMNS
+        naysayer::family::boxes::COLUMNS
             .iter()
             .position(|c| *c == name)
             .unwrap()

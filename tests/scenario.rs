@@ -9,11 +9,17 @@ use std::path::Path;
 use std::process::Command;
 
 use naysayer::class::{Class, Promise};
-use naysayer::scenario::{Family, Scenario};
+use naysayer::family::boxes::{BoxGrid, BoxKind};
+use naysayer::scenario::Scenario;
 use naysayer::Error;
 use tempfile::TempDir;
 
 const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
+
+/// The grid of a box-family scenario.
+fn box_grid(scenario: &Scenario) -> &BoxGrid {
+    scenario.grid_as::<BoxGrid>().expect("a box family")
+}
 
 /// A valid scenario; line numbers are in the comments of `CASES`.
 const BASE: &str = r#"name = "bad"
@@ -169,9 +175,10 @@ fn base_scenario_is_valid() {
     // Guards the cases below: each differs from a scenario that parses.
     let scenario = Scenario::parse(BASE, Path::new("bad.toml")).unwrap();
     assert_eq!(scenario.name, "bad");
-    assert_eq!(scenario.dims, vec![1, 2, 4]);
-    assert_eq!(scenario.chart_dim, 4);
-    assert_eq!(scenario.chart_accuracy, 1e-3);
+    let grid = box_grid(&scenario);
+    assert_eq!(grid.dims, vec![1, 2, 4]);
+    assert_eq!(grid.chart_dim, 4);
+    assert_eq!(grid.chart_accuracy, 1e-3);
 }
 
 #[test]
@@ -274,23 +281,24 @@ fn valid_scenario_sorts_grids_and_fills_defaults() {
     assert_eq!(s.name, "order");
     assert_eq!(s.description, "Grids given out of order.");
     // Dimensions ascending and distinct, rho descending and distinct (src/scenario.rs).
-    assert_eq!(s.dims, vec![1, 2]);
-    assert_eq!(s.accuracies, vec![1e-1, 1e-2, 1e-3]);
-    assert_eq!(s.half_width, 2.0);
+    let grid = box_grid(&s);
+    assert_eq!(grid.dims, vec![1, 2]);
+    assert_eq!(grid.accuracies, vec![1e-1, 1e-2, 1e-3]);
+    assert_eq!(grid.half_width, 2.0);
     assert_eq!(
-        s.family,
-        Family::Feasibility {
+        grid.kind,
+        BoxKind::Feasibility {
             promise: Promise::Nonempty
         }
     );
     assert_eq!(s.adversary, "halving");
     assert_eq!(s.methods, vec!["random", "midpoint", "ellipsoid"]);
     assert_eq!(s.seeds, vec![7, 3]);
-    assert_eq!(s.budget, 50);
+    assert_eq!(s.budget, Some(50));
     assert!(!s.transcripts);
     // Without [charts]: the largest d and the smallest rho.
-    assert_eq!(s.chart_dim, 2);
-    assert_eq!(s.chart_accuracy, 1e-3);
+    assert_eq!(grid.chart_dim, 2);
+    assert_eq!(grid.chart_accuracy, 1e-3);
     assert_eq!(s.source_text, UNSORTED);
 }
 
@@ -299,8 +307,8 @@ fn promise_defaults_to_may_be_empty() {
     let text = UNSORTED.replace("promise = \"nonempty\"\n", "");
     let s = Scenario::parse(&text, Path::new("order.toml")).unwrap();
     assert_eq!(
-        s.family,
-        Family::Feasibility {
+        box_grid(&s).kind,
+        BoxKind::Feasibility {
             promise: Promise::MayBeEmpty
         }
     );
@@ -328,7 +336,7 @@ fn games_are_in_canonical_order_and_deterministic_methods_play_the_first_seed() 
             (d, rho, "ellipsoid", 7),
         ]);
     }
-    let games = s.games();
+    let games: Vec<_> = s.games().collect();
     let got: Vec<(usize, f64, &str, u64)> = games
         .iter()
         .map(|g| {
@@ -374,10 +382,10 @@ budget = 100
 fn lattice_scenarios_parse_strictly() {
     let path = Path::new("cube.toml");
     let scenario = Scenario::parse(LATTICE, path).unwrap();
-    let games = scenario.games();
+    let games: Vec<_> = scenario.games().collect();
     assert_eq!(games.len(), 6, "3 dimensions x 2 deterministic methods");
     assert!(
-        scenario.accuracies.iter().all(|a| a.is_nan()),
+        box_grid(&scenario).accuracies.iter().all(|a| a.is_nan()),
         "no accuracy"
     );
     let mistakes = [

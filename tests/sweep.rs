@@ -8,8 +8,10 @@ use std::process::{Command, Output, Stdio};
 use std::sync::OnceLock;
 use std::time::{Duration, Instant};
 
+use naysayer::csv::split as split_csv_line;
+use naysayer::family::boxes::COLUMNS;
 use naysayer::scenario::Scenario;
-use naysayer::sweep::{split_csv_line, COLUMNS, TIMING_COLUMNS};
+use naysayer::sweep::TIMING_COLUMNS;
 use tempfile::TempDir;
 
 const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
@@ -172,7 +174,7 @@ fn assert_same_games(got: &Csv, expected: &Csv, what: &str) {
 /// Asserts that the rows are exactly the scenario's games, in canonical order.
 fn assert_canonical(csv: &Csv, scenario_text: &str) {
     let scenario = Scenario::parse(scenario_text, Path::new("s.toml")).unwrap();
-    let games = scenario.games();
+    let games: Vec<_> = scenario.games().collect();
     assert_eq!(csv.rows.len(), games.len(), "one row per game");
     let (dim, rho, method, seed) = (
         column("dim"),

@@ -20,8 +20,8 @@
 
 use std::collections::HashSet;
 
-use crate::adversary::{Adversary, Undecided};
-use crate::class::LatticeClass;
+use crate::adversary::{wrong_family, Adversary, AdversaryInfo, Scope, Undecided};
+use crate::class::{Class, LatticeClass};
 use crate::error::Error;
 use crate::exact::Exact;
 use crate::instance::{FibreBall, LatticeHull, Witness};
@@ -107,6 +107,19 @@ impl Corner {
         (0u64..).find(|i| !self.dead.contains(i))
     }
 }
+
+/// The registry entry (docs/theory.md: see the description).
+pub const INFO: AdversaryInfo = AdversaryInfo {
+    name: "corner",
+    family: "lattice",
+    description: "integer, {0,1}^n: cuts each queried vertex off alone (forces 2^n; ours, \
+                  docs/theory.md §4, every run certified)",
+    scope: Scope::EveryMethod,
+    build: |class| match class {
+        Class::Lattice(c) => Ok(Box::new(Corner::new(c)?)),
+        _ => Err(wrong_family("corner", "lattice")),
+    },
+};
 
 impl Adversary for Corner {
     fn name(&self) -> &str {

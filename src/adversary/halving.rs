@@ -19,8 +19,8 @@
 
 use std::cmp::Ordering;
 
-use crate::adversary::{Adversary, Undecided};
-use crate::class::{FeasibilityClass, Promise};
+use crate::adversary::{wrong_family, Adversary, AdversaryInfo, Scope, Undecided};
+use crate::class::{Class, FeasibilityClass, Promise};
 use crate::exact::{cmp_diff, cmp_sides, Exact};
 use crate::instance::Witness;
 use crate::oracle::{Answer, Cut, Normal};
@@ -118,6 +118,19 @@ impl Halving {
         best
     }
 }
+
+/// The registry entry (docs/theory.md: see the description).
+pub const INFO: AdversaryInfo = AdversaryInfo {
+    name: "halving",
+    family: "feasibility",
+    description: "separation, box: cuts the least-cut axis through the query, keeping \
+                  the larger half (forces d*k + 1 queries; theorem, docs/theory.md §1.1)",
+    scope: Scope::EveryMethod,
+    build: |class| match class {
+        Class::Feasibility(c) => Ok(Box::new(Halving::new(c))),
+        _ => Err(wrong_family("halving", "feasibility")),
+    },
+};
 
 impl Adversary for Halving {
     fn name(&self) -> &str {

@@ -16,8 +16,8 @@
 
 use std::cmp::Ordering;
 
-use crate::adversary::{Adversary, Undecided};
-use crate::class::LatticeClass;
+use crate::adversary::{wrong_family, Adversary, AdversaryInfo, Scope, Undecided};
+use crate::class::{Class, LatticeClass};
 use crate::error::Error;
 use crate::geometry::lattice_split::{best_split, offset_through, side};
 use crate::instance::{FibreBall, LatticeHull, Witness};
@@ -77,6 +77,20 @@ impl LatticeHalf {
         &self.alive
     }
 }
+
+/// The registry entry (docs/theory.md: see the description).
+pub const INFO: AdversaryInfo = AdversaryInfo {
+    name: "lattice-half",
+    family: "lattice",
+    description: "integer, box: cut through the query keeping the most alive lattice \
+                  points it finds, at least (|S| - 1)/2 (forces floor(log2 |S|) + 1; \
+                  docs/theory.md §4)",
+    scope: Scope::EveryMethod,
+    build: |class| match class {
+        Class::Lattice(c) => Ok(Box::new(LatticeHalf::new(c)?)),
+        _ => Err(wrong_family("lattice-half", "lattice")),
+    },
+};
 
 impl Adversary for LatticeHalf {
     fn name(&self) -> &str {

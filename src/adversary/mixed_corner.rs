@@ -52,8 +52,8 @@ use num_rational::BigRational;
 use num_traits::{One, Signed};
 
 use crate::adversary::corner::{cube_face_cut, vertex, vertex_index};
-use crate::adversary::{Adversary, Halving, Undecided};
-use crate::class::{FeasibilityClass, LatticeClass, Promise};
+use crate::adversary::{wrong_family, Adversary, AdversaryInfo, Halving, Scope, Undecided};
+use crate::class::{Class, FeasibilityClass, LatticeClass, Promise};
 use crate::error::Error;
 use crate::exact::{cmp_diff, f64_to_rational, two_diff, Exact};
 use crate::instance::{FibreBall, LatticeHull, Witness};
@@ -387,6 +387,20 @@ fn lambda_estimate(x: &[f64], z: &[i64]) -> f64 {
         .sum::<f64>()
         .max(f64::MIN_POSITIVE)
 }
+
+/// The registry entry (docs/theory.md: see the description).
+pub const INFO: AdversaryInfo = AdversaryInfo {
+    name: "mixed-corner",
+    family: "lattice",
+    description: "mixed-integer, {0,1}^n x [-R,R]^d: box halving per vertex fibre with \
+                  exact lifted cuts (forces 2^n (d k + 1); ours, docs/theory.md §4, every run \
+                  certified)",
+    scope: Scope::EveryMethod,
+    build: |class| match class {
+        Class::Lattice(c) => Ok(Box::new(MixedCorner::new(c)?)),
+        _ => Err(wrong_family("mixed-corner", "lattice")),
+    },
+};
 
 impl Adversary for MixedCorner {
     fn name(&self) -> &str {

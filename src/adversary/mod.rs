@@ -7,18 +7,21 @@
 //! certified per run") it relies on, and register it in [`ADVERSARIES`] and [`build`].
 
 pub mod corner;
+pub mod fixed_function;
 pub mod halving;
 pub mod instance_oracle;
 pub mod lattice_half;
 pub mod mixed_corner;
 pub mod orthant;
+pub mod rotation;
+pub mod rotation_chain;
 
 use serde::{Deserialize, Serialize};
 
 use crate::class::Class;
 use crate::error::Error;
 use crate::oracle::Answer;
-use crate::transcript::Witnesses;
+use crate::transcript::{Demonstration, Witnesses};
 
 pub use halving::Halving;
 
@@ -34,6 +37,10 @@ pub enum Undecided {
     /// log2 of the mixed-integer measure: the sum over integer fibres of the alive
     /// fibre volume (docs/theory.md §4).
     Log2MixedMeasure(f64),
+    /// The directions an adaptive-rotation adversary still hides (docs/theory.md §3).
+    HiddenDirections(f64),
+    /// The adversary keeps no measure (a fixed function answering as an oracle).
+    Unmeasured,
 }
 
 impl Undecided {
@@ -42,7 +49,9 @@ impl Undecided {
         match self {
             Undecided::Log2Volume(v)
             | Undecided::AlivePoints(v)
-            | Undecided::Log2MixedMeasure(v) => *v,
+            | Undecided::Log2MixedMeasure(v)
+            | Undecided::HiddenDirections(v) => *v,
+            Undecided::Unmeasured => f64::NAN,
         }
     }
 }
@@ -65,63 +74,87 @@ pub trait Adversary {
     fn witnesses(&self) -> Option<Witnesses>;
     /// How much is still undecided.
     fn undecided(&self) -> Undecided;
+    /// The most queries it can answer, when it is built for a horizon (the game loop
+    /// refuses a larger budget before the first query); `None` (the default): no limit.
+    fn capacity(&self) -> Option<u64> {
+        None
+    }
+    /// What the adversary hands over when the game ends, given the method's output point
+    /// (if it gave one): its witnesses for the certificate (the default), or, for the
+    /// large-scale demonstrations, the completed function and the gap.
+    fn conclude(&mut self, output: Option<&[f64]>) -> Result<Conclusion, Error> {
+        let _ = output;
+        Ok(Conclusion::Certificate(self.witnesses()))
+    }
 }
 
-/// A registered adversary: its name and a one-line description.
+/// What an adversary hands over at the end of a game.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Conclusion {
+    /// Witnesses for the exact verifier (`None` when no prefix is certifiable).
+    Certificate(Option<Witnesses>),
+    /// A published-theorem demonstration, checked to a stated tolerance.
+    Demonstration(Demonstration),
+}
+
+/// Which methods an adversary's bound binds.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Scope {
+    /// Every method (the adversary answers adaptively; a randomized method run by run).
+    EveryMethod,
+    /// Span methods only: a fixed function, whose bound holds for methods whose iterates
+    /// stay in x_0 plus the span of the past gradients (docs/theory.md §3).
+    SpanMethods,
+}
+
+/// A registered adversary.
 pub struct AdversaryInfo {
     /// Name used on the command line and in files.
     pub name: &'static str,
+    /// The family of classes it plays (`feasibility`, `first-order`, `lattice`,
+    /// `large-scale`).
+    pub family: &'static str,
     /// One line: what it does and what it proves.
     pub description: &'static str,
+    /// Which methods its bound binds.
+    pub scope: Scope,
+    /// Builds it for a class of its family.
+    pub build: fn(&Class) -> Result<Box<dyn Adversary + Send>, Error>,
 }
 
-/// Every registered adversary.
+/// Every registered adversary. To add one: write `src/adversary/<name>.rs` with its
+/// type and an `INFO` entry, and list the entry here.
 pub const ADVERSARIES: &[AdversaryInfo] = &[
-    AdversaryInfo {
-        name: "halving",
-        description: "separation, box: cuts the least-cut axis through the query, keeping \
-                      the larger half (forces d*k + 1 queries; theorem, docs/theory.md §1.1)",
-    },
-    AdversaryInfo {
-        name: "orthant",
-        description:
-            "first-order, box: nested orthant levels revealing one sign per query \
-                      (ours, docs/theory.md §2.3; every run certified by the universal certificate)",
-    },
-    AdversaryInfo {
-        name: "lattice-half",
-        description: "integer, box: cut through the query keeping the most alive lattice \
-                      points it finds, at least (|S| - 1)/2 (forces floor(log2 |S|) + 1; \
-                      docs/theory.md §4)",
-    },
-    AdversaryInfo {
-        name: "corner",
-        description: "integer, {0,1}^n: cuts each queried vertex off alone (forces 2^n; ours, \
-                      docs/theory.md §4, every run certified)",
-    },
-    AdversaryInfo {
-        name: "mixed-corner",
-        description: "mixed-integer, {0,1}^n x [-R,R]^d: box halving per vertex fibre with \
-                      exact lifted cuts (forces 2^n (d k + 1); ours, docs/theory.md §4, every run \
-                      certified)",
-    },
+    halving::INFO,
+    orthant::INFO,
+    lattice_half::INFO,
+    corner::INFO,
+    mixed_corner::INFO,
+    rotation::INFO,
+    rotation_chain::INFO,
+    fixed_function::DRORI_TEBOULLE,
+    fixed_function::NESTEROV_NONSMOOTH,
+    fixed_function::SMOOTH_CHAIN,
+    fixed_function::STRONGLY_CONVEX_CHAIN,
 ];
+
+/// The registry entry called `name`.
+pub fn info(name: &str) -> Option<&'static AdversaryInfo> {
+    ADVERSARIES.iter().find(|a| a.name == name)
+}
 
 /// Builds the adversary `name` for `class`.
 pub fn build(name: &str, class: &Class) -> Result<Box<dyn Adversary + Send>, Error> {
-    match (name, class) {
-        ("halving", Class::Feasibility(c)) => Ok(Box::new(Halving::new(c))),
-        ("orthant", Class::FirstOrder(c)) => Ok(Box::new(orthant::Orthant::new(
-            c,
-            orthant::OrthantSettings::default(),
-        )?)),
-        ("lattice-half", Class::Lattice(c)) => Ok(Box::new(lattice_half::LatticeHalf::new(c)?)),
-        ("corner", Class::Lattice(c)) => Ok(Box::new(corner::Corner::new(c)?)),
-        ("mixed-corner", Class::Lattice(c)) => Ok(Box::new(mixed_corner::MixedCorner::new(c)?)),
-        _ if ADVERSARIES.iter().any(|a| a.name == name) => Err(Error::Unsupported {
-            what: format!("adversary {name:?}"),
-            reason: "wrong class".into(),
-        }),
-        _ => Err(Error::UnknownAdversary { name: name.into() }),
+    match info(name) {
+        Some(entry) => (entry.build)(class),
+        None => Err(Error::UnknownAdversary { name: name.into() }),
+    }
+}
+
+/// The error for an adversary built for a class of another family.
+pub(crate) fn wrong_family(name: &str, family: &str) -> Error {
+    Error::Unsupported {
+        what: format!("adversary {name:?}"),
+        reason: format!("it plays the {family} family (pass --class {family})"),
     }
 }

@@ -62,9 +62,9 @@ use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{One, Signed, ToPrimitive, Zero};
 
-use crate::adversary::{Adversary, Undecided};
+use crate::adversary::{wrong_family, Adversary, AdversaryInfo, Scope, Undecided};
 use crate::certificate::universal;
-use crate::class::FirstOrderClass;
+use crate::class::{Class, FirstOrderClass};
 use crate::error::Error;
 use crate::exact::{f64_to_rational, nearest_f64, two_diff, Exact};
 use crate::oracle::{Answer, FirstOrderAnswer};
@@ -728,6 +728,20 @@ impl Orthant {
         best.expect("at least one candidate")
     }
 }
+
+/// The registry entry (docs/theory.md: see the description).
+pub const INFO: AdversaryInfo = AdversaryInfo {
+    name: "orthant",
+    family: "first-order",
+    description: "first-order, box: nested orthant levels revealing one sign per query \
+                  (ours, docs/theory.md §2.3: no proven count, and it leaks (Kelley finds \
+                  minimisers early); kept for comparison, every run certified)",
+    scope: Scope::EveryMethod,
+    build: |class| match class {
+        Class::FirstOrder(c) => Ok(Box::new(Orthant::new(c, OrthantSettings::default())?)),
+        _ => Err(wrong_family("orthant", "first-order")),
+    },
+};
 
 impl Adversary for Orthant {
     fn name(&self) -> &str {

@@ -248,6 +248,12 @@ fn class_verifier(
                 final_line,
             )?))
         }
+        Class::LargeScale(_) => Err(header_error(
+            "a large-scale transcript is a demonstration, not a certificate (docs/theory.md \
+             §3): its numbers are checked to a stated tolerance, never exactly, so `check` \
+             refuses it"
+                .into(),
+        )),
     }
 }
 

@@ -209,6 +209,40 @@ impl LargeScaleClass {
     }
 }
 
+/// Largest horizon T accepted.
+pub const MAX_HORIZON: u64 = 10_000_000;
+
+/// A large-scale class played at a horizon: the function class and the number of
+/// queries T the game lasts. Methods are told T (they plan their steps for it), the
+/// budget is T, and the bound curves are evaluated at T (docs/theory.md §3).
+///
+/// On disk: `{"kind":"large-scale","function":{"kind":"nonsmooth",...},"horizon":T}`.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LargeScale {
+    /// The function class (and its dimension).
+    pub function: LargeScaleClass,
+    /// The horizon T: the number of queries of the game.
+    pub horizon: u64,
+}
+
+impl LargeScale {
+    /// Validates the horizon (1 <= T <= [`MAX_HORIZON`]).
+    pub fn new(function: LargeScaleClass, horizon: u64) -> Result<LargeScale, Error> {
+        if horizon == 0 || horizon > MAX_HORIZON {
+            return Err(Error::InvalidClass {
+                reason: format!("horizon T = {horizon} must be between 1 and {MAX_HORIZON}"),
+            });
+        }
+        Ok(LargeScale { function, horizon })
+    }
+
+    /// One line describing the class and the horizon.
+    pub fn describe(&self) -> String {
+        format!("{}; horizon T = {}", self.function.describe(), self.horizon)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

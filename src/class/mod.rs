@@ -13,7 +13,7 @@ use serde::{Deserialize, Serialize};
 use crate::error::Error;
 
 pub use first_order::{FirstOrderClass, LipschitzNorm};
-pub use large_scale::LargeScaleClass;
+pub use large_scale::{LargeScale, LargeScaleClass};
 pub use lattice::LatticeClass;
 
 /// Largest half-width accepted, so that sums and differences of box coordinates and
@@ -114,6 +114,8 @@ pub enum Class {
     FirstOrder(FirstOrderClass),
     /// Separation-oracle feasibility over Z^n x R^d (integer and mixed-integer).
     Lattice(LatticeClass),
+    /// A large-scale first-order class at a horizon T (demonstrations, docs/theory.md §3).
+    LargeScale(LargeScale),
 }
 
 impl Class {
@@ -123,6 +125,18 @@ impl Class {
             Class::Feasibility(c) => c.dim,
             Class::FirstOrder(c) => c.dim,
             Class::Lattice(c) => c.query_dim(),
+            Class::LargeScale(c) => c.function.dim(),
+        }
+    }
+
+    /// The name of the family the class belongs to, as scenario files and `--class`
+    /// spell it: `feasibility`, `first-order`, `lattice` or `large-scale`.
+    pub fn family_name(&self) -> &'static str {
+        match self {
+            Class::Feasibility(_) => "feasibility",
+            Class::FirstOrder(_) => "first-order",
+            Class::Lattice(_) => "lattice",
+            Class::LargeScale(_) => "large-scale",
         }
     }
 }

@@ -24,8 +24,5 @@ pub fn run(args: &ChartArgs) -> Result<u8, Error> {
 
 /// Draws every chart of a results folder; returns the PNG paths.
 pub fn draw_all(folder: &Path) -> Result<Vec<PathBuf>, Error> {
-    if crate::scenario::read_large_scale(&folder.join("scenario.toml"))?.is_some() {
-        return crate::large_scale::sweep::draw_all(folder);
-    }
     crate::gallery::draw_all(folder)
 }

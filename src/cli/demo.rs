@@ -11,9 +11,11 @@ use clap::Args;
 use crate::bounds::feasibility_bounds;
 use crate::class::{FeasibilityClass, Promise};
 use crate::cli::{EXIT_OK, EXIT_REJECTED};
+use crate::csv::split as split_csv_line;
 use crate::error::Error;
+use crate::family::boxes::COLUMNS;
 use crate::scenario::Scenario;
-use crate::sweep::{self, split_csv_line, SweepSettings, COLUMNS};
+use crate::sweep::{self, SweepSettings};
 
 /// The embedded default scenario.
 pub const DEMO_SCENARIO: &str = include_str!("../../adversaries/demo.toml");

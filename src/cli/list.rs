@@ -1,29 +1,37 @@
-//! `naysayer list`: the built-in methods and adversaries.
+//! `naysayer list`: the families, the built-in methods and the adversaries.
 
-use crate::adversary::ADVERSARIES;
+use crate::adversary::{Scope, ADVERSARIES};
 use crate::cli::EXIT_OK;
 use crate::error::Error;
+use crate::family::{Evidence, FAMILIES};
 use crate::method::METHODS;
 
 /// Runs `list`.
 pub fn run() -> Result<u8, Error> {
-    println!("methods:");
-    for m in METHODS {
-        let kind = if m.deterministic { "" } else { " (seeded)" };
-        println!("  {:<18} {}{kind}", m.name, m.description);
+    println!("families (--class, or class.family in a scenario):");
+    for f in FAMILIES {
+        let evidence = match f.evidence() {
+            Evidence::Certificate => "games end in certificates, checked exactly",
+            Evidence::Demonstration => {
+                "games end in demonstrations, checked to a stated tolerance (not certificates)"
+            }
+        };
+        println!("  {:<26} {evidence}", f.name());
     }
-    println!("adversaries:");
-    for a in ADVERSARIES {
-        println!("  {:<18} {}", a.name, a.description);
-    }
-    println!("large-scale methods (docs/theory.md §3; scenario family \"large-scale\"):");
-    for m in crate::method::large_scale::LARGE_SCALE_METHODS {
-        let kind = if m.deterministic { "" } else { " (seeded)" };
-        println!("  {:<18} {}{kind}", m.name, m.description);
-    }
-    println!("large-scale oracles (demonstrations, not certificates):");
-    for o in crate::large_scale::game::ORACLES {
-        println!("  {:<22} {}", o.name, o.description);
+    for f in FAMILIES {
+        println!("{} methods:", f.name());
+        for m in METHODS.iter().filter(|m| m.families.contains(&f.name())) {
+            let kind = if m.deterministic { "" } else { " (seeded)" };
+            println!("  {:<26} {}{kind}", m.name, m.description);
+        }
+        println!("{} adversaries:", f.name());
+        for a in ADVERSARIES.iter().filter(|a| a.family == f.name()) {
+            let scope = match a.scope {
+                Scope::EveryMethod => "",
+                Scope::SpanMethods => " (binds span methods only)",
+            };
+            println!("  {:<26} {}{scope}", a.name, a.description);
+        }
     }
     Ok(EXIT_OK)
 }

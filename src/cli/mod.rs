@@ -117,6 +117,88 @@ pub enum Family {
     /// Integer and mixed-integer feasibility (docs/theory.md §4): --int-dim, --int-lower,
     /// --int-upper, --cont-dim, with --half-width and --rho for the continuous part.
     Lattice,
+    /// Large-scale first-order demonstrations (docs/theory.md §3): --kind, --horizon,
+    /// --radius, --lipschitz (nonsmooth), --smoothness, --strong-convexity, with -d.
+    LargeScale,
+}
+
+/// Parameters of the large-scale classes (docs/theory.md §3), as raw arguments.
+#[derive(Debug, Clone, Args)]
+pub struct LargeScaleArgs {
+    /// Large-scale class: nonsmooth (uses --lipschitz), smooth or strongly-convex.
+    #[arg(long, default_value = "nonsmooth", value_parser = ["nonsmooth", "smooth", "strongly-convex"])]
+    pub kind: String,
+    /// Horizon T of a large-scale game: its number of queries (and the methods' plan).
+    #[arg(long, default_value_t = 100)]
+    pub horizon: u64,
+    /// R >= ||x_0 - x*|| (large-scale classes).
+    #[arg(long, default_value_t = 1.0)]
+    pub radius: f64,
+    /// Smoothness beta (smooth and strongly-convex large-scale classes).
+    #[arg(long, default_value_t = 1.0)]
+    pub smoothness: f64,
+    /// Strong convexity mu (strongly-convex large-scale class), 0 < mu < beta.
+    #[arg(long = "strong-convexity", default_value_t = 0.01)]
+    pub strong_convexity: f64,
+}
+
+impl LargeScaleArgs {
+    /// Validates into a large-scale class at its horizon, with d from `shape` and M from
+    /// `first_order`.
+    pub fn to_class(
+        &self,
+        shape: &ClassArgs,
+        first_order: &FirstOrderArgs,
+    ) -> Result<crate::class::LargeScale, Error> {
+        use crate::class::LargeScaleClass;
+        let d = shape.dim;
+        let function = match self.kind.as_str() {
+            "nonsmooth" => LargeScaleClass::nonsmooth(d, first_order.lipschitz, self.radius)?,
+            "smooth" => LargeScaleClass::smooth(d, self.smoothness, self.radius)?,
+            _ => LargeScaleClass::strongly_convex(
+                d,
+                self.smoothness,
+                self.strong_convexity,
+                self.radius,
+            )?,
+        };
+        crate::class::LargeScale::new(function, self.horizon)
+    }
+}
+
+/// The class a command plays: the family and every family's parameters (only the
+/// chosen family's are used).
+#[derive(Debug, Clone, Args)]
+pub struct ClassSelection {
+    /// The family of classes.
+    #[arg(long = "class", value_enum, default_value_t = Family::Feasibility)]
+    pub family: Family,
+    /// The class's dimension, box and separation accuracy.
+    #[command(flatten)]
+    pub shape: ClassArgs,
+    /// First-order parameters.
+    #[command(flatten)]
+    pub first_order: FirstOrderArgs,
+    /// Lattice class parameters (`--class lattice`).
+    #[command(flatten)]
+    pub lattice: crate::cli::minimax::LatticeArgs,
+    /// Large-scale class parameters (`--class large-scale`).
+    #[command(flatten)]
+    pub large_scale: LargeScaleArgs,
+}
+
+impl ClassSelection {
+    /// Validates into a class.
+    pub fn to_class(&self) -> Result<Class, Error> {
+        Ok(match self.family {
+            Family::Feasibility => Class::Feasibility(self.shape.to_class()?),
+            Family::FirstOrder => Class::FirstOrder(self.first_order.to_class(&self.shape)?),
+            Family::Lattice => Class::Lattice(self.lattice.to_class(&self.shape)?),
+            Family::LargeScale => {
+                Class::LargeScale(self.large_scale.to_class(&self.shape, &self.first_order)?)
+            }
+        })
+    }
 }
 
 /// First-order class parameters, as raw arguments.
@@ -236,6 +318,7 @@ pub fn describe_class(class: &Class) -> String {
             eps = c.eps
         ),
         Class::Lattice(c) => c.describe(),
+        Class::LargeScale(c) => c.describe(),
     }
 }
 

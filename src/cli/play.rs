@@ -8,13 +8,14 @@ use crate::bounds::halving_lower_bound;
 use crate::certificate::{Outcome, Verdict};
 use crate::class::Class;
 use crate::cli::{
-    describe_class, ClassArgs, Family, FirstOrderArgs, PathArg, EXIT_METHOD_FAILED, EXIT_OK,
-    EXIT_REJECTED,
+    describe_class, ClassSelection, PathArg, EXIT_METHOD_FAILED, EXIT_OK, EXIT_REJECTED,
 };
 use crate::error::Error;
-use crate::method::external::ExternalSettings;
-use crate::runner::{self, GameSpec, Report};
-use crate::transcript::Ending;
+use crate::family::{self, GameReport};
+use crate::method::external::{ExternalMethod, ExternalSettings};
+use crate::method::Method;
+use crate::runner::{DemoReport, GameSpec, Report};
+use crate::transcript::{Ending, Flush};
 
 /// Arguments of `naysayer play`.
 #[derive(Debug, Args)]
@@ -22,24 +23,17 @@ pub struct PlayArgs {
     /// Built-in method (see `naysayer list`).
     #[arg(short, long, default_value = "midpoint")]
     pub method: String,
-    /// Adversary (see `naysayer list`; default: halving, or orthant for first-order).
+    /// Adversary (see `naysayer list`; default: the family's, for example halving for
+    /// feasibility, rotation or rotation-chain for large-scale).
     #[arg(short, long)]
     pub adversary: Option<String>,
-    /// The family of classes.
-    #[arg(long = "class", value_enum, default_value_t = Family::Feasibility)]
-    pub family: Family,
-    /// The class's dimension, box and separation accuracy.
+    /// The class: family and parameters.
     #[command(flatten)]
-    pub class: ClassArgs,
-    /// First-order parameters.
-    #[command(flatten)]
-    pub first_order: FirstOrderArgs,
-    /// Lattice class parameters (`--class lattice`).
-    #[command(flatten)]
-    pub lattice: crate::cli::minimax::LatticeArgs,
-    /// Most queries the method may ask.
-    #[arg(long, default_value_t = 1_000_000)]
-    pub budget: u64,
+    pub class: ClassSelection,
+    /// Most queries the method may ask (default 10^6; a large-scale game lasts its
+    /// horizon).
+    #[arg(long)]
+    pub budget: Option<u64>,
     /// Seed of randomized methods.
     #[arg(long, default_value_t = 0)]
     pub seed: u64,
@@ -99,31 +93,22 @@ impl ExecArgs {
 
 /// Runs `play`.
 pub fn run(args: &PlayArgs) -> Result<u8, Error> {
-    let (class, default_adversary) = match args.family {
-        Family::Feasibility => (Class::Feasibility(args.class.to_class()?), "halving"),
-        Family::FirstOrder => (
-            Class::FirstOrder(args.first_order.to_class(&args.class)?),
-            "orthant",
-        ),
-        Family::Lattice => {
-            let class = args.lattice.to_class(&args.class)?;
-            let adversary = if class.cont_dim == 0 {
-                "corner"
-            } else {
-                "mixed-corner"
-            };
-            (Class::Lattice(class), adversary)
-        }
+    let class = args.class.to_class()?;
+    let family = family::of(&class);
+    let budget = match (&class, args.budget) {
+        (Class::LargeScale(c), None) => c.horizon,
+        (_, Some(b)) => b,
+        (_, None) => 1_000_000,
     };
     let spec = GameSpec {
-        class,
         adversary: args
             .adversary
             .clone()
-            .unwrap_or_else(|| default_adversary.to_string()),
+            .unwrap_or_else(|| family.default_adversary(&class).to_string()),
+        class,
         method: args.method.clone(),
         seed: args.seed,
-        budget: args.budget,
+        budget,
         transcript: args.transcript.clone(),
     };
     if !args.exec.exec && !args.exec.command.is_empty() {
@@ -136,19 +121,41 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
     if let Some(path) = &args.expect {
         crate::expect::Expectations::from_file(path)?;
     }
-    let report = if args.exec.exec {
+    let (mut method, flush): (Box<dyn Method + Send>, Flush) = if args.exec.exec {
         let settings = args.exec.to_settings()?;
-        runner::run_external(&spec, &args.exec.command, &settings)?
+        (
+            Box::new(ExternalMethod::new(
+                &args.exec.command,
+                &spec.class,
+                spec.budget,
+                spec.seed,
+                settings,
+            )?),
+            Flush::EveryRecord,
+        )
     } else {
-        runner::run(&spec)?
+        (
+            crate::method::build(&spec.method, &spec.class, spec.seed)?,
+            Flush::Periodic,
+        )
     };
-    print!("{}", summary(&spec, &report));
-    if let Ending::MethodFailed { reason } = &report.record.ending {
+    let report = family::play(&spec, method.as_mut(), flush)?;
+    let (ending, accepted) = match &report {
+        GameReport::Certificate(r) => {
+            print!("{}", summary(&spec, r));
+            (&r.record.ending, r.verdict.is_ok())
+        }
+        GameReport::Demonstration(r) => {
+            print!("{}", demonstration_summary(&spec, r));
+            (&r.record.ending, report.accepted())
+        }
+    };
+    if let Ending::MethodFailed { reason } = ending {
         eprintln!("naysayer: method failed: {reason}");
     }
-    let code = match (&report.verdict, &report.record.ending) {
-        (Err(_), _) => EXIT_REJECTED,
-        (Ok(_), Ending::MethodFailed { .. }) => EXIT_METHOD_FAILED,
+    let code = match (accepted, ending) {
+        (false, _) => EXIT_REJECTED,
+        (true, Ending::MethodFailed { .. }) => EXIT_METHOD_FAILED,
         _ => EXIT_OK,
     };
     match &args.expect {
@@ -195,6 +202,65 @@ pub fn queries_used_text(queries_used: u64, censored: bool) -> String {
     } else {
         queries_used.to_string()
     }
+}
+
+fn demonstration_summary(spec: &GameSpec, report: &DemoReport) -> String {
+    let mut out = String::new();
+    out.push_str(&format!(
+        "class                  {}\n",
+        describe_class(&spec.class)
+    ));
+    out.push_str(&format!(
+        "method                 {}\n",
+        report.header.method
+    ));
+    out.push_str(&format!("adversary              {}\n", spec.adversary));
+    let censored = matches!(report.record.ending, Ending::BudgetExhausted);
+    out.push_str(&format!(
+        "queries used           {}\n",
+        queries_used_text(report.record.queries_used, censored)
+    ));
+    match &report.judgement {
+        Ok(v) => {
+            let gap = v
+                .gap
+                .map_or("undefined (no output)".to_string(), |g| format!("{g:e}"));
+            out.push_str(&format!("gap                    {gap}\n"));
+            out.push_str(&format!(
+                "lower curve            {:e} at T = {} ({}; docs/theory.md §3)\n",
+                v.lower_bound,
+                spec.budget,
+                if v.claimed {
+                    "claimed for this game"
+                } else {
+                    "not claimed: a published instance binds span methods only"
+                }
+            ));
+            if let Some(u) = v.upper_bound {
+                out.push_str(&format!("method's upper curve   {u:e}\n"));
+            }
+            let holds = match v.holds {
+                Some(true) => "the gap is at least the lower curve",
+                Some(false) => "the gap is BELOW the lower curve",
+                None => "no gap to compare",
+            };
+            out.push_str(&format!(
+                "demonstration          {holds} (relative tolerance {:e}; {} answers replayed; \
+                 a demonstration, not a certificate)\n",
+                report
+                    .record
+                    .demonstration
+                    .as_ref()
+                    .map_or(0.0, |d| d.tolerance),
+                v.replayed
+            ));
+        }
+        Err(e) => out.push_str(&format!("demonstration          REFUSED: {e}\n")),
+    }
+    if let Some(path) = &spec.transcript {
+        out.push_str(&format!("transcript             {}\n", path.display()));
+    }
+    out
 }
 
 fn summary(spec: &GameSpec, report: &Report) -> String {

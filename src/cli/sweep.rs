@@ -6,6 +6,7 @@ use clap::Args;
 
 use crate::cli::{EXIT_OK, EXIT_REJECTED};
 use crate::error::Error;
+use crate::family::Evidence;
 use crate::scenario::Scenario;
 use crate::sweep::{self, Shard, SweepSettings};
 
@@ -45,15 +46,10 @@ pub struct MergeArgs {
 
 /// Runs `sweep`.
 pub fn run(args: &SweepArgs) -> Result<u8, Error> {
-    // Validate every scenario before playing any; large-scale scenarios (docs/theory.md §3)
-    // are demonstrations with their own sweep.
-    let mut large_scale = Vec::new();
+    // Validate every scenario (and the expectations) before playing any game.
     let mut scenarios = Vec::new();
     for path in &args.scenarios {
-        match crate::scenario::read_large_scale(path)? {
-            Some(s) => large_scale.push(s),
-            None => scenarios.push(Scenario::from_file(path)?),
-        }
+        scenarios.push(Scenario::from_file(path)?);
     }
     if let Some(path) = &args.expect {
         crate::expect::Expectations::from_file(path)?;
@@ -68,53 +64,40 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
         progress: true,
     };
     let mut code = EXIT_OK;
-    for scenario in &large_scale {
-        if args.shard.is_some() {
-            return Err(Error::Unsupported {
-                what: format!("scenario {:?}", scenario.name),
-                reason: "large-scale sweeps are small and have no shards".into(),
-            });
-        }
-        let summary = crate::large_scale::sweep::run(scenario, &args.out, settings.jobs)?;
-        println!(
-            "{}: {} demonstration games -> {}",
-            scenario.name,
-            summary.games,
-            summary.csv.display()
-        );
-        if summary.broken > 0 {
-            println!(
-                "{}: {} games fell below a claimed lower curve (see the holds column)",
-                scenario.name, summary.broken
-            );
-            code = EXIT_REJECTED;
-        }
-        if !args.no_charts {
-            crate::cli::chart::draw_all(&args.out.join(&scenario.name))?;
-        }
-    }
     for scenario in &scenarios {
         let summary = sweep::run(scenario, &settings)?;
         if args.expect.is_some() {
             results.extend(crate::expect::GameResult::from_csv(&summary.csv)?);
         }
+        let demonstration = scenario.grid.family().evidence() == Evidence::Demonstration;
         println!(
-            "{}: {} games ({} resumed, {} played) -> {}",
+            "{}: {} {}games ({} resumed, {} played) -> {}",
             scenario.name,
             summary.games,
+            if demonstration { "demonstration " } else { "" },
             summary.resumed,
             summary.played,
             summary.csv.display()
         );
         if summary.rejected > 0 {
-            println!(
-                "{}: {} certificates REJECTED by the verifier (see the outcome column)",
-                scenario.name, summary.rejected
-            );
+            if demonstration {
+                println!(
+                    "{}: {} games fell below a claimed lower curve or were refused by the \
+                     judge (see the holds and outcome columns)",
+                    scenario.name, summary.rejected
+                );
+            } else {
+                println!(
+                    "{}: {} certificates REJECTED by the verifier (see the outcome column)",
+                    scenario.name, summary.rejected
+                );
+            }
             code = EXIT_REJECTED;
         }
         if !args.no_charts && args.shard.is_none() {
-            crate::cli::chart::draw_all(&scenario.results_dir(&args.out))?;
+            scenario
+                .grid
+                .draw_charts(&scenario.results_dir(&args.out), scenario)?;
         }
     }
     match &args.expect {

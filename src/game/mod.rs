@@ -8,7 +8,7 @@ mod observers;
 
 pub use observers::UndecidedTrace;
 
-use crate::adversary::Adversary;
+use crate::adversary::{Adversary, Conclusion};
 use crate::error::Error;
 use crate::method::Method;
 use crate::oracle::{Answer, Output, Step};
@@ -66,6 +66,19 @@ pub fn play(
     settings: &GameSettings,
     observers: &mut [&mut dyn Observer],
 ) -> Result<FinalRecord, Error> {
+    if let Some(capacity) = adversary.capacity() {
+        if settings.budget > capacity {
+            return Err(Error::InvalidSetting {
+                name: "budget",
+                reason: format!(
+                    "the adversary {} is built for at most {capacity} queries (its horizon), \
+                     but the budget is {}",
+                    adversary.name(),
+                    settings.budget
+                ),
+            });
+        }
+    }
     for observer in observers.iter_mut() {
         observer.on_start(header)?;
     }
@@ -99,6 +112,15 @@ pub fn play(
                     };
                 }
                 let answer = adversary.answer(&query);
+                if !answer.is_finite() {
+                    // Only a query of enormous norm overflows an `f64` evaluation.
+                    break Ending::MethodFailed {
+                        reason: format!(
+                            "query {} is so large that the answer overflows f64",
+                            used + 1
+                        ),
+                    };
+                }
                 used += 1;
                 for observer in observers.iter_mut() {
                     observer.on_query(used, &query, &answer, &*adversary)?;
@@ -111,10 +133,21 @@ pub fn play(
             }
         }
     };
+    let output = match &ending {
+        Ending::Output {
+            output: Output::Point { point },
+        } => Some(point.as_slice()),
+        _ => None,
+    };
+    let (certificate, demonstration) = match adversary.conclude(output)? {
+        Conclusion::Certificate(witnesses) => (witnesses, None),
+        Conclusion::Demonstration(demonstration) => (None, Some(demonstration)),
+    };
     let record = FinalRecord {
         queries_used: used,
         ending,
-        certificate: adversary.witnesses(),
+        certificate,
+        demonstration,
     };
     for observer in observers.iter_mut() {
         observer.on_finish(&record)?;

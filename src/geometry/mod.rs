@@ -5,6 +5,7 @@
 //! lives with them; the verifier ([`crate::certificate`]) depends on nothing here but
 //! the LP front end.
 
+pub mod basis;
 pub mod boxes;
 pub mod hit_and_run;
 pub mod lattice_split;

@@ -5,6 +5,7 @@
 //! adversary.
 
 pub mod function;
+pub mod large_scale;
 pub mod lattice;
 
 use num_rational::BigRational;

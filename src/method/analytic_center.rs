@@ -37,11 +37,11 @@
 
 use nalgebra::{DMatrix, DVector};
 
-use crate::class::{FeasibilityClass, FirstOrderClass};
+use crate::class::{Class, FeasibilityClass, FirstOrderClass};
 use crate::error::Error;
 use crate::geometry::polytope::{dot, Polytope};
 use crate::method::cut_model::{CutModel, Start};
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Step};
 
 const NAME: &str = "analytic-center";
@@ -272,6 +272,25 @@ impl Method for AnalyticCenter {
         self.model.observe(NAME, query, answer)
     }
 }
+
+/// The registry entry of `analytic-center`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "analytic-center",
+    description: "analytic centre of its polytope model by damped Newton (ACCPM; \
+                  Goffin & Vial 2002, Optim. Methods Softw. 17)",
+    deterministic: true,
+    span: false,
+    families: &["feasibility", "first-order"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::Feasibility(c) => Ok(Box::new(AnalyticCenter::new(c)?)),
+        Class::FirstOrder(c) => Ok(Box::new(AnalyticCenter::first_order(c)?)),
+        _ => Err(wrong_family(
+            "analytic-center",
+            &["feasibility", "first-order"],
+        )),
+    },
+};
 
 #[cfg(test)]
 mod tests {

@@ -21,12 +21,12 @@
 //! leaves the model unchanged (outward rounding swallowed it), the method stops with
 //! [`crate::error::Error::MethodFailed`] rather than repeat a query or claim anything.
 
-use crate::class::FeasibilityClass;
+use crate::class::{Class, FeasibilityClass};
 use crate::error::Error;
 use crate::geometry::polygon::Polygon;
 use crate::geometry::polytope::{Halfspace, Polytope};
 use crate::method::cut_model::{CutModel, Start};
-use crate::method::{blame, unchanged, Method};
+use crate::method::{blame, unchanged, wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Separation, Step};
 
 const NAME: &str = "centroid";
@@ -124,6 +124,32 @@ impl Method for Centroid {
         Ok(())
     }
 }
+
+/// Restriction of `centroid`: its exact centre of gravity exists for d <= 2 only.
+fn centroid_dimension(class: &Class) -> Result<(), String> {
+    if class.query_dim() > 2 {
+        return Err(format!(
+            "centroid is exact only in d <= 2 (d = {}); use sampled-centroid",
+            class.query_dim()
+        ));
+    }
+    Ok(())
+}
+
+/// The registry entry of `centroid`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "centroid",
+    description: "exact centre of gravity of its polytope model, d <= 2 (Levin 1965; \
+                  Newman 1965; Grunbaum 1960)",
+    deterministic: true,
+    span: false,
+    families: &["feasibility"],
+    restriction: Some(centroid_dimension),
+    build: |class, _seed| match class {
+        Class::Feasibility(c) => Ok(Box::new(Centroid::new(c)?)),
+        _ => Err(wrong_family("centroid", &["feasibility"])),
+    },
+};
 
 #[cfg(test)]
 mod tests {

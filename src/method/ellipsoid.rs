@@ -34,11 +34,11 @@
 //! eps-optimal point remains in E beyond the best one). It never answers "empty".
 
 use crate::bounds::ellipsoid_log_volume_ratio;
-use crate::class::{FeasibilityClass, FirstOrderClass, Promise};
+use crate::class::{Class, FeasibilityClass, FirstOrderClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
 use crate::method::kelley::{volume_radius, Bundle};
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Normal, Output, Separation, Step};
 
 /// Central-cut ellipsoid method; bisection when d = 1.
@@ -354,3 +354,19 @@ impl Method for Ellipsoid {
         }
     }
 }
+
+/// The registry entry of `ellipsoid`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "ellipsoid",
+    description: "central-cut ellipsoid method (Yudin & Nemirovski 1976; Khachiyan 1979; \
+                  Bertsimas & Tsitsiklis 1997 ch. 8); bisection in d = 1",
+    deterministic: true,
+    span: false,
+    families: &["feasibility", "first-order"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::Feasibility(c) => Ok(Box::new(Ellipsoid::new(c))),
+        Class::FirstOrder(c) => Ok(Box::new(Ellipsoid::first_order(c))),
+        _ => Err(wrong_family("ellipsoid", &["feasibility", "first-order"])),
+    },
+};

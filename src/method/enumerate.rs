@@ -7,10 +7,10 @@
 
 use num_rational::BigRational;
 
-use crate::class::LatticeClass;
+use crate::class::{Class, LatticeClass};
 use crate::error::Error;
 use crate::exact::{f64_to_rational, two_diff};
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Cut, Output, Separation, Step};
 
 /// Most lattice points the lattice methods enumerate.
@@ -143,3 +143,18 @@ impl Method for Enumerate {
         Ok(())
     }
 }
+
+/// The registry entry of `enumerate`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "enumerate",
+    description: "integer: queries the lattice points of the box in lexicographic order, \
+                  skipping excluded ones (lattice enumeration; common practice)",
+    deterministic: true,
+    span: false,
+    families: &["lattice"],
+    restriction: Some(crate::method::pure_integer_only),
+    build: |class, _seed| match class {
+        Class::Lattice(c) => Ok(Box::new(Enumerate::new(c)?)),
+        _ => Err(wrong_family("enumerate", &["lattice"])),
+    },
+};

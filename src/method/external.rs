@@ -149,7 +149,7 @@ struct GameMessage<'a> {
     query_dim: usize,
     integer_dim: usize,
     #[serde(rename = "box")]
-    bounds: BoxMessage,
+    bounds: Option<BoxMessage>,
     accuracy: Option<AccuracyMessage>,
     budget: u64,
     seed: u64,
@@ -229,7 +229,14 @@ pub enum MethodMessage {
 }
 
 /// The oracle kind, box and accuracy of a class, as the header states them.
-fn class_facts(class: &Class) -> (&'static str, usize, BoxMessage, Option<AccuracyMessage>) {
+fn class_facts(
+    class: &Class,
+) -> (
+    &'static str,
+    usize,
+    Option<BoxMessage>,
+    Option<AccuracyMessage>,
+) {
     let accuracy = |name: &str, value: f64| {
         Some(AccuracyMessage {
             name: name.into(),
@@ -240,21 +247,23 @@ fn class_facts(class: &Class) -> (&'static str, usize, BoxMessage, Option<Accura
         Class::Feasibility(c) => (
             "separation",
             0,
-            BoxMessage {
+            Some(BoxMessage {
                 lower: vec![-c.half_width; c.dim],
                 upper: vec![c.half_width; c.dim],
-            },
+            }),
             accuracy("rho", c.rho),
         ),
         Class::FirstOrder(c) => (
             "first-order",
             0,
-            BoxMessage {
+            Some(BoxMessage {
                 lower: vec![-c.half_width; c.dim],
                 upper: vec![c.half_width; c.dim],
-            },
+            }),
             accuracy("eps", c.eps),
         ),
+        // No box: x_0 = 0 and ||x_0 - x*|| <= R; the class names R and the horizon T.
+        Class::LargeScale(_) => ("first-order", 0, None, None),
         Class::Lattice(c) => {
             let mut lower: Vec<f64> = c.lower.iter().map(|l| *l as f64).collect();
             let mut upper: Vec<f64> = c.upper.iter().map(|u| *u as f64).collect();
@@ -265,7 +274,12 @@ fn class_facts(class: &Class) -> (&'static str, usize, BoxMessage, Option<Accura
             } else {
                 None
             };
-            ("separation", c.int_dim(), BoxMessage { lower, upper }, acc)
+            (
+                "separation",
+                c.int_dim(),
+                Some(BoxMessage { lower, upper }),
+                acc,
+            )
         }
     }
 }

@@ -18,12 +18,12 @@ use std::cmp::Ordering;
 use num_rational::BigRational;
 use num_traits::Zero;
 
-use crate::class::LatticeClass;
+use crate::class::{Class, LatticeClass};
 use crate::error::Error;
 use crate::exact::{f64_to_rational, nearest_f64, Exact};
 use crate::geometry::BoxModel;
 use crate::method::enumerate::{cut_excludes, lattice_of};
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Cut, Normal, Output, Separation, Step};
 
 /// The neighbouring `f64` of a finite `t` in the direction of `toward` (+-infinity).
@@ -194,3 +194,18 @@ impl Method for FibreBisection {
         Ok(())
     }
 }
+
+/// The registry entry of `fibre-bisection`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "fibre-bisection",
+    description: "mixed-integer: branches on the integer part, bisects each fibre \
+                  (common practice; Basu & Oertel, SIAM J. Optim. 2017)",
+    deterministic: true,
+    span: false,
+    families: &["lattice"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::Lattice(c) => Ok(Box::new(FibreBisection::new(c)?)),
+        _ => Err(wrong_family("fibre-bisection", &["lattice"])),
+    },
+};

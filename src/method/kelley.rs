@@ -21,11 +21,11 @@
 //! so the gap cannot close further at the LP's resolution), the method stops and outputs
 //! its best point rather than repeat the query.
 
-use crate::class::{FirstOrderClass, LipschitzNorm};
+use crate::class::{Class, FirstOrderClass, LipschitzNorm};
 use crate::error::Error;
 use crate::geometry::lp::{self, LpOutcome, Row};
 use crate::geometry::polytope::Polytope;
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, FirstOrderAnswer, Output, Step};
 
 const NAME: &str = "kelley";
@@ -427,3 +427,18 @@ impl Method for Kelley {
         Ok(())
     }
 }
+
+/// The registry entry of `kelley`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "kelley",
+    description: "first-order: cutting-plane method, next query minimises the \
+                  max-of-affine model by LP (Kelley 1960, J. SIAM 8)",
+    deterministic: true,
+    span: false,
+    families: &["first-order"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::FirstOrder(c) => Ok(Box::new(Kelley::new(c))),
+        _ => Err(wrong_family("kelley", &["first-order"])),
+    },
+};

@@ -13,11 +13,11 @@
 //! when it lies in conv(A)), the points of A for n >= 3 (so every query removes a point).
 //! Ties: the lowest lexicographic index.
 
-use crate::class::LatticeClass;
+use crate::class::{Class, LatticeClass};
 use crate::error::Error;
 use crate::geometry::lattice_split::best_split;
 use crate::method::enumerate::{cut_excludes, lattice_of};
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Separation, Step};
 
 /// The deepest lattice point of its alive set's hull.
@@ -138,3 +138,18 @@ impl Method for LatticeCenterpoint {
         Ok(())
     }
 }
+
+/// The registry entry of `lattice-centerpoint`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "lattice-centerpoint",
+    description: "integer: deepest lattice point of the hull of its alive set (Oertel, \
+                  Wagner & Weismantel, Oper. Res. Lett. 2014)",
+    deterministic: true,
+    span: false,
+    families: &["lattice"],
+    restriction: Some(crate::method::pure_integer_only),
+    build: |class, _seed| match class {
+        Class::Lattice(c) => Ok(Box::new(LatticeCenterpoint::new(c)?)),
+        _ => Err(wrong_family("lattice-centerpoint", &["lattice"])),
+    },
+};

@@ -25,10 +25,10 @@ use clarabel::solver::{
     DefaultSettingsBuilder, DefaultSolver, IPSolver, NonnegativeConeT, SolverStatus,
 };
 
-use crate::class::FirstOrderClass;
+use crate::class::{Class, FirstOrderClass};
 use crate::error::Error;
 use crate::method::kelley::{Bundle, ModelMinimum};
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Step};
 
 const NAME: &str = "level";
@@ -218,3 +218,19 @@ impl Method for Level {
         Ok(())
     }
 }
+
+/// The registry entry of `level`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "level",
+    description: "first-order: level method, projects the last query onto the model's \
+                  level set at the gap midpoint (Lemarechal, Nemirovskii & Nesterov \
+                  1995, Math. Program. 69)",
+    deterministic: true,
+    span: false,
+    families: &["first-order"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::FirstOrder(c) => Ok(Box::new(Level::new(c))),
+        _ => Err(wrong_family("level", &["first-order"])),
+    },
+};

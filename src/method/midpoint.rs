@@ -2,10 +2,10 @@
 //! bisection; common practice, no source). Against the box-halving adversary it is
 //! optimal: it meets the lower bound d*k + 1 exactly (docs/theory.md §1.1).
 
-use crate::class::{FeasibilityClass, Promise};
+use crate::class::{Class, FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Separation, Step};
 
 /// Queries the centre of its box; declares "empty" once some side is at most 2 rho.
@@ -73,3 +73,17 @@ impl Method for Midpoint {
         Ok(())
     }
 }
+
+/// The registry entry of `midpoint`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "midpoint",
+    description: "queries the centre of its own box model (bisection; common practice)",
+    deterministic: true,
+    span: false,
+    families: &["feasibility"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::Feasibility(c) => Ok(Box::new(Midpoint::new(c))),
+        _ => Err(wrong_family("midpoint", &["feasibility"])),
+    },
+};

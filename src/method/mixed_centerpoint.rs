@@ -20,12 +20,12 @@ use std::cmp::Ordering;
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 
-use crate::class::LatticeClass;
+use crate::class::{Class, LatticeClass};
 use crate::error::Error;
 use crate::geometry::BoxModel;
 use crate::method::enumerate::{cut_excludes, cut_excludes_view, lattice_of};
 use crate::method::fibre_bisection::restrict;
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Cut, Output, Separation, Step};
 
 /// Samples per query.
@@ -199,3 +199,18 @@ impl Method for MixedCenterpoint {
         Ok(())
     }
 }
+
+/// The registry entry of `mixed-centerpoint`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "mixed-centerpoint",
+    description: "mixed-integer: deepest of samples drawn fibre by fibre (sampled \
+                  centerpoint; Basu & Oertel, SIAM J. Optim. 2017)",
+    deterministic: false,
+    span: false,
+    families: &["lattice"],
+    restriction: None,
+    build: |class, seed| match class {
+        Class::Lattice(c) => Ok(Box::new(MixedCenterpoint::new(c, seed)?)),
+        _ => Err(wrong_family("mixed-centerpoint", &["lattice"])),
+    },
+};

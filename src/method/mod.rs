@@ -5,32 +5,37 @@
 //! ([`crate::game`]) is the only place that counts queries. An external program is just
 //! a `Method` whose `next` reads a line and whose `observe` writes one.
 //!
-//! To add a method: write `src/method/<name>.rs` with a type implementing [`Method`],
-//! name its published source in the doc comment, make it decide "empty" only when its
-//! own information proves that no rho-ball fits strictly inside what it knows, and
-//! register it in [`METHODS`] and [`build`].
+//! To add a method: write `src/method/<name>.rs` with a type implementing [`Method`] and
+//! an `INFO` entry ([`MethodInfo`]: its families, whether it is deterministic, how to
+//! build it), name its published source in the doc comment, make it decide "empty" only
+//! when its own information proves that no rho-ball fits strictly inside what it knows,
+//! and list the entry in [`METHODS`].
 
+pub mod accelerated;
 pub mod analytic_center;
 pub mod centroid;
+pub mod coordinate_search;
 mod cut_model;
 pub mod ellipsoid;
 pub mod enumerate;
 pub mod external;
 pub mod fibre_bisection;
+pub mod gradient;
+pub mod heavy_ball;
 pub mod kelley;
-pub mod large_scale;
 pub mod lattice_centerpoint;
 pub mod level;
 pub mod midpoint;
 pub mod mixed_centerpoint;
 pub mod random;
+pub mod random_direction;
 pub mod sampled_centroid;
 pub mod subgradient;
 
 #[cfg(test)]
 mod test_support;
 
-use crate::class::{Class, Promise};
+use crate::class::{Class, LargeScaleClass, Promise};
 use crate::error::Error;
 use crate::oracle::{Answer, Output, Step};
 
@@ -51,6 +56,12 @@ pub trait Method {
     }
 }
 
+/// A restriction of a method within its families: `Err` says why it does not play a class.
+pub type Restriction = fn(&Class) -> Result<(), String>;
+
+/// Builds a method for a class, seeded where it is randomized.
+pub type Builder = fn(&Class, u64) -> Result<Box<dyn Method + Send>, Error>;
+
 /// A registered built-in method.
 pub struct MethodInfo {
     /// Name used on the command line and in files.
@@ -59,230 +70,120 @@ pub struct MethodInfo {
     pub description: &'static str,
     /// Whether it is deterministic (no seed).
     pub deterministic: bool,
+    /// Whether its iterates stay in x_0 plus the span of the past gradients (the
+    /// large-scale instances bind such methods; docs/theory.md §3).
+    pub span: bool,
+    /// The families of classes it plays.
+    pub families: &'static [&'static str],
+    /// A further restriction within those families (`Err` says why), if any.
+    pub restriction: Option<Restriction>,
+    /// Builds it for a class of one of its families, seeded where it is randomized.
+    pub build: Builder,
 }
 
-/// Every built-in method.
+/// Every built-in method, grouped by family. To add one: write `src/method/<name>.rs`
+/// with its type and an `INFO` entry, and list the entry here.
 pub const METHODS: &[MethodInfo] = &[
-    MethodInfo {
-        name: "midpoint",
-        description: "queries the centre of its own box model (bisection; common practice)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "ellipsoid",
-        description: "central-cut ellipsoid method (Yudin & Nemirovski 1976; Khachiyan 1979; \
-                      Bertsimas & Tsitsiklis 1997 ch. 8); bisection in d = 1",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "random",
-        description: "uniform random point of its own box model (seeded baseline)",
-        deterministic: false,
-    },
-    MethodInfo {
-        name: "centroid",
-        description: "exact centre of gravity of its polytope model, d <= 2 (Levin 1965; \
-                      Newman 1965; Grunbaum 1960)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "sampled-centroid",
-        description: "mean of hit-and-run samples of its polytope model (Bertsimas & \
-                      Vempala 2004, J. ACM 51(4))",
-        deterministic: false,
-    },
-    MethodInfo {
-        name: "analytic-center",
-        description: "analytic centre of its polytope model by damped Newton (ACCPM; \
-                      Goffin & Vial 2002, Optim. Methods Softw. 17)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "subgradient",
-        description: "first-order: projected subgradient, fixed step D/(L sqrt(N+1)), best \
-                      point (Shor 1962; Nesterov 2004 sec. 3.2.3)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "subgradient-decaying",
-        description: "first-order: projected subgradient, step D/(L sqrt(t+1)), best point",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "kelley",
-        description: "first-order: cutting-plane method, next query minimises the \
-                      max-of-affine model by LP (Kelley 1960, J. SIAM 8)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "level",
-        description: "first-order: level method, projects the last query onto the model's \
-                      level set at the gap midpoint (Lemarechal, Nemirovskii & Nesterov \
-                      1995, Math. Program. 69)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "enumerate",
-        description: "integer: queries the lattice points of the box in lexicographic order, \
-                      skipping excluded ones (lattice enumeration; common practice)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "lattice-centerpoint",
-        description: "integer: deepest lattice point of the hull of its alive set (Oertel, \
-                      Wagner & Weismantel, Oper. Res. Lett. 2014)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "fibre-bisection",
-        description: "mixed-integer: branches on the integer part, bisects each fibre \
-                      (common practice; Basu & Oertel, SIAM J. Optim. 2017)",
-        deterministic: true,
-    },
-    MethodInfo {
-        name: "mixed-centerpoint",
-        description: "mixed-integer: deepest of samples drawn fibre by fibre (sampled \
-                      centerpoint; Basu & Oertel, SIAM J. Optim. 2017)",
-        deterministic: false,
-    },
+    midpoint::INFO,
+    ellipsoid::INFO,
+    random::INFO,
+    centroid::INFO,
+    sampled_centroid::INFO,
+    analytic_center::INFO,
+    subgradient::INFO,
+    subgradient::DECAYING,
+    kelley::INFO,
+    level::INFO,
+    enumerate::INFO,
+    lattice_centerpoint::INFO,
+    fibre_bisection::INFO,
+    mixed_centerpoint::INFO,
+    subgradient::UNCONSTRAINED,
+    gradient::INFO,
+    accelerated::INFO,
+    heavy_ball::INFO,
+    coordinate_search::INFO,
+    random_direction::INFO,
 ];
+
+/// The registry entry called `name`.
+pub fn info(name: &str) -> Option<&'static MethodInfo> {
+    METHODS.iter().find(|m| m.name == name)
+}
+
+/// Whether built-in method `name` supports `class`; `Err` says why not (and which
+/// family to play it in).
+pub fn supports(name: &str, class: &Class) -> Result<(), String> {
+    let Some(entry) = info(name) else {
+        return Err(format!("unknown method {name:?}"));
+    };
+    let family = class.family_name();
+    if !entry.families.contains(&family) {
+        return Err(family_hint(name, entry.families));
+    }
+    match entry.restriction {
+        Some(check) => check(class),
+        None => Ok(()),
+    }
+}
 
 /// Builds the built-in method `name` for `class`, seeded with `seed` where it is
 /// randomized.
 pub fn build(name: &str, class: &Class, seed: u64) -> Result<Box<dyn Method + Send>, Error> {
-    let c = match class {
-        Class::Feasibility(c) => c,
-        Class::FirstOrder(c) => return build_first_order(name, c, seed),
-        Class::Lattice(c) => return build_lattice(name, c, seed),
+    let Some(entry) = info(name) else {
+        return Err(Error::UnknownMethod { name: name.into() });
     };
-    match name {
-        "midpoint" => Ok(Box::new(midpoint::Midpoint::new(c))),
-        "ellipsoid" => Ok(Box::new(ellipsoid::Ellipsoid::new(c))),
-        "random" => Ok(Box::new(random::RandomPoint::new(c, seed))),
-        "centroid" => Ok(Box::new(centroid::Centroid::new(c)?)),
-        "sampled-centroid" => Ok(Box::new(sampled_centroid::SampledCentroid::new(c, seed)?)),
-        "analytic-center" => Ok(Box::new(analytic_center::AnalyticCenter::new(c)?)),
-        _ => Err(Error::UnknownMethod { name: name.into() }),
+    supports(name, class).map_err(|reason| Error::Unsupported {
+        what: format!("method {name:?}"),
+        reason,
+    })?;
+    (entry.build)(class, seed)
+}
+
+fn family_hint(name: &str, families: &[&str]) -> String {
+    let list = families.join(" or ");
+    let flag = families
+        .first()
+        .map_or(String::new(), |f| format!(" (pass --class {f})"));
+    format!("{name} plays the {list} family{flag}")
+}
+
+/// The error for a method built for a class outside its families.
+pub(crate) fn wrong_family(name: &str, families: &[&str]) -> Error {
+    Error::Unsupported {
+        what: format!("method {name:?}"),
+        reason: family_hint(name, families),
     }
 }
 
-/// The built-in methods of the lattice classes (docs/theory.md §4).
-pub const LATTICE_METHODS: &[&str] = &[
-    "enumerate",
-    "lattice-centerpoint",
-    "fibre-bisection",
-    "mixed-centerpoint",
-];
-
-/// Builds a built-in method for a lattice class (docs/theory.md §4).
-fn build_lattice(
-    name: &str,
-    class: &crate::class::LatticeClass,
-    seed: u64,
-) -> Result<Box<dyn Method + Send>, Error> {
-    match name {
-        "enumerate" => Ok(Box::new(enumerate::Enumerate::new(class)?)),
-        "lattice-centerpoint" => Ok(Box::new(lattice_centerpoint::LatticeCenterpoint::new(
-            class,
-        )?)),
-        "fibre-bisection" => Ok(Box::new(fibre_bisection::FibreBisection::new(class)?)),
-        "mixed-centerpoint" => Ok(Box::new(mixed_centerpoint::MixedCenterpoint::new(
-            class, seed,
-        )?)),
-        _ if METHODS.iter().any(|m| m.name == name) => Err(Error::Unsupported {
-            what: format!("method {name:?}"),
-            reason: format!("it does not play {}", class.describe()),
-        }),
-        _ => Err(Error::UnknownMethod { name: name.into() }),
-    }
-}
-
-/// Builds a built-in method for a first-order class.
-fn build_first_order(
-    name: &str,
-    class: &crate::class::FirstOrderClass,
-    seed: u64,
-) -> Result<Box<dyn Method + Send>, Error> {
-    match name {
-        "subgradient" => {
-            return Ok(Box::new(subgradient::Subgradient::new(
-                class,
-                subgradient::StepRule::Fixed,
-            )))
-        }
-        "subgradient-decaying" => {
-            return Ok(Box::new(subgradient::Subgradient::new(
-                class,
-                subgradient::StepRule::Decaying,
-            )))
-        }
-        "kelley" => return Ok(Box::new(kelley::Kelley::new(class))),
-        "level" => return Ok(Box::new(level::Level::new(class))),
-        "ellipsoid" => return Ok(Box::new(ellipsoid::Ellipsoid::first_order(class))),
-        "sampled-centroid" => {
-            return Ok(Box::new(sampled_centroid::SampledCentroid::first_order(
-                class, seed,
-            )?))
-        }
-        "analytic-center" => {
-            return Ok(Box::new(analytic_center::AnalyticCenter::first_order(
-                class,
-            )?))
-        }
-        _ => {}
-    }
-    if METHODS.iter().any(|m| m.name == name) {
-        return Err(Error::Unsupported {
-            what: format!("method {name:?}"),
-            reason: "it plays separation-oracle classes only".into(),
-        });
-    }
-    Err(Error::UnknownMethod { name: name.into() })
-}
-
-/// Methods that need first-order answers (value and subgradient).
-pub const FIRST_ORDER_METHODS: &[&str] =
-    &["subgradient", "subgradient-decaying", "kelley", "level"];
-
-/// Cutting-plane methods that also play first-order classes with objective cuts.
-pub const OBJECTIVE_CUT_METHODS: &[&str] = &["ellipsoid", "sampled-centroid", "analytic-center"];
-
-/// Whether built-in method `name` supports `class`; `Err` says why not. Only
-/// `centroid` is restricted: its exact centre of gravity exists for d <= 2 only.
-pub fn supports(name: &str, class: &Class) -> Result<(), String> {
-    let first_order_only = FIRST_ORDER_METHODS.contains(&name);
-    let objective_cut = OBJECTIVE_CUT_METHODS.contains(&name);
-    let lattice_only = LATTICE_METHODS.contains(&name);
+/// Restriction of the pure integer methods: a lattice class without continuous part.
+pub(crate) fn pure_integer_only(class: &Class) -> Result<(), String> {
     match class {
-        Class::Lattice(c) if !lattice_only => {
-            return Err(format!(
-                "{name} does not play lattice classes ({})",
-                c.describe()
-            ))
+        Class::Lattice(c) if c.cont_dim > 0 => {
+            Err("it plays pure integer classes (d = 0) only".into())
         }
-        Class::Lattice(c)
-            if c.cont_dim > 0 && (name == "enumerate" || name == "lattice-centerpoint") =>
-        {
-            return Err(format!("{name} plays pure integer classes (d = 0) only"))
-        }
-        _ if lattice_only && !matches!(class, Class::Lattice(_)) => {
-            return Err(format!("{name} plays lattice classes only"))
-        }
-        Class::FirstOrder(_) if !first_order_only && !objective_cut => {
-            return Err(format!("{name} plays separation-oracle classes only"))
-        }
-        Class::Feasibility(_) if first_order_only => {
-            return Err(format!("{name} needs first-order answers"))
-        }
-        _ => {}
+        _ => Ok(()),
     }
-    if name == "centroid" && class.query_dim() > 2 {
-        return Err(format!(
-            "centroid is exact only in d <= 2 (d = {}); use sampled-centroid",
-            class.query_dim()
-        ));
+}
+
+/// Restriction of the smooth large-scale methods.
+pub(crate) fn smooth_only(class: &Class) -> Result<(), String> {
+    match class {
+        Class::LargeScale(c) if matches!(c.function, LargeScaleClass::Nonsmooth { .. }) => {
+            Err("it needs a smooth class (the smooth or strongly-convex large-scale class)".into())
+        }
+        _ => Ok(()),
     }
-    Ok(())
+}
+
+/// Restriction of the nonsmooth large-scale methods.
+pub(crate) fn nonsmooth_only(class: &Class) -> Result<(), String> {
+    match class {
+        Class::LargeScale(c) if !matches!(c.function, LargeScaleClass::Nonsmooth { .. }) => {
+            Err("it plays the nonsmooth large-scale class".into())
+        }
+        _ => Ok(()),
+    }
 }
 
 /// What a method outputs once its own information proves that no rho-ball fits inside
@@ -321,5 +222,36 @@ pub(crate) fn blame(error: Error, method: &str) -> Error {
             reason: format!("{part}: {reason}"),
         },
         other => other,
+    }
+}
+
+/// The value and (sub)gradient of a first-order answer, as `f64`, into `gradient`.
+pub(crate) fn read_answer(
+    method: &str,
+    answer: &Answer,
+    gradient: &mut Vec<f64>,
+) -> Result<f64, Error> {
+    let Answer::FirstOrder(fo) = answer else {
+        return Err(Error::MethodFailed {
+            method: method.into(),
+            reason: "needs first-order answers (value and gradient)".into(),
+        });
+    };
+    gradient.clear();
+    gradient.extend(fo.subgradient.iter().map(|g| g.to_f64()));
+    Ok(fo.value.to_f64())
+}
+
+/// The smoothness beta and strong convexity mu (0 for the smooth class) of a smooth
+/// class; `None` for the nonsmooth class.
+pub(crate) fn smoothness(class: &LargeScaleClass) -> Option<(f64, f64)> {
+    match *class {
+        LargeScaleClass::Nonsmooth { .. } => None,
+        LargeScaleClass::Smooth { smoothness, .. } => Some((smoothness, 0.0)),
+        LargeScaleClass::StronglyConvex {
+            smoothness,
+            strong_convexity,
+            ..
+        } => Some((smoothness, strong_convexity)),
     }
 }

@@ -4,10 +4,10 @@
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 
-use crate::class::{FeasibilityClass, Promise};
+use crate::class::{Class, FeasibilityClass, Promise};
 use crate::error::Error;
 use crate::geometry::BoxModel;
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Separation, Step};
 
 /// Uniform point of its box; "empty" once some side is at most 2 rho.
@@ -83,3 +83,17 @@ impl Method for RandomPoint {
         Ok(())
     }
 }
+
+/// The registry entry of `random`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "random",
+    description: "uniform random point of its own box model (seeded baseline)",
+    deterministic: false,
+    span: false,
+    families: &["feasibility"],
+    restriction: None,
+    build: |class, seed| match class {
+        Class::Feasibility(c) => Ok(Box::new(RandomPoint::new(c, seed))),
+        _ => Err(wrong_family("random", &["feasibility"])),
+    },
+};

@@ -28,12 +28,12 @@
 //! eps or once P holds no ball of radius
 //! [`volume_radius`](crate::method::kelley::volume_radius) (the volume argument).
 
-use crate::class::{FeasibilityClass, FirstOrderClass};
+use crate::class::{Class, FeasibilityClass, FirstOrderClass};
 use crate::error::Error;
 use crate::geometry::hit_and_run::HitAndRun;
 use crate::geometry::polytope::Polytope;
 use crate::method::cut_model::{CutModel, Start};
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Step};
 
 const NAME: &str = "sampled-centroid";
@@ -138,6 +138,25 @@ impl Method for SampledCentroid {
         self.model.observe(NAME, query, answer)
     }
 }
+
+/// The registry entry of `sampled-centroid`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "sampled-centroid",
+    description: "mean of hit-and-run samples of its polytope model (Bertsimas & \
+                  Vempala 2004, J. ACM 51(4))",
+    deterministic: false,
+    span: false,
+    families: &["feasibility", "first-order"],
+    restriction: None,
+    build: |class, seed| match class {
+        Class::Feasibility(c) => Ok(Box::new(SampledCentroid::new(c, seed)?)),
+        Class::FirstOrder(c) => Ok(Box::new(SampledCentroid::first_order(c, seed)?)),
+        _ => Err(wrong_family(
+            "sampled-centroid",
+            &["feasibility", "first-order"],
+        )),
+    },
+};
 
 #[cfg(test)]
 mod tests {

@@ -9,9 +9,9 @@
 //! outputs the best point seen. The decaying variant uses eta_t = D / (L sqrt(t+1)) and
 //! the same number of queries (it carries a log factor in its guarantee).
 
-use crate::class::FirstOrderClass;
+use crate::class::{Class, FirstOrderClass, LargeScale, LargeScaleClass};
 use crate::error::Error;
-use crate::method::Method;
+use crate::method::{wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Step};
 
 /// Step-size rule.
@@ -77,8 +77,25 @@ impl Subgradient {
             asked: 0,
             point: vec![0.0; dim],
             best: None,
-            name: "subgradient",
+            name: "unconstrained-subgradient",
             step: Some(step),
+        }
+    }
+
+    /// The unconstrained variant for a nonsmooth large-scale game: step R / (M sqrt(T))
+    /// over the horizon T (docs/theory.md §3 and §5).
+    pub fn for_large_scale(game: &LargeScale) -> Result<Subgradient, Error> {
+        match game.function {
+            LargeScaleClass::Nonsmooth {
+                dim,
+                lipschitz,
+                radius,
+            } => Ok(Subgradient::unconstrained(
+                dim,
+                radius / (lipschitz * (game.horizon as f64).sqrt()),
+                game.horizon,
+            )),
+            _ => Err(wrong_family("unconstrained-subgradient", &["large-scale"])),
         }
     }
 
@@ -130,3 +147,47 @@ impl Method for Subgradient {
         Ok(())
     }
 }
+
+/// The registry entry of `subgradient`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "subgradient",
+    description: "first-order: projected subgradient, fixed step D/(L sqrt(N+1)), best \
+                  point (Shor 1962; Nesterov 2004 sec. 3.2.3)",
+    deterministic: true,
+    span: false,
+    families: &["first-order"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::FirstOrder(c) => Ok(Box::new(Subgradient::new(c, StepRule::Fixed))),
+        _ => Err(wrong_family("subgradient", &["first-order"])),
+    },
+};
+
+/// The registry entry of `subgradient-decaying`.
+pub const DECAYING: MethodInfo = MethodInfo {
+    name: "subgradient-decaying",
+    description: "first-order: projected subgradient, step D/(L sqrt(t+1)), best point",
+    deterministic: true,
+    span: false,
+    families: &["first-order"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::FirstOrder(c) => Ok(Box::new(Subgradient::new(c, StepRule::Decaying))),
+        _ => Err(wrong_family("subgradient-decaying", &["first-order"])),
+    },
+};
+
+/// The registry entry of `unconstrained-subgradient`.
+pub const UNCONSTRAINED: MethodInfo = MethodInfo {
+    name: "unconstrained-subgradient",
+    description: "large-scale nonsmooth: unconstrained subgradient, step R/(M sqrt(T)), best \
+                  point (Shor 1962; tight by Drori & Teboulle 2016)",
+    deterministic: true,
+    span: true,
+    families: &["large-scale"],
+    restriction: Some(crate::method::nonsmooth_only),
+    build: |class, _seed| match class {
+        Class::LargeScale(c) => Ok(Box::new(Subgradient::for_large_scale(c)?)),
+        _ => Err(wrong_family("unconstrained-subgradient", &["large-scale"])),
+    },
+};

@@ -47,7 +47,7 @@ pub mod writer;
 
 pub use reader::{parse_line, TranscriptReader};
 pub use records::{
-    Ending, FinalRecord, Header, QueryRecord, Record, Witnesses, CERTIFICATE_SCHEMA,
-    CERTIFICATE_SCHEMAS_READ, FORMAT_VERSION,
+    Demonstration, Ending, FinalRecord, Header, QueryRecord, Record, Witnesses, CERTIFICATE_SCHEMA,
+    CERTIFICATE_SCHEMAS_READ, DEMONSTRATION_TOLERANCE, FORMAT_VERSION,
 };
 pub use writer::{Flush, MemoryTranscript, TranscriptWriter};

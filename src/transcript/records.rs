@@ -5,6 +5,7 @@
 use serde::{Deserialize, Serialize};
 
 use crate::class::Class;
+use crate::instance::large_scale::RotatedWitness;
 use crate::instance::Witness;
 use crate::oracle::{Answer, Output};
 
@@ -64,9 +65,50 @@ pub struct FinalRecord {
     pub queries_used: u64,
     /// How the game ended.
     pub ending: Ending,
-    /// Witnesses and the prefix they certify; `None` when no prefix is certifiable.
+    /// Witnesses and the prefix they certify; `None` when no prefix is certifiable (and
+    /// always for a demonstration).
     pub certificate: Option<Witnesses>,
+    /// Large-scale games only: what the demonstration claims (docs/theory.md §3). Absent
+    /// from certificate transcripts.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub demonstration: Option<Demonstration>,
 }
+
+/// The final record's claim of a demonstration game (docs/theory.md §3): the gap the
+/// method left on the adversary's function and the published lower curve, compared to
+/// the stated relative tolerance, never exactly. Not a certificate: `naysayer check`
+/// refuses it.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Demonstration {
+    /// The relative tolerance of every comparison with a published value.
+    pub tolerance: f64,
+    /// The gap in the class's accuracy measure (`None` when it is undefined: a smooth
+    /// class whose method gave no output).
+    pub gap: Option<f64>,
+    /// The published lower curve at the horizon.
+    pub lower_bound: f64,
+    /// The function completed by an adaptive-rotation adversary; `None` for a published
+    /// instance, which the adversary's name, the class and the horizon determine.
+    pub witness: Option<RotatedWitness>,
+}
+
+impl Demonstration {
+    /// A demonstration at the relative tolerance [`DEMONSTRATION_TOLERANCE`].
+    pub fn new(gap: Option<f64>, lower_bound: f64, witness: Option<RotatedWitness>) -> Self {
+        Demonstration {
+            tolerance: DEMONSTRATION_TOLERANCE,
+            gap,
+            lower_bound,
+            witness,
+        }
+    }
+}
+
+/// The relative tolerance of a demonstration (1e-12: about 4500 units in the last place
+/// of an `f64`, far above the rounding of the O(T d) arithmetic involved and far below
+/// any effect the bounds describe).
+pub const DEMONSTRATION_TOLERANCE: f64 = 1e-12;
 
 /// One query record.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

@@ -14,7 +14,7 @@
 //! f(x_i) - f* >= M R / (2 (2 + sqrt(k+1))) for every i <= k, for k <= d - 1.
 
 use crate::error::Error;
-use crate::large_scale::{KnownFunction, Oracle};
+use crate::instance::large_scale::{Function, KnownFunction};
 
 /// Nesterov's nonsmooth function for horizon k.
 #[derive(Clone, Debug)]
@@ -60,26 +60,26 @@ pub fn lower_bound(lipschitz: f64, radius: f64, queries: f64) -> f64 {
     lipschitz * radius / (2.0 * (2.0 + (queries + 1.0).sqrt()))
 }
 
-impl Oracle for NesterovNonsmooth {
+impl Function for NesterovNonsmooth {
     fn name(&self) -> &str {
         "nesterov-nonsmooth"
     }
     fn dim(&self) -> usize {
         self.dim
     }
-    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
+    fn evaluate(&self, x: &[f64], gradient: &mut [f64]) -> f64 {
         let mut best = 0;
         for i in 1..self.pieces {
             if x[i] > x[best] {
                 best = i;
             }
         }
-        let norm2 = crate::large_scale::basis::dot(x, x);
+        let norm2 = crate::geometry::basis::dot(x, x);
         for (g, xi) in gradient.iter_mut().zip(x) {
             *g = self.mu * xi;
         }
         gradient[best] += self.gamma;
-        Ok(self.gamma * x[best] + 0.5 * self.mu * norm2)
+        self.gamma * x[best] + 0.5 * self.mu * norm2
     }
 }
 
@@ -94,7 +94,7 @@ impl KnownFunction for NesterovNonsmooth {
     }
     fn gap(&self, x: &[f64]) -> f64 {
         let mut scratch = vec![0.0; self.dim];
-        let value = self.clone().answer(x, &mut scratch).unwrap_or(f64::NAN);
+        let value = self.evaluate(x, &mut scratch);
         value - self.optimal_value()
     }
 }

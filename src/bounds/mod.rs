@@ -8,6 +8,8 @@
 //! most on the whole class. A guide is a published order of growth whose constant is
 //! not verified here; it is printed without a number.
 
+pub mod large_scale;
+
 use serde::Serialize;
 
 use crate::class::LatticeClass;

@@ -8,10 +8,9 @@
 //! m_t = t/(t+3) (ours; stable on quadratics since alpha beta <= 1 < 2(1 + m_t); no rate
 //! claimed, no upper curve).
 
-use crate::class::LargeScaleClass;
+use crate::class::{Class, LargeScaleClass};
 use crate::error::Error;
-use crate::method::large_scale::{read_answer, smoothness};
-use crate::method::Method;
+use crate::method::{read_answer, smoothness, wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Step};
 
 /// The heavy-ball method.
@@ -83,3 +82,18 @@ impl Method for HeavyBall {
         Ok(())
     }
 }
+
+/// The registry entry of `heavy-ball`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "heavy-ball",
+    description: "large-scale smooth: heavy ball, step 1/beta, momentum t/(t+3) (no rate \
+                  claimed); strongly convex: Polyak 1964 parameters",
+    deterministic: true,
+    span: true,
+    families: &["large-scale"],
+    restriction: Some(crate::method::smooth_only),
+    build: |class, _seed| match class {
+        Class::LargeScale(c) => Ok(Box::new(HeavyBall::new(&c.function, c.horizon))),
+        _ => Err(wrong_family("heavy-ball", &["large-scale"])),
+    },
+};

@@ -1,5 +1,6 @@
 //! An orthonormal basis grown one vector at a time, for the adaptive-rotation
-//! adversaries (docs/theory.md §3).
+//! adversaries (docs/theory.md §3), with the dense vector kernels they and the
+//! large-scale functions share.
 //!
 //! The basis spans every query seen so far and every revealed direction. A new hidden
 //! direction is a deterministic pseudo-random vector orthogonalised against the whole
@@ -41,6 +42,11 @@ pub fn dot(a: &[f64], b: &[f64]) -> f64 {
         tail += a[i] * b[i];
     }
     ((acc[0] + acc[4]) + (acc[1] + acc[5])) + ((acc[2] + acc[6]) + (acc[3] + acc[7])) + tail
+}
+
+/// Euclidean norm, from [`dot`].
+pub fn norm(x: &[f64]) -> f64 {
+    dot(x, x).sqrt()
 }
 
 /// y += alpha x.

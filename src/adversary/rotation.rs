@@ -30,10 +30,14 @@
 //! rounding, and the witness reproduces the answers to a relative 1e-12
 //! ([`super::witness`]).
 
+use crate::adversary::{wrong_family, Adversary, AdversaryInfo, Conclusion, Scope, Undecided};
+use crate::class::{Class, LargeScale, LargeScaleClass};
 use crate::error::Error;
-use crate::large_scale::basis::{dot, Basis};
-use crate::large_scale::witness::RotatedWitness;
-use crate::large_scale::Oracle;
+use crate::exact::Exact;
+use crate::geometry::basis::{dot, Basis};
+use crate::instance::large_scale::{KnownFunction, RotatedWitness};
+use crate::oracle::{Answer, FirstOrderAnswer};
+use crate::transcript::Demonstration;
 
 /// The nonsmooth adaptive-rotation adversary.
 #[derive(Clone, Debug)]
@@ -46,6 +50,10 @@ pub struct Rotation {
     basis: Basis,
     revealed: Vec<usize>,
     answered: usize,
+    /// The smallest value answered so far (the nonsmooth class measures the best point).
+    best_value: f64,
+    /// Reused buffer for the (sub)gradient of an answer.
+    gradient: Vec<f64>,
 }
 
 /// The seed of the adversary's pseudo-random fresh directions (fixed: the adversary is
@@ -91,7 +99,26 @@ impl Rotation {
             basis: Basis::new(dim, DIRECTION_SEED),
             revealed: Vec::new(),
             answered: 0,
+            best_value: f64::INFINITY,
+            gradient: vec![0.0; dim],
         })
+    }
+
+    /// The adversary of a game on the nonsmooth large-scale class at horizon T (N = T).
+    pub fn for_game(game: &LargeScale) -> Result<Rotation, Error> {
+        let LargeScaleClass::Nonsmooth {
+            dim,
+            lipschitz,
+            radius,
+        } = game.function
+        else {
+            return Err(Error::Unsupported {
+                what: "adversary \"rotation\"".into(),
+                reason: "it plays the nonsmooth class; use \"rotation-chain\"".into(),
+            });
+        };
+        let t = game.horizon as usize;
+        Rotation::new(dim, lipschitz, radius, t, t)
     }
 
     /// The number of directions revealed so far.
@@ -121,7 +148,7 @@ impl Rotation {
 
     /// Completes the hidden function: absorbs the output (when given) and fixes every
     /// still hidden direction orthogonal to all queries, the output and each other.
-    pub fn finish(mut self, output: Option<&[f64]>) -> Result<RotatedWitness, Error> {
+    pub fn finish(&mut self, output: Option<&[f64]>) -> Result<RotatedWitness, Error> {
         if let Some(x) = output {
             self.basis.absorb(x)?;
         }
@@ -142,16 +169,10 @@ impl Rotation {
     }
 }
 
-impl Oracle for Rotation {
-    fn name(&self) -> &str {
-        "rotation"
-    }
-
-    fn dim(&self) -> usize {
-        self.basis.dim()
-    }
-
-    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
+impl Rotation {
+    /// Answers x in `f64`: returns f(x) and writes the subgradient into `gradient`.
+    /// Within the capacity checked at construction, the basis always has room.
+    pub fn respond(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
         if self.answered >= self.queries {
             return Err(Error::DimensionTooSmall {
                 dim: self.basis.dim(),
@@ -204,4 +225,72 @@ impl Oracle for Rotation {
             Ok(m * norm_part)
         }
     }
+}
+
+/// The registry entry (docs/theory.md: see the description).
+pub const INFO: AdversaryInfo = AdversaryInfo {
+    name: "rotation",
+    family: "large-scale",
+    description: "large-scale nonsmooth: adaptive rotation of the Drori-Teboulle function, \
+                  N = T (any deterministic method; d >= 2T + 2; demonstration, docs/theory.md §3)",
+    scope: Scope::EveryMethod,
+    build: |class| match class {
+        Class::LargeScale(c) => Ok(Box::new(Rotation::for_game(c)?)),
+        _ => Err(wrong_family("rotation", "large-scale")),
+    },
+};
+
+impl Adversary for Rotation {
+    fn name(&self) -> &str {
+        "rotation"
+    }
+
+    fn capacity(&self) -> Option<u64> {
+        Some(self.queries as u64)
+    }
+
+    fn answer(&mut self, x: &[f64]) -> Answer {
+        let mut gradient = std::mem::take(&mut self.gradient);
+        let value = self
+            .respond(x, &mut gradient)
+            .expect("the game loop keeps within the capacity checked at construction");
+        self.best_value = self.best_value.min(value);
+        let answer = first_order_answer(value, &gradient);
+        self.gradient = gradient;
+        answer
+    }
+
+    fn witnesses(&self) -> Option<crate::transcript::Witnesses> {
+        None
+    }
+
+    fn undecided(&self) -> Undecided {
+        Undecided::HiddenDirections((self.pieces - self.revealed.len()) as f64)
+    }
+
+    fn conclude(&mut self, output: Option<&[f64]>) -> Result<Conclusion, Error> {
+        let bound = self.bound();
+        let witness = self.finish(output)?;
+        let star = witness.optimal_value();
+        let at_output = output.map(|x| witness.gap(x));
+        let queried = (self.answered > 0).then_some(self.best_value - star);
+        let gap = match (queried, at_output) {
+            (Some(a), Some(b)) => Some(a.min(b)),
+            (a, b) => a.or(b),
+        };
+        Ok(Conclusion::Demonstration(Demonstration::new(
+            gap,
+            bound,
+            Some(witness),
+        )))
+    }
+}
+
+/// A first-order answer whose numbers are the `f64` values computed (a demonstration's
+/// answer: exactly these dyadic numbers, claimed only to the demonstration tolerance).
+pub(crate) fn first_order_answer(value: f64, gradient: &[f64]) -> Answer {
+    Answer::FirstOrder(FirstOrderAnswer {
+        value: Exact::Float(value),
+        subgradient: gradient.iter().map(|g| Exact::Float(*g)).collect(),
+    })
 }

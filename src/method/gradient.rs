@@ -6,10 +6,9 @@
 //! 2009, Thm 3.1, with no nonsmooth part); on a mu-strongly convex one,
 //! f(x_T) - f* <= (1 - mu/beta)^T (f(x_0) - f*) (common practice, no source pinned).
 
-use crate::class::LargeScaleClass;
+use crate::class::{Class, LargeScaleClass};
 use crate::error::Error;
-use crate::method::large_scale::{read_answer, smoothness};
-use crate::method::Method;
+use crate::method::{read_answer, smoothness, wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Step};
 
 /// Gradient descent with step 1/beta.
@@ -61,3 +60,18 @@ impl Method for Gradient {
         Ok(())
     }
 }
+
+/// The registry entry of `gradient`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "gradient",
+    description: "large-scale smooth: gradient descent with step 1/beta (Cauchy 1847; Beck & \
+                  Teboulle 2009 Thm 3.1)",
+    deterministic: true,
+    span: true,
+    families: &["large-scale"],
+    restriction: Some(crate::method::smooth_only),
+    build: |class, _seed| match class {
+        Class::LargeScale(c) => Ok(Box::new(Gradient::new(&c.function, c.horizon))),
+        _ => Err(wrong_family("gradient", &["large-scale"])),
+    },
+};

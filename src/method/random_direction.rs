@@ -11,10 +11,9 @@
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 
-use crate::class::LargeScaleClass;
+use crate::class::{Class, LargeScaleClass};
 use crate::error::Error;
-use crate::method::large_scale::read_answer;
-use crate::method::Method;
+use crate::method::{read_answer, wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Step};
 
 /// Seeded random-direction search.
@@ -53,7 +52,7 @@ impl Method for RandomDirection {
 
     fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
         if self.asked >= self.planned {
-            let n = crate::large_scale::norm(&self.best_gradient);
+            let n = crate::geometry::basis::norm(&self.best_gradient);
             let h = self.radius / ((self.planned as f64) + 1.0).sqrt();
             let mut point = self.best.clone();
             if n > 0.0 {
@@ -72,7 +71,7 @@ impl Method for RandomDirection {
                     (-2.0 * u1.ln()).sqrt() * (std::f64::consts::TAU * u2).cos()
                 })
                 .collect();
-            let n = crate::large_scale::norm(&direction);
+            let n = crate::geometry::basis::norm(&direction);
             let h = self.radius / ((self.asked as f64) + 1.0).sqrt();
             direction
                 .iter_mut()
@@ -95,3 +94,19 @@ impl Method for RandomDirection {
         Ok(())
     }
 }
+
+/// The registry entry of `random-direction`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "random-direction",
+    description: "large-scale, any class: seeded random search from the best point, step \
+                  R/sqrt(t+1), outputs an untested step along minus the best gradient \
+                  (non-span)",
+    deterministic: false,
+    span: false,
+    families: &["large-scale"],
+    restriction: None,
+    build: |class, seed| match class {
+        Class::LargeScale(c) => Ok(Box::new(RandomDirection::new(&c.function, c.horizon, seed))),
+        _ => Err(wrong_family("random-direction", &["large-scale"])),
+    },
+};

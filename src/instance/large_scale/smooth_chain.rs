@@ -13,8 +13,8 @@
 //! (x_k has zeros beyond coordinate k, where f is at least the minimum of the k-chain).
 
 use crate::error::Error;
-use crate::large_scale::instances::Chain;
-use crate::large_scale::{KnownFunction, Oracle};
+use crate::instance::large_scale::Chain;
+use crate::instance::large_scale::{Function, KnownFunction};
 
 /// Nesterov's smooth chain for horizon k.
 #[derive(Clone, Debug)]
@@ -72,15 +72,15 @@ pub fn lower_bound(smoothness: f64, radius: f64, queries: f64) -> f64 {
     3.0 * smoothness * radius * radius / (32.0 * (queries + 1.0) * (queries + 1.0))
 }
 
-impl Oracle for SmoothChain {
+impl Function for SmoothChain {
     fn name(&self) -> &str {
         "smooth-chain"
     }
     fn dim(&self) -> usize {
         self.chain.dim()
     }
-    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
-        self.chain.answer(x, gradient)
+    fn evaluate(&self, x: &[f64], gradient: &mut [f64]) -> f64 {
+        self.chain.evaluate(x, gradient)
     }
 }
 

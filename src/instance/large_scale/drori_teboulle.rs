@@ -15,7 +15,7 @@
 //! x_k = -(R/sqrt(N+1)) (e_1 + ... + e_k), all with f = 0).
 
 use crate::error::Error;
-use crate::large_scale::{KnownFunction, Oracle};
+use crate::instance::large_scale::{Function, KnownFunction};
 
 /// The Drori-Teboulle function for N steps.
 #[derive(Clone, Debug)]
@@ -61,31 +61,31 @@ pub fn lower_bound(lipschitz: f64, radius: f64, steps: f64) -> f64 {
     lipschitz * radius / (steps + 1.0).sqrt()
 }
 
-impl Oracle for DroriTeboulle {
+impl Function for DroriTeboulle {
     fn name(&self) -> &str {
         "drori-teboulle"
     }
     fn dim(&self) -> usize {
         self.dim
     }
-    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
+    fn evaluate(&self, x: &[f64], gradient: &mut [f64]) -> f64 {
         let mut best = 0;
         for i in 1..self.pieces {
             if x[i] > x[best] {
                 best = i;
             }
         }
-        let norm = crate::large_scale::norm(x);
+        let norm = crate::geometry::basis::norm(x);
         let norm_part = norm - self.offset();
         if x[best] >= norm_part {
             gradient.iter_mut().for_each(|g| *g = 0.0);
             gradient[best] = self.lipschitz;
-            Ok(self.lipschitz * x[best])
+            self.lipschitz * x[best]
         } else {
             for (g, xi) in gradient.iter_mut().zip(x) {
                 *g = self.lipschitz * xi / norm;
             }
-            Ok(self.lipschitz * norm_part)
+            self.lipschitz * norm_part
         }
     }
 }
@@ -101,7 +101,7 @@ impl KnownFunction for DroriTeboulle {
     }
     fn gap(&self, x: &[f64]) -> f64 {
         let mut scratch = vec![0.0; self.dim];
-        let value = self.clone().answer(x, &mut scratch).unwrap_or(f64::NAN);
+        let value = self.evaluate(x, &mut scratch);
         value - self.optimal_value()
     }
 }

@@ -31,6 +31,12 @@ pub struct GapBound {
     pub method: Option<&'static str>,
 }
 
+/// The lower curve the adversaries and instances of `class` demonstrate at T queries
+/// (the first curve of [`gap_bounds`]).
+pub fn lower_curve(class: &LargeScaleClass, queries: u64) -> f64 {
+    gap_bounds(class, queries)[0].gap.unwrap_or(f64::NAN)
+}
+
 /// Every gap curve of `class` at T = `queries`, lower curves first.
 pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
     let t = queries.max(1) as f64;
@@ -58,13 +64,13 @@ pub fn gap_bounds(class: &LargeScaleClass, queries: u64) -> Vec<GapBound> {
                 method: None,
             },
             GapBound {
-                label: "subgradient, upper: M R / sqrt(T)",
+                label: "unconstrained-subgradient, upper: M R / sqrt(T)",
                 side: Side::Upper,
                 gap: Some(m * r / t.sqrt()),
                 formula: "M R / sqrt(T): step R/(M sqrt(T)), best of T points",
                 status: Status::Proven,
                 source: "Nesterov 2004, sec. 3.2.3 (from memory); tight by Drori & Teboulle 2016",
-                method: Some("subgradient"),
+                method: Some("unconstrained-subgradient"),
             },
         ],
         LargeScaleClass::Smooth { smoothness: b, .. } => vec![

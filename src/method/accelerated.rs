@@ -14,10 +14,9 @@
 //!
 //! Both keep every iterate in x_0 + span of the past gradients.
 
-use crate::class::LargeScaleClass;
+use crate::class::{Class, LargeScaleClass};
 use crate::error::Error;
-use crate::method::large_scale::{read_answer, smoothness};
-use crate::method::Method;
+use crate::method::{read_answer, smoothness, wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Step};
 
 /// The accelerated gradient method (variant chosen by the class).
@@ -92,3 +91,18 @@ impl Method for Accelerated {
         Ok(())
     }
 }
+
+/// The registry entry of `accelerated`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "accelerated",
+    description: "large-scale smooth: Nesterov's accelerated gradient (FISTA form, Beck & \
+                  Teboulle 2009); strongly convex: constant momentum (Nesterov 2004, (2.2.11))",
+    deterministic: true,
+    span: true,
+    families: &["large-scale"],
+    restriction: Some(crate::method::smooth_only),
+    build: |class, _seed| match class {
+        Class::LargeScale(c) => Ok(Box::new(Accelerated::new(&c.function, c.horizon))),
+        _ => Err(wrong_family("accelerated", &["large-scale"])),
+    },
+};

@@ -1,26 +1,13 @@
-//! The witness of a rotation adversary: the fully specified rotated function, its export
-//! as a demonstration transcript, and the replay check.
+//! The witness of a rotation adversary: the fully specified rotated function it completes
+//! at the end of a game, written into the demonstration's final record and replayed
+//! against every answer by [`crate::demonstration`].
 //!
 //! A witness stores its directions u_1..u_p as the exact `f64` numbers the adversary
 //! used (JSON numbers written with shortest round-trip formatting, so they read back
 //! bit for bit). It is a demonstration, not a certificate: the directions are
 //! orthonormal only to rounding, so the replay check compares with a relative tolerance
-//! ([`RELATIVE_TOLERANCE`]), never exactly, and `naysayer check` does not accept these
+//! ([`REPLAY_TOLERANCE`]), never exactly, and `naysayer check` does not accept these
 //! files.
-//!
-//! ## Demonstration transcript (JSON Lines)
-//! One record a line, `{"type": T, "data": D}`:
-//! 1. `demo-header`: `{"format":1,"tool":"naysayer 0.1.0","class":C,"oracle":"rotation",
-//!    "method":"coordinate-search","seed":0,"queries":T}` with `C` a
-//!    [`LargeScaleClass`] (`{"kind":"nonsmooth","dim":d,"lipschitz":M,"radius":R}`, ...).
-//! 2. `demo-query`, one per query: `{"index":i,"point":[...],"value":v,"gradient":[...]}`
-//!    (i from 1; every number the `f64` the oracle answered).
-//! 3. `demo-final`: `{"queries_used":T,"output":[...] or null,"gap":g,"bound":b,
-//!    "witness":W}` with `W` either `{"kind":"rotated-max","dim":d,"lipschitz":M,
-//!    "radius":R,"directions":[[...],...]}` (f = M max{max_i <u_i,x>, ||x|| -
-//!    R (1 + 1/sqrt(p))}) or `{"kind":"rotated-chain","dim":d,"coupling":c,
-//!    "strong_convexity":mu,"shift":s,"directions":[[...],...]}` (f = (c/2) z^T A z -
-//!    c s z_1 + (mu/2)||x||^2, z = U^T x).
 //!
 //! ## Replay tolerance
 //! Values are compared relative to the function's natural scale at x: M (R + ||x||) for
@@ -30,16 +17,15 @@
 //! rounding, so a tie may be broken the other way on replay); a chain answer's gradient
 //! must equal the witness's gradient to 1e-12 (4c + mu)(R + ||x||).
 
-use std::io::{BufRead, Write};
-use std::path::Path;
-
 use serde::{Deserialize, Serialize};
 
-use crate::class::LargeScaleClass;
-use crate::error::Error;
-use crate::large_scale::basis::{axpy, dot};
-use crate::large_scale::rotation_chain::chain_part;
-use crate::large_scale::{norm, KnownFunction, Oracle, RELATIVE_TOLERANCE};
+use crate::geometry::basis::{axpy, dot, norm};
+use crate::instance::large_scale::chain::{chain_part, Chain};
+use crate::instance::large_scale::{Function, KnownFunction};
+
+/// The relative tolerance of a replay: answers must agree with the witness to this
+/// fraction of the function's natural scale at the query (the module docs).
+pub const REPLAY_TOLERANCE: f64 = 1e-12;
 
 /// A fully specified rotated function.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -131,8 +117,7 @@ impl RotatedWitness {
                 let norm_part = m * (nx - radius * (1.0 + 1.0 / p.sqrt()));
                 let top = z.iter().map(|a| m * a).fold(norm_part, f64::max);
                 let value_error = (top - value).abs() / value_scale;
-                let active =
-                    |piece_value: f64| top - piece_value <= RELATIVE_TOLERANCE * value_scale;
+                let active = |piece_value: f64| top - piece_value <= REPLAY_TOLERANCE * value_scale;
                 let mut gradient_error = f64::INFINITY;
                 for (u, a) in directions.iter().zip(&z) {
                     if active(m * a) {
@@ -156,7 +141,7 @@ impl RotatedWitness {
             }
             RotatedWitness::RotatedChain { .. } => {
                 let mut g = vec![0.0; x.len()];
-                let v = self.clone().answer(x, &mut g).unwrap_or(f64::NAN);
+                let v = self.evaluate(x, &mut g);
                 let e: f64 = gradient
                     .iter()
                     .zip(&g)
@@ -168,7 +153,7 @@ impl RotatedWitness {
     }
 }
 
-impl Oracle for RotatedWitness {
+impl Function for RotatedWitness {
     fn name(&self) -> &str {
         match self {
             RotatedWitness::RotatedMax { .. } => "rotated-max",
@@ -184,7 +169,7 @@ impl Oracle for RotatedWitness {
         }
     }
 
-    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
+    fn evaluate(&self, x: &[f64], gradient: &mut [f64]) -> f64 {
         let z = self.projections(x);
         match self {
             RotatedWitness::RotatedMax {
@@ -207,12 +192,12 @@ impl Oracle for RotatedWitness {
                     for (g, ui) in gradient.iter_mut().zip(&directions[best]) {
                         *g = m * ui;
                     }
-                    Ok(m * z[best])
+                    m * z[best]
                 } else {
                     for (g, xi) in gradient.iter_mut().zip(x) {
                         *g = m * xi / nx;
                     }
-                    Ok(m * norm_part)
+                    m * norm_part
                 }
             }
             RotatedWitness::RotatedChain {
@@ -231,7 +216,7 @@ impl Oracle for RotatedWitness {
                 for (wi, u) in w.iter().zip(directions.iter()) {
                     axpy(*wi, u, gradient);
                 }
-                Ok(value)
+                value
             }
         }
     }
@@ -253,11 +238,7 @@ impl KnownFunction for RotatedWitness {
                 directions,
                 ..
             } => {
-                let z1 = crate::large_scale::instances::Chain::unit_minimiser(
-                    directions.len(),
-                    *coupling,
-                    *strong_convexity,
-                )[0];
+                let z1 = Chain::unit_minimiser(directions.len(), *coupling, *strong_convexity)[0];
                 -0.5 * coupling * shift * shift * z1
             }
         }
@@ -281,14 +262,10 @@ impl KnownFunction for RotatedWitness {
                 directions,
                 dim,
             } => (
-                crate::large_scale::instances::Chain::unit_minimiser(
-                    directions.len(),
-                    *coupling,
-                    *strong_convexity,
-                )
-                .into_iter()
-                .map(|z| z * shift)
-                .collect(),
+                Chain::unit_minimiser(directions.len(), *coupling, *strong_convexity)
+                    .into_iter()
+                    .map(|z| z * shift)
+                    .collect(),
                 *dim,
             ),
         };
@@ -303,7 +280,7 @@ impl KnownFunction for RotatedWitness {
         match self {
             RotatedWitness::RotatedMax { .. } => {
                 let mut g = vec![0.0; x.len()];
-                self.clone().answer(x, &mut g).unwrap_or(f64::NAN) - self.optimal_value()
+                self.evaluate(x, &mut g) - self.optimal_value()
             }
             RotatedWitness::RotatedChain {
                 coupling,
@@ -313,14 +290,11 @@ impl KnownFunction for RotatedWitness {
                 ..
             } => {
                 // (1/2)(c Q(z - z*) + mu ||x - x*||^2), z = U^T x.
-                let star: Vec<f64> = crate::large_scale::instances::Chain::unit_minimiser(
-                    directions.len(),
-                    *coupling,
-                    *strong_convexity,
-                )
-                .into_iter()
-                .map(|z| z * shift)
-                .collect();
+                let star: Vec<f64> =
+                    Chain::unit_minimiser(directions.len(), *coupling, *strong_convexity)
+                        .into_iter()
+                        .map(|z| z * shift)
+                        .collect();
                 let e: Vec<f64> = self
                     .projections(x)
                     .iter()
@@ -344,159 +318,4 @@ impl KnownFunction for RotatedWitness {
             }
         }
     }
-}
-
-/// The header of a demonstration transcript.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct DemoHeader {
-    /// Format version (1).
-    pub format: u32,
-    /// `naysayer <version>`.
-    pub tool: String,
-    /// The class.
-    pub class: LargeScaleClass,
-    /// The oracle (adversary or instance) name.
-    pub oracle: String,
-    /// The method name.
-    pub method: String,
-    /// The method's seed.
-    pub seed: u64,
-    /// The planned number of queries T.
-    pub queries: u64,
-}
-
-/// One answered query.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct DemoQuery {
-    /// 1-based index.
-    pub index: u64,
-    /// The query.
-    pub point: Vec<f64>,
-    /// f(x) as answered.
-    pub value: f64,
-    /// The (sub)gradient as answered.
-    pub gradient: Vec<f64>,
-}
-
-/// The last record: the output, the gap and the witness.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct DemoFinal {
-    /// Queries answered.
-    pub queries_used: u64,
-    /// The method's output, when it gave one.
-    pub output: Option<Vec<f64>>,
-    /// The gap in the class's accuracy measure, evaluated on the witness.
-    pub gap: f64,
-    /// The published bound the adversary forces.
-    pub bound: f64,
-    /// The rotated function.
-    pub witness: RotatedWitness,
-}
-
-/// One line of a demonstration transcript.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(tag = "type", content = "data", rename_all = "kebab-case")]
-pub enum DemoRecord {
-    /// First line.
-    DemoHeader(DemoHeader),
-    /// One exchange.
-    DemoQuery(DemoQuery),
-    /// Last line.
-    DemoFinal(DemoFinal),
-}
-
-/// Writes a demonstration transcript to `path`.
-pub fn write_transcript(path: &Path, records: &[DemoRecord]) -> Result<(), Error> {
-    let io = |source: std::io::Error| Error::Io {
-        action: "cannot write demonstration transcript",
-        path: path.to_path_buf(),
-        source,
-    };
-    let file = std::fs::File::create(path).map_err(io)?;
-    let mut out = std::io::BufWriter::new(file);
-    for r in records {
-        serde_json::to_writer(&mut out, r).map_err(|e| io(std::io::Error::other(e)))?;
-        out.write_all(b"\n").map_err(io)?;
-    }
-    out.flush().map_err(io)
-}
-
-/// Reads a demonstration transcript; a malformed line is an error naming it.
-pub fn read_transcript(path: &Path) -> Result<Vec<DemoRecord>, Error> {
-    let file = std::fs::File::open(path).map_err(|source| Error::Io {
-        action: "cannot read demonstration transcript",
-        path: path.to_path_buf(),
-        source,
-    })?;
-    let mut records = Vec::new();
-    for (i, line) in std::io::BufReader::new(file).lines().enumerate() {
-        let line = line.map_err(|source| Error::Io {
-            action: "cannot read demonstration transcript",
-            path: path.to_path_buf(),
-            source,
-        })?;
-        records.push(serde_json::from_str(&line).map_err(|e| Error::Transcript {
-            line: i as u64 + 1,
-            reason: format!("not a demonstration record: {e}"),
-        })?);
-    }
-    Ok(records)
-}
-
-/// What a replay found.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct ReplayReport {
-    /// Answers checked.
-    pub answers: u64,
-    /// Largest relative value error.
-    pub value_error: f64,
-    /// Largest relative subgradient error.
-    pub gradient_error: f64,
-    /// Largest deviation of the directions from orthonormality.
-    pub orthonormality_error: f64,
-}
-
-/// Replays every answer of a demonstration transcript against its witness; an error
-/// names the first line (1-based) whose value or subgradient the witness does not
-/// reproduce to [`RELATIVE_TOLERANCE`].
-pub fn replay(records: &[DemoRecord]) -> Result<ReplayReport, Error> {
-    let Some(DemoRecord::DemoFinal(last)) = records.last() else {
-        return Err(Error::Transcript {
-            line: records.len() as u64,
-            reason: "the last record is not a demo-final record with the witness".into(),
-        });
-    };
-    let witness = &last.witness;
-    let mut report = ReplayReport {
-        answers: 0,
-        value_error: 0.0,
-        gradient_error: 0.0,
-        orthonormality_error: witness.orthonormality_error(),
-    };
-    for (i, record) in records.iter().enumerate() {
-        let DemoRecord::DemoQuery(q) = record else {
-            continue;
-        };
-        if q.point.len() != witness.dim() || q.gradient.len() != witness.dim() {
-            return Err(Error::Transcript {
-                line: i as u64 + 1,
-                reason: format!("point or gradient length is not d = {}", witness.dim()),
-            });
-        }
-        let (v, g) = witness.check_answer(&q.point, q.value, &q.gradient);
-        if !(v <= RELATIVE_TOLERANCE && g <= RELATIVE_TOLERANCE) {
-            return Err(Error::Transcript {
-                line: i as u64 + 1,
-                reason: format!(
-                    "the witness does not reproduce answer {}: relative value error {v:e}, \
-                     subgradient error {g:e} (tolerance {RELATIVE_TOLERANCE:e})",
-                    q.index
-                ),
-            });
-        }
-        report.answers += 1;
-        report.value_error = report.value_error.max(v);
-        report.gradient_error = report.gradient_error.max(g);
-    }
-    Ok(report)
 }

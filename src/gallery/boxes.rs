@@ -1,4 +1,5 @@
-//! The charts of a sweep's results folder, drawn from `games.csv` and `scenario.toml`.
+//! The charts of a box family's results folder (feasibility, first-order, lattice),
+//! drawn from `games.csv` and the scenario.
 //!
 //! For a feasibility scenario:
 //! - `queries-vs-dim`: queries used against d at the scenario's chart rho, one series per
@@ -28,19 +29,16 @@ use crate::bounds;
 use crate::certificate::universal::{self, Exchange};
 use crate::chart::{self, ChartSpec, Curve, CurveStyle, Cut2d, Game2d, Scale, Series, SeriesPoint};
 use crate::class::{Class, FeasibilityClass, FirstOrderClass, LatticeClass};
+use crate::csv::split as split_csv_line;
 use crate::error::Error;
+use crate::family::boxes::{BoxGrid, BoxKind as Family, ClassFacts, COLUMNS, NO_ACCURACY};
+use crate::gallery::{HEIGHT, WIDTH};
 use crate::game::UndecidedTrace;
 use crate::method;
 use crate::oracle::{Answer, Normal};
 use crate::runner::{self, GameSpec};
-use crate::scenario::{Family, Scenario, NO_ACCURACY};
-use crate::sweep::{split_csv_line, ClassFacts, COLUMNS};
+use crate::scenario::Scenario;
 use crate::transcript::{MemoryTranscript, Record};
-
-/// Chart width in pixels.
-pub const WIDTH: u32 = 1000;
-/// Chart height in pixels.
-pub const HEIGHT: u32 = 650;
 
 /// One game's numbers, as read back from `games.csv`.
 #[derive(Clone, Debug, PartialEq)]
@@ -260,18 +258,18 @@ fn uncertainty_series(
     })
 }
 
-/// Draws every chart of the results folder `dir`; returns the PNG paths.
-pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
-    let scenario = Scenario::from_file(&dir.join("scenario.toml"))?;
+/// Draws every chart of the results folder `dir` of a box family; returns the PNG paths.
+pub fn draw_all(dir: &Path, scenario: &Scenario, grid: &BoxGrid) -> Result<Vec<PathBuf>, Error> {
     let table = read_table(&dir.join("games.csv"))?;
+    let budget = scenario.budget.unwrap_or(1);
     let mut pngs = Vec::new();
-    let first_order = matches!(scenario.family, Family::FirstOrder { .. });
-    let acc = scenario.accuracy_name();
-    let ratio_of = |accuracy: f64| match &scenario.family {
-        Family::FirstOrder { lipschitz, .. } => lipschitz * scenario.half_width / accuracy,
-        Family::Feasibility { .. } | Family::Lattice { .. } => scenario.half_width / accuracy,
+    let first_order = matches!(grid.kind, Family::FirstOrder { .. });
+    let acc = grid.accuracy_name();
+    let ratio_of = |accuracy: f64| match &grid.kind {
+        Family::FirstOrder { lipschitz, .. } => lipschitz * grid.half_width / accuracy,
+        Family::Feasibility { .. } | Family::Lattice { .. } => grid.half_width / accuracy,
     };
-    let lattice = match scenario.family {
+    let lattice = match grid.kind {
         Family::Lattice {
             int_lower,
             int_upper,
@@ -280,7 +278,7 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         _ => None,
     };
     let pure_integer = matches!(lattice, Some((_, _, 0)));
-    let r = scenario.half_width;
+    let r = grid.half_width;
     let domain = match lattice {
         Some((lo, hi, 0)) => format!("{{{lo}..{hi}}}^n"),
         Some((lo, hi, d)) => format!("{{{lo}..{hi}}}^n x [-{r}, {r}]^{d}"),
@@ -291,7 +289,7 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         scenario.name,
         scenario.adversary,
         scenario.seeds.len(),
-        scenario.budget,
+        budget,
     );
     let subtitle = if first_order {
         format!(
@@ -302,13 +300,13 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
     };
 
     // (a) queries against d at fixed accuracy.
-    let rho = scenario.chart_accuracy;
+    let rho = grid.chart_accuracy;
     let series = table
         .methods
         .iter()
         .map(|m| Series {
             label: m.clone(),
-            points: scenario
+            points: grid
                 .dims
                 .iter()
                 .filter_map(|&d| {
@@ -319,10 +317,10 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         })
         .filter(|s| !s.points.is_empty())
         .collect();
-    let classes: Vec<(f64, Class)> = scenario
+    let classes: Vec<(f64, Class)> = grid
         .dims
         .iter()
-        .filter_map(|&d| Some((d as f64, scenario.class_at(d, rho).ok()?)))
+        .filter_map(|&d| Some((d as f64, grid.class_at(d, rho).ok()?)))
         .collect();
     let spec = ChartSpec {
         title: if pure_integer {
@@ -358,14 +356,14 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
 
     // (b) queries against log2(R/rho) (or log2(LR/eps)) at fixed d; a pure integer
     // class has no accuracy, so no such chart.
-    let d = scenario.chart_dim;
+    let d = grid.chart_dim;
     let log_ratio = |rho: f64| ratio_of(rho).log2();
     let series = table
         .methods
         .iter()
         .map(|m| Series {
             label: m.clone(),
-            points: scenario
+            points: grid
                 .accuracies
                 .iter()
                 .filter_map(|&rho| {
@@ -376,10 +374,10 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
         })
         .filter(|s| !s.points.is_empty())
         .collect();
-    let classes: Vec<(f64, Class)> = scenario
+    let classes: Vec<(f64, Class)> = grid
         .accuracies
         .iter()
-        .filter_map(|&rho| Some((log_ratio(rho), scenario.class_at(d, rho).ok()?)))
+        .filter_map(|&rho| Some((log_ratio(rho), grid.class_at(d, rho).ok()?)))
         .collect();
     let spec = ChartSpec {
         title: match lattice {
@@ -406,7 +404,7 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
     }
 
     // (c) undecided measure against the query index.
-    let class = scenario.class_at(d, rho)?;
+    let class = grid.class_at(d, rho)?;
     let mut series = Vec::new();
     let mut gap_series = Vec::new();
     for m in &scenario.methods {
@@ -419,7 +417,7 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
             adversary: scenario.adversary.clone(),
             method: m.clone(),
             seed: scenario.seeds[0],
-            budget: scenario.budget,
+            budget,
             transcript: None,
         };
         let mut trace = UndecidedTrace::default();
@@ -510,9 +508,8 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
     }
 
     // (d) a two-dimensional game (feasibility).
-    let picture_rho = scenario.accuracies[0];
-    if let (false, Ok(Class::Feasibility(class))) = (first_order, scenario.class_at(2, picture_rho))
-    {
+    let picture_rho = grid.accuracies[0];
+    if let (false, Ok(Class::Feasibility(class))) = (first_order, grid.class_at(2, picture_rho)) {
         let any = Class::Feasibility(class.clone());
         if let Some(m) = scenario
             .methods
@@ -524,7 +521,7 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
                 adversary: scenario.adversary.clone(),
                 method: m.clone(),
                 seed: scenario.seeds[0],
-                budget: scenario.budget.min(200),
+                budget: budget.min(200),
                 transcript: None,
             };
             let mut memory = MemoryTranscript::default();

@@ -15,8 +15,8 @@
 //! about 1e-16 beta R^2 (docs/theory.md §3).
 
 use crate::error::Error;
-use crate::large_scale::instances::Chain;
-use crate::large_scale::{KnownFunction, Oracle};
+use crate::instance::large_scale::Chain;
+use crate::instance::large_scale::{Function, KnownFunction};
 
 /// Nesterov's strongly convex chain for horizon k.
 #[derive(Clone, Debug)]
@@ -49,7 +49,7 @@ impl StronglyConvexChain {
         }
         let coupling = (smoothness - strong_convexity) / 4.0;
         let unit = Chain::unit_minimiser(length, coupling, strong_convexity);
-        let unit_norm = crate::large_scale::norm(&unit);
+        let unit_norm = crate::geometry::basis::norm(&unit);
         let chain = Chain::new(
             dim,
             length,
@@ -96,15 +96,15 @@ pub fn lower_bound(smoothness: f64, strong_convexity: f64, radius: f64, queries:
     0.5 * strong_convexity * (2.0 * queries * q.ln()).exp() * radius * radius
 }
 
-impl Oracle for StronglyConvexChain {
+impl Function for StronglyConvexChain {
     fn name(&self) -> &str {
         "strongly-convex-chain"
     }
     fn dim(&self) -> usize {
         self.chain.dim()
     }
-    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
-        self.chain.answer(x, gradient)
+    fn evaluate(&self, x: &[f64], gradient: &mut [f64]) -> f64 {
+        self.chain.evaluate(x, gradient)
     }
 }
 

@@ -6,10 +6,9 @@
 //! Deliberately not a span method (its queries ignore the gradients), to exercise the
 //! adaptive-rotation adversary, which must hold against any deterministic method.
 
-use crate::class::LargeScaleClass;
+use crate::class::{Class, LargeScaleClass};
 use crate::error::Error;
-use crate::method::large_scale::read_answer;
-use crate::method::Method;
+use crate::method::{read_answer, wrong_family, Method, MethodInfo};
 use crate::oracle::{Answer, Output, Step};
 
 /// Coordinate search.
@@ -90,3 +89,18 @@ impl Method for CoordinateSearch {
         Ok(())
     }
 }
+
+/// The registry entry of `coordinate-search`.
+pub const INFO: MethodInfo = MethodInfo {
+    name: "coordinate-search",
+    description: "large-scale, any class: tries +-h along coordinate axes from the best point, \
+                  halves h after a full unsuccessful sweep (non-span; common practice)",
+    deterministic: true,
+    span: false,
+    families: &["large-scale"],
+    restriction: None,
+    build: |class, _seed| match class {
+        Class::LargeScale(c) => Ok(Box::new(CoordinateSearch::new(&c.function, c.horizon))),
+        _ => Err(wrong_family("coordinate-search", &["large-scale"])),
+    },
+};

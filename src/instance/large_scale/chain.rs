@@ -15,7 +15,7 @@
 //! (1/2)(x - x*)^T H (x - x*), a sum of non-negative terms with no cancellation.
 
 use crate::error::Error;
-use crate::large_scale::{KnownFunction, Oracle};
+use crate::instance::large_scale::{Function, KnownFunction};
 
 /// The chain quadratic with its parameters.
 #[derive(Clone, Debug)]
@@ -98,13 +98,13 @@ impl Chain {
             let diff = w[0] - w[1];
             chain_terms += diff * diff;
         }
-        let norm2 = crate::large_scale::basis::dot(e_chain, e_chain)
-            + crate::large_scale::basis::dot(beyond, beyond);
+        let norm2 = crate::geometry::basis::dot(e_chain, e_chain)
+            + crate::geometry::basis::dot(beyond, beyond);
         0.5 * (self.coupling * chain_terms + self.strong_convexity * norm2)
     }
 }
 
-impl Oracle for Chain {
+impl Function for Chain {
     fn name(&self) -> &str {
         self.name
     }
@@ -113,14 +113,14 @@ impl Oracle for Chain {
         self.dim
     }
 
-    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
+    fn evaluate(&self, x: &[f64], gradient: &mut [f64]) -> f64 {
         let (c, mu, p) = (self.coupling, self.strong_convexity, self.length);
         // Straight-line loops over slices (no branches inside), so they vectorise.
         let chain = &x[..p];
         let chain_terms = chain[0] * chain[0]
             + chain[p - 1] * chain[p - 1]
             + squared_differences(&chain[..p - 1], &chain[1..]);
-        let norm2 = crate::large_scale::basis::dot(x, x);
+        let norm2 = crate::geometry::basis::dot(x, x);
         if p == 1 {
             gradient[0] = 2.0 * c * chain[0] + mu * chain[0];
         } else {
@@ -137,8 +137,34 @@ impl Oracle for Chain {
         for (g, xi) in gradient[p..].iter_mut().zip(&x[p..]) {
             *g = mu * xi;
         }
-        Ok(0.5 * (c * chain_terms + mu * norm2) - c * self.shift * x[0])
+        0.5 * (c * chain_terms + mu * norm2) - c * self.shift * x[0]
     }
+}
+
+/// Value and chain gradient of h(z) = (c/2) z^T A z - c s z_1 for z given on its first
+/// `z.len()` coordinates (zero beyond), chain length p: returns h and writes
+/// w_i = c (A z - s e_1)_i for i < min(len + 1, p) into `w`.
+pub fn chain_part(z: &[f64], length: usize, coupling: f64, shift: f64, w: &mut Vec<f64>) -> f64 {
+    let j = z.len();
+    let at = |i: usize| if i < j { z[i] } else { 0.0 };
+    let mut quad = 0.0;
+    let mut previous = 0.0;
+    for &zi in z {
+        let diff = previous - zi;
+        quad += diff * diff;
+        previous = zi;
+    }
+    quad += previous * previous;
+    w.clear();
+    for i in 0..(j + 1).min(length) {
+        let left = if i == 0 { 0.0 } else { at(i - 1) };
+        let mut wi = coupling * ((at(i) - left) + (at(i) - at(i + 1)));
+        if i == 0 {
+            wi -= coupling * shift;
+        }
+        w.push(wi);
+    }
+    0.5 * coupling * quad - coupling * shift * at(0)
 }
 
 /// sum_i (a_i - b_i)^2 with eight independent accumulators (fixed order).
@@ -193,10 +219,10 @@ mod tests {
     #[test]
     fn the_gradient_vanishes_at_the_minimiser() {
         for mu in [0.0, 0.01, 0.5] {
-            let mut chain = Chain::new(12, 9, 0.25, mu, 1.7, "test").unwrap();
+            let chain = Chain::new(12, 9, 0.25, mu, 1.7, "test").unwrap();
             let star = chain.minimiser();
             let mut g = vec![0.0; 12];
-            let value = chain.answer(&star, &mut g).unwrap();
+            let value = chain.evaluate(&star, &mut g);
             assert!(g.iter().all(|gi| gi.abs() < 1e-14), "mu {mu}: {g:?}");
             let expected = chain.optimal_value();
             assert!((value - expected).abs() < 1e-14, "{value} vs {expected}");
@@ -209,18 +235,18 @@ mod tests {
         // For a quadratic the central difference is exact up to rounding (common
         // practice, no source).
         for (d, p) in [(1, 1), (2, 2), (9, 9), (20, 13)] {
-            let mut chain = Chain::new(d, p, 0.7, 0.05, 1.3, "test").unwrap();
+            let chain = Chain::new(d, p, 0.7, 0.05, 1.3, "test").unwrap();
             let x: Vec<f64> = (0..d).map(|i| (i as f64 * 0.91 + 0.3).cos()).collect();
             let mut g = vec![0.0; d];
-            chain.answer(&x, &mut g).unwrap();
+            chain.evaluate(&x, &mut g);
             let mut scratch = vec![0.0; d];
             for i in 0..d {
                 let h = 1e-3;
                 let (mut plus, mut minus) = (x.clone(), x.clone());
                 plus[i] += h;
                 minus[i] -= h;
-                let fp = chain.answer(&plus, &mut scratch).unwrap();
-                let fm = chain.answer(&minus, &mut scratch).unwrap();
+                let fp = chain.evaluate(&plus, &mut scratch);
+                let fm = chain.evaluate(&minus, &mut scratch);
                 let numeric = (fp - fm) / (2.0 * h);
                 assert!(
                     (numeric - g[i]).abs() < 1e-9,
@@ -233,10 +259,10 @@ mod tests {
 
     #[test]
     fn the_gap_agrees_with_the_difference_of_values() {
-        let mut chain = Chain::new(10, 7, 0.3, 0.02, 0.9, "test").unwrap();
+        let chain = Chain::new(10, 7, 0.3, 0.02, 0.9, "test").unwrap();
         let x: Vec<f64> = (0..10).map(|i| (i as f64 * 0.37).sin()).collect();
         let mut g = vec![0.0; 10];
-        let value = chain.answer(&x, &mut g).unwrap();
+        let value = chain.evaluate(&x, &mut g);
         let gap = chain.gap(&x);
         assert!((value - chain.optimal_value() - gap).abs() < 1e-14 * (1.0 + gap));
     }

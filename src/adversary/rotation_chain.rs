@@ -20,13 +20,16 @@
 //!
 //! Demonstration, not certificate (see [`super::witness`]).
 
-use crate::class::LargeScaleClass;
+use crate::adversary::rotation::{first_order_answer, DIRECTION_SEED};
+use crate::adversary::{wrong_family, Adversary, AdversaryInfo, Conclusion, Scope, Undecided};
+use crate::bounds::large_scale::lower_curve;
+use crate::class::{Class, LargeScale, LargeScaleClass};
 use crate::error::Error;
-use crate::large_scale::basis::{axpy, dot, Basis};
-use crate::large_scale::instances::Chain;
-use crate::large_scale::rotation::DIRECTION_SEED;
-use crate::large_scale::witness::RotatedWitness;
-use crate::large_scale::Oracle;
+use crate::geometry::basis::{axpy, dot, norm, Basis};
+use crate::instance::large_scale::chain::{chain_part, Chain};
+use crate::instance::large_scale::{KnownFunction, RotatedWitness};
+use crate::oracle::Answer;
+use crate::transcript::Demonstration;
 
 /// The smooth adaptive-rotation adversary.
 #[derive(Clone, Debug)]
@@ -42,12 +45,17 @@ pub struct RotationChain {
     projections: Vec<f64>,
     /// Reused buffer for the chain's gradient weights along the revealed directions.
     weights: Vec<f64>,
+    /// Reused buffer for the gradient of an answer.
+    gradient: Vec<f64>,
+    /// The published lower curve at T (the class's bound).
+    bound: f64,
 }
 
 impl RotationChain {
     /// The adversary for `queries` = T queries on a smooth or strongly convex class,
     /// with the chain of length 2T + 1 scaled so that ||x*|| = R.
     pub fn new(class: &LargeScaleClass, queries: usize) -> Result<RotationChain, Error> {
+        let bound = lower_curve(class, queries as u64);
         let (coupling, mu) = match *class {
             LargeScaleClass::Smooth { smoothness, .. } => (smoothness / 4.0, 0.0),
             LargeScaleClass::StronglyConvex {
@@ -77,7 +85,7 @@ impl RotationChain {
             });
         }
         let unit = Chain::unit_minimiser(length, coupling, mu);
-        let shift = class.radius() / crate::large_scale::norm(&unit);
+        let shift = class.radius() / norm(&unit);
         Ok(RotationChain {
             coupling,
             strong_convexity: mu,
@@ -89,7 +97,14 @@ impl RotationChain {
             answered: 0,
             projections: Vec::new(),
             weights: Vec::new(),
+            gradient: vec![0.0; dim],
+            bound,
         })
+    }
+
+    /// The adversary of a game on a smooth or strongly convex class at horizon T.
+    pub fn for_game(game: &LargeScale) -> Result<RotationChain, Error> {
+        RotationChain::new(&game.function, game.horizon as usize)
     }
 
     /// The number of directions revealed so far.
@@ -98,7 +113,7 @@ impl RotationChain {
     }
 
     /// Completes the hidden function (see [`super::rotation::Rotation::finish`]).
-    pub fn finish(mut self, output: Option<&[f64]>) -> Result<RotatedWitness, Error> {
+    pub fn finish(&mut self, output: Option<&[f64]>) -> Result<RotatedWitness, Error> {
         if let Some(x) = output {
             self.basis.absorb(x)?;
         }
@@ -120,42 +135,9 @@ impl RotationChain {
     }
 }
 
-/// Value and chain gradient of h(z) = (c/2) z^T A z - c s z_1 for z given on its first
-/// `z.len()` coordinates (zero beyond), chain length p: returns h and writes
-/// w_i = c (A z - s e_1)_i for i < min(len + 1, p) into `w`.
-pub fn chain_part(z: &[f64], length: usize, coupling: f64, shift: f64, w: &mut Vec<f64>) -> f64 {
-    let j = z.len();
-    let at = |i: usize| if i < j { z[i] } else { 0.0 };
-    let mut quad = 0.0;
-    let mut previous = 0.0;
-    for &zi in z {
-        let diff = previous - zi;
-        quad += diff * diff;
-        previous = zi;
-    }
-    quad += previous * previous;
-    w.clear();
-    for i in 0..(j + 1).min(length) {
-        let left = if i == 0 { 0.0 } else { at(i - 1) };
-        let mut wi = coupling * ((at(i) - left) + (at(i) - at(i + 1)));
-        if i == 0 {
-            wi -= coupling * shift;
-        }
-        w.push(wi);
-    }
-    0.5 * coupling * quad - coupling * shift * at(0)
-}
-
-impl Oracle for RotationChain {
-    fn name(&self) -> &str {
-        "rotation-chain"
-    }
-
-    fn dim(&self) -> usize {
-        self.basis.dim()
-    }
-
-    fn answer(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
+impl RotationChain {
+    /// Answers x in `f64`: returns f(x) and writes the gradient into `gradient`.
+    pub fn respond(&mut self, x: &[f64], gradient: &mut [f64]) -> Result<f64, Error> {
         if self.answered >= self.queries {
             return Err(Error::DimensionTooSmall {
                 dim: self.basis.dim(),
@@ -192,5 +174,58 @@ impl Oracle for RotationChain {
         self.weights = w;
         self.answered += 1;
         Ok(value)
+    }
+}
+
+/// The registry entry (docs/theory.md: see the description).
+pub const INFO: AdversaryInfo = AdversaryInfo {
+    name: "rotation-chain",
+    family: "large-scale",
+    description: "large-scale smooth and strongly convex: adaptive rotation of the chain of \
+                  length 2T + 1 (any deterministic method; d >= 3T + 2; demonstration, \
+                  docs/theory.md §3)",
+    scope: Scope::EveryMethod,
+    build: |class| match class {
+        Class::LargeScale(c) => Ok(Box::new(RotationChain::for_game(c)?)),
+        _ => Err(wrong_family("rotation-chain", "large-scale")),
+    },
+};
+
+impl Adversary for RotationChain {
+    fn name(&self) -> &str {
+        "rotation-chain"
+    }
+
+    fn capacity(&self) -> Option<u64> {
+        Some(self.queries as u64)
+    }
+
+    fn answer(&mut self, x: &[f64]) -> Answer {
+        let mut gradient = std::mem::take(&mut self.gradient);
+        let value = self
+            .respond(x, &mut gradient)
+            .expect("the game loop keeps within the capacity checked at construction");
+        let answer = first_order_answer(value, &gradient);
+        self.gradient = gradient;
+        answer
+    }
+
+    fn witnesses(&self) -> Option<crate::transcript::Witnesses> {
+        None
+    }
+
+    fn undecided(&self) -> Undecided {
+        Undecided::HiddenDirections((self.length - self.revealed.len()) as f64)
+    }
+
+    fn conclude(&mut self, output: Option<&[f64]>) -> Result<Conclusion, Error> {
+        let witness = self.finish(output)?;
+        // Smooth classes measure the gap at the output only.
+        let gap = output.map(|x| witness.gap(x));
+        Ok(Conclusion::Demonstration(Demonstration::new(
+            gap,
+            self.bound,
+            Some(witness),
+        )))
     }
 }

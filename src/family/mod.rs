@@ -1,0 +1,205 @@
+//! Families of classes: the one registry through which scenarios, sweeps, charts and
+//! `play` reach every class the tool knows.
+//!
+//! A family (feasibility, first-order, lattice, large-scale) is one registered type
+//! ([`Family`]) that knows how to read its part of a scenario file (the `[class]` and
+//! `[charts]` tables) into a [`Grid`], and whether its games end in a certificate (checked
+//! by the exact verifier, [`crate::certificate`]) or in a demonstration (checked to a
+//! stated tolerance, [`crate::demonstration`], never accepted by `naysayer check`). The
+//! grid enumerates its classes in canonical order, plays one game, writes its row of
+//! `games.csv` and draws its charts. Everything else (the common scenario keys, the game
+//! loop, resume, shards, merge, expectations) is shared.
+//!
+//! To add a family: write `src/family/<name>.rs` with a type implementing [`Family`] (and
+//! a grid implementing [`Grid`]), and list it in [`FAMILIES`].
+
+pub mod boxes;
+pub mod feasibility;
+pub mod first_order;
+pub mod large_scale;
+pub mod lattice;
+
+use std::any::Any;
+use std::path::{Path, PathBuf};
+
+use toml::Spanned;
+
+use crate::class::Class;
+use crate::error::Error;
+use crate::method::Method;
+use crate::runner::{self, DemoReport, GameSpec, Report};
+use crate::scenario::{GridGame, Scenario};
+use crate::transcript::Flush;
+
+/// What a family's games end in.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Evidence {
+    /// A certificate, checked exactly by the verifier.
+    Certificate,
+    /// A published-theorem demonstration, checked to a stated relative tolerance.
+    Demonstration,
+}
+
+/// A registered family of classes.
+pub trait Family: Sync {
+    /// The name in scenario files and on the command line (`--class`).
+    fn name(&self) -> &'static str;
+    /// Certificate or demonstration.
+    fn evidence(&self) -> Evidence;
+    /// Reads the family's tables (`[class]`, `[charts]`) of a scenario.
+    fn parse(&self, text: &ScenarioText<'_>) -> Result<Box<dyn Grid>, Error>;
+    /// The adversary `play` uses for `class` when none is named.
+    fn default_adversary(&self, class: &Class) -> &'static str;
+}
+
+/// Every registered family.
+pub const FAMILIES: &[&dyn Family] = &[
+    &feasibility::FEASIBILITY,
+    &first_order::FIRST_ORDER,
+    &lattice::LATTICE,
+    &large_scale::LARGE_SCALE,
+];
+
+/// The family called `name`.
+pub fn find(name: &str) -> Option<&'static dyn Family> {
+    FAMILIES.iter().copied().find(|f| f.name() == name)
+}
+
+/// The family of `class`.
+pub fn of(class: &Class) -> &'static dyn Family {
+    find(class.family_name()).expect("every class belongs to a registered family")
+}
+
+/// The names of every family, quoted and comma-separated (for messages).
+pub fn names() -> String {
+    FAMILIES
+        .iter()
+        .map(|f| format!("{:?}", f.name()))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// The result of one game, whatever its evidence.
+#[derive(Debug)]
+pub enum GameReport {
+    /// A certificate game, verified exactly.
+    Certificate(Report),
+    /// A demonstration game, judged to its tolerance.
+    Demonstration(DemoReport),
+}
+
+impl GameReport {
+    /// Whether the verifier (or the demonstration judge) accepted the game: `false` is an
+    /// adversary bug, or a claimed lower curve that does not hold.
+    pub fn accepted(&self) -> bool {
+        match self {
+            GameReport::Certificate(r) => r.verdict.is_ok(),
+            GameReport::Demonstration(r) => r.judgement.as_ref().is_ok_and(|v| v.consistent()),
+        }
+    }
+
+    /// Queries the method asked (the budget when the budget ended the game).
+    pub fn queries_used(&self) -> u64 {
+        match self {
+            GameReport::Certificate(r) => r.record.queries_used,
+            GameReport::Demonstration(r) => r.record.queries_used,
+        }
+    }
+}
+
+/// Plays one game of `class`'s family with `method`, verified or judged as the family's
+/// evidence requires.
+pub fn play(spec: &GameSpec, method: &mut dyn Method, flush: Flush) -> Result<GameReport, Error> {
+    match of(&spec.class).evidence() {
+        Evidence::Certificate => Ok(GameReport::Certificate(runner::run_with_flush(
+            spec,
+            method,
+            &mut [],
+            flush,
+        )?)),
+        Evidence::Demonstration => Ok(GameReport::Demonstration(runner::demonstrate_with_flush(
+            spec, method, flush,
+        )?)),
+    }
+}
+
+/// A family's grid of classes, read from a scenario.
+pub trait Grid: std::fmt::Debug + Send + Sync + Any {
+    /// The family.
+    fn family(&self) -> &'static dyn Family;
+    /// Number of classes in the grid.
+    fn len(&self) -> u64;
+    /// True when the grid has no class (never, for a parsed scenario).
+    fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+    /// Class number `point` (from 0) in canonical order.
+    fn class(&self, point: u64) -> Result<Class, Error>;
+    /// The query budget of a game of `class` (`budget` is the scenario's `[play]`
+    /// budget; the large-scale family uses the horizon).
+    fn budget(&self, class: &Class, budget: Option<u64>) -> u64;
+    /// The columns of `games.csv`, in order; the first is `game`.
+    fn columns(&self) -> &'static [&'static str];
+    /// The columns that identify a game (checked against the grid on resume, and usable
+    /// as selectors in expectation files); the rest are results.
+    fn identity_columns(&self) -> &'static [&'static str];
+    /// The cells of one game's row, in column order (results from `report`).
+    fn row(&self, scenario: &Scenario, game: &GridGame, report: &GameReport) -> Vec<String>;
+    /// The identity cells of a game before it is played (`None` in result columns).
+    fn identity(&self, scenario: &Scenario, game: &GridGame) -> Vec<Option<String>>;
+    /// Draws the family's charts of a results folder; returns the PNG paths.
+    fn draw_charts(&self, dir: &Path, scenario: &Scenario) -> Result<Vec<PathBuf>, Error>;
+    /// As [`Any`], for callers that know the concrete grid.
+    fn as_any(&self) -> &dyn Any;
+}
+
+/// A scenario's text, for a family's parser: the raw text (every family reads its own
+/// tables from it with spans), the file name for errors, and what the common parser
+/// already read.
+pub struct ScenarioText<'a> {
+    /// The file, for error messages.
+    pub path: &'a Path,
+    /// The TOML text.
+    pub text: &'a str,
+    /// The adversary named in `[adversary]`, with its place.
+    pub adversary: &'a Spanned<String>,
+    /// The `[play]` budget, if given, with its place.
+    pub budget: Option<&'a Spanned<i64>>,
+}
+
+impl ScenarioText<'_> {
+    /// A scenario error at byte `offset`.
+    pub fn error_at(&self, offset: usize, reason: impl Into<String>) -> Error {
+        error_at(self.path, self.text, offset, reason)
+    }
+
+    /// A scenario error at a spanned value.
+    pub fn error<T>(&self, spanned: &Spanned<T>, reason: impl Into<String>) -> Error {
+        self.error_at(spanned.span().start, reason)
+    }
+
+    /// Deserializes the whole text into a family's view `T` (which reads only its own
+    /// tables, strictly); a TOML error names its line and column.
+    pub fn read<T: serde::de::DeserializeOwned>(&self) -> Result<T, Error> {
+        toml::from_str(self.text).map_err(|e| {
+            let offset = e.span().map_or(0, |s| s.start);
+            self.error_at(offset, e.message().trim().to_string())
+        })
+    }
+}
+
+/// A scenario error at byte `offset` of `text`, with its 1-based line and column
+/// (columns count characters).
+pub fn error_at(path: &Path, text: &str, offset: usize, reason: impl Into<String>) -> Error {
+    let mut offset = offset.min(text.len());
+    while !text.is_char_boundary(offset) {
+        offset -= 1;
+    }
+    let before = &text[..offset];
+    Error::Scenario {
+        path: path.to_path_buf(),
+        line: before.matches('\n').count() + 1,
+        column: before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1,
+        reason: reason.into(),
+    }
+}

@@ -1,0 +1,152 @@
+//! The chart of a large-scale results folder: the gap against the horizon T (log-log),
+//! one series per method (median over seeds with a min-max band), with the lower-bound
+//! curves and each method's upper-bound curve. Demonstrations, not certificates
+//! (docs/theory.md §3).
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+use crate::bounds::large_scale::gap_bounds;
+use crate::bounds::Side;
+use crate::chart::{self, ChartSpec, Curve, CurveStyle, Scale, Series, SeriesPoint};
+use crate::csv::split as split_csv_line;
+use crate::error::Error;
+use crate::family::large_scale::{LargeScaleGrid, COLUMNS};
+use crate::scenario::Scenario;
+
+/// Draws the gap-against-T chart of a large-scale results folder; returns the PNG path.
+pub fn draw_all(
+    dir: &Path,
+    scenario: &Scenario,
+    grid: &LargeScaleGrid,
+) -> Result<Vec<PathBuf>, Error> {
+    let csv = dir.join("games.csv");
+    let text = std::fs::read_to_string(&csv).map_err(|source| Error::Io {
+        action: "cannot read",
+        path: csv.clone(),
+        source,
+    })?;
+    let mut lines = text.lines();
+    let header = lines.next().unwrap_or_default();
+    if header != COLUMNS.join(",") {
+        return Err(Error::Results {
+            path: csv,
+            reason: "line 1: not the large-scale games.csv header of this version".into(),
+        });
+    }
+    let column = |name: &str| {
+        COLUMNS
+            .iter()
+            .position(|c| *c == name)
+            .expect("known column")
+    };
+    let (c_method, c_queries, c_gap) = (column("method"), column("horizon"), column("gap"));
+    let mut cells: BTreeMap<(String, u64), Vec<f64>> = BTreeMap::new();
+    for (i, line) in lines.enumerate() {
+        let f = split_csv_line(line);
+        let parsed = (f.len() == COLUMNS.len())
+            .then(|| {
+                Some((
+                    f[c_queries].parse::<u64>().ok()?,
+                    // An undefined gap (no output on a smooth class) is an empty cell.
+                    if f[c_gap].is_empty() {
+                        f64::NAN
+                    } else {
+                        f[c_gap].parse::<f64>().ok()?
+                    },
+                ))
+            })
+            .flatten();
+        let Some((t, gap)) = parsed else {
+            return Err(Error::Results {
+                path: csv.clone(),
+                reason: format!("line {}: malformed row", i + 2),
+            });
+        };
+        cells.entry((f[c_method].clone(), t)).or_default().push(gap);
+    }
+    let series: Vec<Series> = scenario
+        .methods
+        .iter()
+        .map(|m| Series {
+            label: m.clone(),
+            points: grid
+                .horizons
+                .iter()
+                .filter_map(|&t| {
+                    let mut v = cells.get(&(m.clone(), t))?.clone();
+                    v.retain(|g| g.is_finite() && *g > 0.0);
+                    if v.is_empty() {
+                        return None;
+                    }
+                    v.sort_by(f64::total_cmp);
+                    Some(SeriesPoint {
+                        x: t as f64,
+                        min: v[0],
+                        median: v[v.len() / 2],
+                        max: v[v.len() - 1],
+                        censored: false,
+                    })
+                })
+                .collect(),
+        })
+        .filter(|s| !s.points.is_empty())
+        .collect();
+    let (t_min, t_max) = (
+        *grid.horizons.first().expect("non-empty") as f64,
+        *grid.horizons.last().expect("non-empty") as f64,
+    );
+    let samples: Vec<u64> = {
+        let mut g: Vec<u64> = (0..=40)
+            .map(|k| (t_min * (t_max / t_min).powf(f64::from(k) / 40.0)).round() as u64)
+            .chain(grid.horizons.iter().copied())
+            .collect();
+        g.sort_unstable();
+        g.dedup();
+        g
+    };
+    let mut curves: Vec<Curve> = Vec::new();
+    let labels = gap_bounds(&grid.function, 1);
+    for (i, bound) in labels.iter().enumerate() {
+        let relevant = match bound.method {
+            None => true,
+            Some(m) => scenario.methods.iter().any(|s| s == m),
+        };
+        if !relevant {
+            continue;
+        }
+        curves.push(Curve {
+            label: bound.label.to_string(),
+            points: samples
+                .iter()
+                .filter_map(|&t| Some((t as f64, gap_bounds(&grid.function, t)[i].gap?)))
+                .collect(),
+            style: match bound.side {
+                Side::Lower => CurveStyle::LowerBound,
+                Side::Upper => CurveStyle::UpperBound,
+            },
+        });
+    }
+    let spec = ChartSpec {
+        title: format!(
+            "Gap against queries T, {} class, {}",
+            grid.function.kind(),
+            scenario.adversary
+        ),
+        subtitle: Some(format!(
+            "{}: d = {}, R = {}; demonstration, not a certificate (irrational constants, \
+             compared to 1e-12 relative; docs/theory.md §3)",
+            scenario.name,
+            grid.function.dim(),
+            grid.function.radius()
+        )),
+        x_label: "queries T".into(),
+        y_label: "gap f - f* (median over seeds, min-max band)".into(),
+        x_scale: Scale::Log10,
+        y_scale: Scale::Log10,
+        series,
+        curves,
+        ..ChartSpec::default()
+    };
+    Ok(vec![chart::draw(&spec, &dir.join("gap-vs-queries"))?.png])
+}
