@@ -59,7 +59,8 @@ use toml::Spanned;
 
 use crate::class::Class;
 use crate::error::Error;
-use crate::family::{self, Grid, ScenarioText};
+use crate::family::{self, Grid, Lineup, ScenarioText};
+pub use crate::family::{ExternalEntry, GridGame};
 use crate::method;
 
 /// The common keys of a scenario file (the family's tables are read by the family).
@@ -137,37 +138,11 @@ pub struct Scenario {
     pub external: Vec<ExternalEntry>,
 }
 
-/// An external method of a scenario: a program speaking the line protocol.
-#[derive(Clone, Debug, PartialEq)]
-pub struct ExternalEntry {
-    /// The name used in `play.methods` and in `games.csv`.
-    pub name: String,
-    /// Program and arguments (no shell).
-    pub command: Vec<String>,
-    /// Whether it plays the first seed only (default true).
-    pub deterministic: bool,
-    /// Seconds it may take for each reply (default 30).
-    pub answer_timeout: f64,
-}
-
 impl Scenario {
     /// The external method called `name`, if the scenario defines one.
     pub fn external_method(&self, name: &str) -> Option<&ExternalEntry> {
         self.external.iter().find(|e| e.name == name)
     }
-}
-
-/// One game of a sweep.
-#[derive(Clone, Debug, PartialEq)]
-pub struct GridGame {
-    /// Position in the canonical order (from 0).
-    pub index: u64,
-    /// The class.
-    pub class: Class,
-    /// Method name.
-    pub method: String,
-    /// Seed.
-    pub seed: u64,
 }
 
 impl Scenario {
@@ -372,6 +347,18 @@ impl Scenario {
             source_text: text.to_string(),
             external,
         })
+    }
+
+    /// The common keys, as a family's grid needs them.
+    pub fn lineup(&self) -> Lineup<'_> {
+        Lineup {
+            name: &self.name,
+            adversary: &self.adversary,
+            methods: &self.methods,
+            seeds: &self.seeds,
+            budget: self.budget,
+            external: &self.external,
+        }
     }
 
     /// The family's grid as its concrete type, for callers that know it.

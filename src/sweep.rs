@@ -385,7 +385,7 @@ fn scan_csv(
                     fields[0]
                 )));
             };
-            let identity = scenario.grid.identity(scenario, &game);
+            let identity = scenario.grid.identity(&scenario.lineup(), &game);
             for ((column, want), found) in columns.iter().zip(&identity).zip(&fields) {
                 if let Some(want) = want {
                     if want != found {
@@ -449,7 +449,7 @@ fn play_row(
     };
     let (mut player, flush) = build_player(scenario, &spec)?;
     let report: GameReport = family::play(&spec, player.as_mut(), flush)?;
-    let cells = scenario.grid.row(scenario, game, &report);
+    let cells = scenario.grid.row(&scenario.lineup(), game, &report);
     Ok((csv::row(&cells), report.accepted()))
 }
 

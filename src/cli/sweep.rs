@@ -97,7 +97,7 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
         if !args.no_charts && args.shard.is_none() {
             scenario
                 .grid
-                .draw_charts(&scenario.results_dir(&args.out), scenario)?;
+                .draw_charts(&scenario.results_dir(&args.out), &scenario.lineup())?;
         }
     }
     match &args.expect {

@@ -28,7 +28,6 @@ use crate::class::Class;
 use crate::error::Error;
 use crate::method::Method;
 use crate::runner::{self, DemoReport, GameSpec, Report};
-use crate::scenario::{GridGame, Scenario};
 use crate::transcript::Flush;
 
 /// What a family's games end in.
@@ -144,13 +143,63 @@ pub trait Grid: std::fmt::Debug + Send + Sync + Any {
     /// as selectors in expectation files); the rest are results.
     fn identity_columns(&self) -> &'static [&'static str];
     /// The cells of one game's row, in column order (results from `report`).
-    fn row(&self, scenario: &Scenario, game: &GridGame, report: &GameReport) -> Vec<String>;
+    fn row(&self, lineup: &Lineup<'_>, game: &GridGame, report: &GameReport) -> Vec<String>;
     /// The identity cells of a game before it is played (`None` in result columns).
-    fn identity(&self, scenario: &Scenario, game: &GridGame) -> Vec<Option<String>>;
+    fn identity(&self, lineup: &Lineup<'_>, game: &GridGame) -> Vec<Option<String>>;
     /// Draws the family's charts of a results folder; returns the PNG paths.
-    fn draw_charts(&self, dir: &Path, scenario: &Scenario) -> Result<Vec<PathBuf>, Error>;
+    fn draw_charts(&self, dir: &Path, lineup: &Lineup<'_>) -> Result<Vec<PathBuf>, Error>;
     /// As [`Any`], for callers that know the concrete grid.
     fn as_any(&self) -> &dyn Any;
+}
+
+/// The common part of a scenario a family's grid needs to write rows and draw charts.
+#[derive(Clone, Copy, Debug)]
+pub struct Lineup<'a> {
+    /// The scenario's name.
+    pub name: &'a str,
+    /// The adversary.
+    pub adversary: &'a str,
+    /// The methods, in file order (built-in or external).
+    pub methods: &'a [String],
+    /// The seeds, in file order.
+    pub seeds: &'a [u64],
+    /// The `[play]` budget, when the family takes one.
+    pub budget: Option<u64>,
+    /// The external methods the scenario defines.
+    pub external: &'a [ExternalEntry],
+}
+
+impl Lineup<'_> {
+    /// The external method called `name`, if the scenario defines one.
+    pub fn external_method(&self, name: &str) -> Option<&ExternalEntry> {
+        self.external.iter().find(|e| e.name == name)
+    }
+}
+
+/// One game of a sweep.
+#[derive(Clone, Debug, PartialEq)]
+pub struct GridGame {
+    /// Position in the canonical order (from 0).
+    pub index: u64,
+    /// The class.
+    pub class: Class,
+    /// Method name.
+    pub method: String,
+    /// Seed.
+    pub seed: u64,
+}
+
+/// An external method of a scenario: a program speaking the line protocol.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ExternalEntry {
+    /// The name used in `play.methods` and in `games.csv`.
+    pub name: String,
+    /// Program and arguments (no shell).
+    pub command: Vec<String>,
+    /// Whether it plays the first seed only (default true).
+    pub deterministic: bool,
+    /// Seconds it may take for each reply (default 30).
+    pub answer_timeout: f64,
 }
 
 /// A scenario's text, for a family's parser: the raw text (every family reads its own

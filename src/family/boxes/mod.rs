@@ -6,6 +6,8 @@
 //! L R/eps ascending). For lattice classes the grid dimension is the integer dimension n;
 //! a pure integer class has no accuracy (its cells are empty).
 
+pub mod charts;
+
 use std::any::Any;
 use std::path::{Path, PathBuf};
 
@@ -21,8 +23,7 @@ use crate::class::{
     Class, FeasibilityClass, FirstOrderClass, LatticeClass, LipschitzNorm, Promise,
 };
 use crate::error::Error;
-use crate::family::{Family, GameReport, Grid, ScenarioText};
-use crate::scenario::{GridGame, Scenario};
+use crate::family::{Family, GameReport, Grid, GridGame, Lineup, ScenarioText};
 use crate::transcript::Ending;
 
 /// The accuracy of every game of a pure integer scenario, which has none: `games.csv`
@@ -499,14 +500,14 @@ impl Grid for BoxGrid {
         IDENTITY_COLUMNS
     }
 
-    fn identity(&self, scenario: &Scenario, game: &GridGame) -> Vec<Option<String>> {
+    fn identity(&self, lineup: &Lineup<'_>, game: &GridGame) -> Vec<Option<String>> {
         let facts = ClassFacts::of(&game.class);
-        let budget = self.budget(&game.class, scenario.budget);
+        let budget = self.budget(&game.class, lineup.budget);
         let mut cells: Vec<Option<String>> = vec![
             Some(game.index.to_string()),
-            Some(scenario.name.clone()),
+            Some(lineup.name.to_string()),
             Some(facts.family.into()),
-            Some(scenario.adversary.clone()),
+            Some(lineup.adversary.to_string()),
             Some(game.method.clone()),
             Some(game.seed.to_string()),
             Some(facts.dim.to_string()),
@@ -536,7 +537,7 @@ impl Grid for BoxGrid {
         cells
     }
 
-    fn row(&self, scenario: &Scenario, game: &GridGame, report: &GameReport) -> Vec<String> {
+    fn row(&self, lineup: &Lineup<'_>, game: &GridGame, report: &GameReport) -> Vec<String> {
         let GameReport::Certificate(report) = report else {
             unreachable!("box families play certificate games");
         };
@@ -554,7 +555,7 @@ impl Grid for BoxGrid {
             Err(e) => (String::new(), String::new(), format!("rejected: {e}"), "no"),
         };
         let mut cells: Vec<String> = self
-            .identity(scenario, game)
+            .identity(lineup, game)
             .into_iter()
             .take(IDENTITY_COLUMNS.len())
             .map(|c| c.unwrap_or_default())
@@ -574,8 +575,8 @@ impl Grid for BoxGrid {
         cells
     }
 
-    fn draw_charts(&self, dir: &Path, scenario: &Scenario) -> Result<Vec<PathBuf>, Error> {
-        crate::gallery::boxes::draw_all(dir, scenario, self)
+    fn draw_charts(&self, dir: &Path, lineup: &Lineup<'_>) -> Result<Vec<PathBuf>, Error> {
+        charts::draw_all(dir, lineup, self)
     }
 
     fn as_any(&self) -> &dyn Any {

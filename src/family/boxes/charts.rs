@@ -28,16 +28,16 @@ use std::path::{Path, PathBuf};
 use crate::bounds;
 use crate::certificate::universal::{self, Exchange};
 use crate::chart::{self, ChartSpec, Curve, CurveStyle, Cut2d, Game2d, Scale, Series, SeriesPoint};
+use crate::chart::{DEFAULT_HEIGHT as HEIGHT, DEFAULT_WIDTH as WIDTH};
 use crate::class::{Class, FeasibilityClass, FirstOrderClass, LatticeClass};
 use crate::csv::split as split_csv_line;
 use crate::error::Error;
 use crate::family::boxes::{BoxGrid, BoxKind as Family, ClassFacts, COLUMNS, NO_ACCURACY};
-use crate::gallery::{HEIGHT, WIDTH};
+use crate::family::Lineup;
 use crate::game::UndecidedTrace;
 use crate::method;
 use crate::oracle::{Answer, Normal};
 use crate::runner::{self, GameSpec};
-use crate::scenario::Scenario;
 use crate::transcript::{MemoryTranscript, Record};
 
 /// One game's numbers, as read back from `games.csv`.
@@ -259,9 +259,9 @@ fn uncertainty_series(
 }
 
 /// Draws every chart of the results folder `dir` of a box family; returns the PNG paths.
-pub fn draw_all(dir: &Path, scenario: &Scenario, grid: &BoxGrid) -> Result<Vec<PathBuf>, Error> {
+pub fn draw_all(dir: &Path, lineup: &Lineup<'_>, grid: &BoxGrid) -> Result<Vec<PathBuf>, Error> {
     let table = read_table(&dir.join("games.csv"))?;
-    let budget = scenario.budget.unwrap_or(1);
+    let budget = lineup.budget.unwrap_or(1);
     let mut pngs = Vec::new();
     let first_order = matches!(grid.kind, Family::FirstOrder { .. });
     let acc = grid.accuracy_name();
@@ -286,9 +286,9 @@ pub fn draw_all(dir: &Path, scenario: &Scenario, grid: &BoxGrid) -> Result<Vec<P
     };
     let subtitle = format!(
         "{}: adversary {}, box {domain}, {} seed(s), budget {}",
-        scenario.name,
-        scenario.adversary,
-        scenario.seeds.len(),
+        lineup.name,
+        lineup.adversary,
+        lineup.seeds.len(),
         budget,
     );
     let subtitle = if first_order {
@@ -407,16 +407,16 @@ pub fn draw_all(dir: &Path, scenario: &Scenario, grid: &BoxGrid) -> Result<Vec<P
     let class = grid.class_at(d, rho)?;
     let mut series = Vec::new();
     let mut gap_series = Vec::new();
-    for m in &scenario.methods {
+    for m in lineup.methods {
         let any = class.clone();
         if method::supports(m, &any).is_err() {
             continue;
         }
         let spec = GameSpec {
             class: any,
-            adversary: scenario.adversary.clone(),
+            adversary: lineup.adversary.to_string(),
             method: m.clone(),
-            seed: scenario.seeds[0],
+            seed: lineup.seeds[0],
             budget,
             transcript: None,
         };
@@ -452,7 +452,7 @@ pub fn draw_all(dir: &Path, scenario: &Scenario, grid: &BoxGrid) -> Result<Vec<P
         },
         subtitle: Some(format!(
             "{subtitle}; one game per method (seed {}); {}",
-            scenario.seeds[0],
+            lineup.seeds[0],
             match lattice {
                 Some((_, _, 0)) => "the adversary's alive lattice points |S|",
                 Some(_) => "log2 of the sum over integer fibres of the alive fibre volume",
@@ -511,23 +511,23 @@ pub fn draw_all(dir: &Path, scenario: &Scenario, grid: &BoxGrid) -> Result<Vec<P
     let picture_rho = grid.accuracies[0];
     if let (false, Ok(Class::Feasibility(class))) = (first_order, grid.class_at(2, picture_rho)) {
         let any = Class::Feasibility(class.clone());
-        if let Some(m) = scenario
+        if let Some(m) = lineup
             .methods
             .iter()
             .find(|m| method::supports(m, &any).is_ok())
         {
             let spec = GameSpec {
                 class: any,
-                adversary: scenario.adversary.clone(),
+                adversary: lineup.adversary.to_string(),
                 method: m.clone(),
-                seed: scenario.seeds[0],
+                seed: lineup.seeds[0],
                 budget: budget.min(200),
                 transcript: None,
             };
             let mut memory = MemoryTranscript::default();
             let mut player = method::build(m, &spec.class, spec.seed)?;
             runner::run_with(&spec, player.as_mut(), &mut [&mut memory])?;
-            let picture = game_picture(&memory.records, &class, m, &scenario.adversary);
+            let picture = game_picture(&memory.records, &class, m, lineup.adversary);
             pngs.push(chart::draw_game_2d(&picture, &dir.join("game-2d"))?.png);
         }
     }

@@ -12,12 +12,12 @@ use crate::chart::{self, ChartSpec, Curve, CurveStyle, Scale, Series, SeriesPoin
 use crate::csv::split as split_csv_line;
 use crate::error::Error;
 use crate::family::large_scale::{LargeScaleGrid, COLUMNS};
-use crate::scenario::Scenario;
+use crate::family::Lineup;
 
 /// Draws the gap-against-T chart of a large-scale results folder; returns the PNG path.
 pub fn draw_all(
     dir: &Path,
-    scenario: &Scenario,
+    lineup: &Lineup<'_>,
     grid: &LargeScaleGrid,
 ) -> Result<Vec<PathBuf>, Error> {
     let csv = dir.join("games.csv");
@@ -65,7 +65,7 @@ pub fn draw_all(
         };
         cells.entry((f[c_method].clone(), t)).or_default().push(gap);
     }
-    let series: Vec<Series> = scenario
+    let series: Vec<Series> = lineup
         .methods
         .iter()
         .map(|m| Series {
@@ -110,7 +110,7 @@ pub fn draw_all(
     for (i, bound) in labels.iter().enumerate() {
         let relevant = match bound.method {
             None => true,
-            Some(m) => scenario.methods.iter().any(|s| s == m),
+            Some(m) => lineup.methods.iter().any(|s| s == m),
         };
         if !relevant {
             continue;
@@ -131,12 +131,12 @@ pub fn draw_all(
         title: format!(
             "Gap against queries T, {} class, {}",
             grid.function.kind(),
-            scenario.adversary
+            lineup.adversary
         ),
         subtitle: Some(format!(
             "{}: d = {}, R = {}; demonstration, not a certificate (irrational constants, \
              compared to 1e-12 relative; docs/theory.md §3)",
-            scenario.name,
+            lineup.name,
             grid.function.dim(),
             grid.function.radius()
         )),

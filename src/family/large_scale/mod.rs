@@ -32,6 +32,8 @@
 //! `drori-teboulle`, `nesterov-nonsmooth` (nonsmooth, d >= T + 1), `smooth-chain`,
 //! `strongly-convex-chain` (d >= 2T + 1), which bind span methods only.
 
+pub mod charts;
+
 use std::any::Any;
 use std::path::{Path, PathBuf};
 
@@ -40,8 +42,7 @@ use toml::Spanned;
 
 use crate::class::{Class, LargeScale, LargeScaleClass};
 use crate::error::Error;
-use crate::family::{Evidence, Family, GameReport, Grid, ScenarioText};
-use crate::scenario::{GridGame, Scenario};
+use crate::family::{Evidence, Family, GameReport, Grid, GridGame, Lineup, ScenarioText};
 use crate::transcript::Ending;
 
 /// The large-scale family.
@@ -301,7 +302,7 @@ impl Grid for LargeScaleGrid {
         IDENTITY_COLUMNS
     }
 
-    fn identity(&self, scenario: &Scenario, game: &GridGame) -> Vec<Option<String>> {
+    fn identity(&self, lineup: &Lineup<'_>, game: &GridGame) -> Vec<Option<String>> {
         let horizon = self.budget(&game.class, None);
         let (lipschitz, smoothness, mu) = match self.function {
             LargeScaleClass::Nonsmooth { lipschitz, .. } => (Some(lipschitz), None, None),
@@ -315,10 +316,10 @@ impl Grid for LargeScaleGrid {
         let text = |v: Option<f64>| v.map_or(String::new(), |v| v.to_string());
         let mut cells = vec![
             Some(game.index.to_string()),
-            Some(scenario.name.clone()),
+            Some(lineup.name.to_string()),
             Some("large-scale".into()),
             Some(self.function.kind().into()),
-            Some(scenario.adversary.clone()),
+            Some(lineup.adversary.to_string()),
             Some(game.method.clone()),
             Some(game.seed.to_string()),
             Some(self.function.dim().to_string()),
@@ -333,12 +334,12 @@ impl Grid for LargeScaleGrid {
         cells
     }
 
-    fn row(&self, scenario: &Scenario, game: &GridGame, report: &GameReport) -> Vec<String> {
+    fn row(&self, lineup: &Lineup<'_>, game: &GridGame, report: &GameReport) -> Vec<String> {
         let GameReport::Demonstration(report) = report else {
             unreachable!("the large-scale family plays demonstration games");
         };
         let mut cells: Vec<String> = self
-            .identity(scenario, game)
+            .identity(lineup, game)
             .into_iter()
             .take(IDENTITY_COLUMNS.len())
             .map(|c| c.unwrap_or_default())
@@ -374,8 +375,8 @@ impl Grid for LargeScaleGrid {
         cells
     }
 
-    fn draw_charts(&self, dir: &Path, scenario: &Scenario) -> Result<Vec<PathBuf>, Error> {
-        crate::gallery::large_scale::draw_all(dir, scenario, self)
+    fn draw_charts(&self, dir: &Path, lineup: &Lineup<'_>) -> Result<Vec<PathBuf>, Error> {
+        charts::draw_all(dir, lineup, self)
     }
 
     fn as_any(&self) -> &dyn Any {
