@@ -77,7 +77,7 @@ pub fn run_with(
 
 /// Builds, plays and verifies one game with an external program speaking the line
 /// protocol ([`crate::method::external`]); `spec.method` is not used. The transcript
-/// file, if any, is flushed after every record (DESIGN.md: the other side may not be
+/// file, if any, is flushed after every record (the other side may not be
 /// replayable), so that it survives a failure of the program.
 pub fn run_external(
     spec: &GameSpec,

@@ -50,12 +50,15 @@ class Game:
     def __init__(self, header):
         self.raw = header
         self.klass = header["class"]
-        self.kind = self.klass["kind"]  # "feasibility", "first-order" or "lattice"
+        # "feasibility", "first-order", "lattice" or "large-scale"
+        self.kind = self.klass["kind"]
         self.oracle = header["oracle"]  # "separation" or "first-order"
         self.dim = header["query_dim"]
         self.integer_dim = header["integer_dim"]
-        self.lower = [float(v) for v in header["box"]["lower"]]
-        self.upper = [float(v) for v in header["box"]["upper"]]
+        # The large-scale classes have no box (x_0 = 0, ||x_0 - x*|| <= radius): None.
+        box = header["box"]
+        self.lower = [float(v) for v in box["lower"]] if box else None
+        self.upper = [float(v) for v in box["upper"]] if box else None
         accuracy = header["accuracy"]
         self.accuracy_name = accuracy["name"] if accuracy else None
         self.accuracy = float(accuracy["value"]) if accuracy else None
@@ -67,6 +70,9 @@ class Game:
         self.eps = self.klass.get("eps")
         self.lipschitz = self.klass.get("lipschitz")
         self.promise = self.klass.get("promise", "may-be-empty")
+        # Large-scale classes: the function class and the horizon T (the game's length).
+        self.function = self.klass.get("function")
+        self.horizon = self.klass.get("horizon")
 
 
 class Answer:

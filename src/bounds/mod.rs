@@ -107,7 +107,7 @@ pub fn ellipsoid_upper_bound(class: &FeasibilityClass) -> u64 {
 /// Queries the exact centre-of-gravity method needs at most on convex L-Lipschitz f
 /// over [-R, R]^d (l2 norm) to reach accuracy eps: ceil(d ln(2 L R sqrt(d) / eps) /
 /// 0.458675), since each cut keeps at most 1 - 1/e of the volume (Grunbaum 1960) and
-/// the argument of Bubeck 2015, Thm 2.1, with diameter 2R sqrt(d) (docs/theory.md §5,
+/// the argument of Bubeck 2015, Thm 2.1, with diameter 2R sqrt(d) (docs/theory.md §2.5,
 /// derived; the sqrt(d) is an l2 artefact).
 pub fn first_order_centre_of_gravity_upper_bound(class: &crate::class::FirstOrderClass) -> u64 {
     let d = class.dim as f64;
@@ -156,7 +156,7 @@ pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
     ]
 }
 
-/// Every bound line for a first-order class (docs/theory.md §2, §5).
+/// Every bound line for a first-order class (docs/theory.md §2, §2.5).
 pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
     let diameter = class.half_width * (class.dim as f64).sqrt();
     let ratio = class.lipschitz * diameter / class.eps;
@@ -178,7 +178,7 @@ pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
             queries: Some(first_order_centre_of_gravity_upper_bound(class)),
             formula: "ceil(d ln(2 L R sqrt(d) / eps) / 0.458675), l2 norm",
             status: Status::Proven,
-            source: "Grunbaum 1960; Bubeck 2015, Thm 2.1 (derived, docs/theory.md §5)",
+            source: "Grunbaum 1960; Bubeck 2015, Thm 2.1 (derived, docs/theory.md §2.5)",
         },
         Bound {
             label: "subgradient method",

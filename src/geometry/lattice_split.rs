@@ -1,6 +1,6 @@
 //! The best strict cut through a point over a finite lattice set: the split search the
 //! lattice-halving adversary answers with and the lattice centerpoint method measures
-//! depth with (THEORY.md 4).
+//! depth with (docs/theory.md §4.2).
 //!
 //! The search ([`best_split`]):
 //! - n = 1: the larger side of x (ties: the lower side); exact;
@@ -316,7 +316,7 @@ mod tests {
 
     #[test]
     fn octagon_hole_has_depth_three() {
-        // THEORY.md 4's octagon: depth 1 at its own points, depth 3 at the hole (1, 1)
+        // The octagon of docs/theory.md §4.2: depth 1 at its own points, depth 3 at the hole (1, 1)
         // (by hand: the line through (1, 1) with slope -0.9 has (0,1), (1,0), (2,0)
         // below it and the other five above, and no closed half-plane does better).
         // Depth = |S| - (best open half-plane through the point).

@@ -37,7 +37,7 @@
 //! (see [`crate::exact::Exact`]). Non-finite numbers are never written: a non-finite
 //! coordinate is rejected before it reaches the file.
 //!
-//! Durability (DESIGN.md): in-process games buffer and flush at least once a second
+//! Durability: in-process games buffer and flush at least once a second
 //! and at the end; [`Flush::EveryRecord`] flushes after every record (for external
 //! methods, which may not be replayable).
 

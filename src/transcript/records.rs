@@ -157,7 +157,7 @@ pub(crate) enum RecordRef<'a> {
 /// does not know is an error that names the version.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Witnesses {
-    /// The number of leading answers every witness agrees with (T* in THEORY.md 0).
+    /// The number of leading answers every witness agrees with (T* in docs/theory.md §0).
     pub prefix: u64,
     /// The instances.
     pub instances: Vec<Witness>,
