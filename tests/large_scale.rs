@@ -658,3 +658,98 @@ fn an_overflowing_query_ends_the_game_as_a_method_failure() {
         naysayer::transcript::Ending::MethodFailed { .. }
     ));
 }
+
+/// The rows of a games.csv without the timing column, for comparing two runs.
+fn rows_without_timing(path: &std::path::Path) -> Vec<String> {
+    let text = std::fs::read_to_string(path).unwrap();
+    text.lines()
+        .map(|l| {
+            let mut cells = naysayer::csv::split(l);
+            cells.pop(); // wall_time_ms, the last column
+            cells.join(",")
+        })
+        .collect()
+}
+
+fn sweep_binary(scenario: &std::path::Path, out: &std::path::Path, extra: &[&str]) -> std::process::Output {
+    std::process::Command::new(env!("CARGO_BIN_EXE_naysayer"))
+        .arg("sweep")
+        .arg(scenario)
+        .arg("--out")
+        .arg(out)
+        .args(["--no-charts", "--jobs", "2"])
+        .args(extra)
+        .output()
+        .unwrap()
+}
+
+#[test]
+fn large_scale_sweeps_shard_merge_resume_and_take_expectations() {
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("tiny.toml");
+    std::fs::write(&file, SCENARIO).unwrap();
+    let whole = dir.path().join("whole");
+    let out = sweep_binary(&file, &whole, &[]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let reference = rows_without_timing(&whole.join("tiny/games.csv"));
+    assert_eq!(reference.len(), 13, "a header and 12 games");
+
+    // Shards 1/2 and 2/2, merged, give exactly the unsharded table.
+    let sharded = dir.path().join("sharded");
+    for k in ["1/2", "2/2"] {
+        let out = sweep_binary(&file, &sharded, &["--shard", k]);
+        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    }
+    let merge = std::process::Command::new(env!("CARGO_BIN_EXE_naysayer"))
+        .arg("merge")
+        .arg(sharded.join("tiny"))
+        .arg("--no-charts")
+        .output()
+        .unwrap();
+    assert!(merge.status.success(), "{}", String::from_utf8_lossy(&merge.stderr));
+    assert_eq!(rows_without_timing(&sharded.join("tiny/games.csv")), reference);
+
+    // Interrupted after three games with a torn fourth row: the rerun keeps the three,
+    // plays the rest, and ends with the same table.
+    let csv = whole.join("tiny/games.csv");
+    let text = std::fs::read_to_string(&csv).unwrap();
+    let mut kept: String = text.lines().take(4).map(|l| format!("{l}\n")).collect();
+    kept.push_str(&text.lines().nth(4).unwrap()[..10]);
+    std::fs::write(&csv, &kept).unwrap();
+    let out = sweep_binary(&file, &whole, &[]);
+    let said = String::from_utf8_lossy(&out.stdout).to_string();
+    assert!(out.status.success() && said.contains("3 resumed, 9 played"), "{said}");
+    assert_eq!(rows_without_timing(&csv), reference);
+
+    // A row that claims to be another game is refused with its line number.
+    let text = std::fs::read_to_string(&csv).unwrap();
+    let forged = text.replacen(",random-direction,", ",coordinate-search,", 1);
+    std::fs::write(&csv, forged).unwrap();
+    let out = sweep_binary(&file, &whole, &[]);
+    let said = String::from_utf8_lossy(&out.stderr).to_string();
+    assert_eq!(out.status.code(), Some(2), "{said}");
+    assert!(said.contains("line ") && said.contains("method"), "{said}");
+    std::fs::write(&csv, text).unwrap();
+
+    // Expectations pin demonstration results: every rotation game holds, and the gap of
+    // the subgradient method at T = 8 is at least the curve (a regression value).
+    let held = dir.path().join("held.toml");
+    std::fs::write(
+        &held,
+        "[[game]]\nholds = \"yes\"\nclaimed = \"yes\"\n\n[[game]]\nmethod = \
+         \"unconstrained-subgradient\"\nhorizon = 8\ngap_over_lower = { min = 1.0 }\n",
+    )
+    .unwrap();
+    let out = sweep_binary(&file, &whole, &["--expect", held.to_str().unwrap()]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let drift = dir.path().join("drift.toml");
+    std::fs::write(
+        &drift,
+        "[[game]]\nmethod = \"unconstrained-subgradient\"\nhorizon = 8\ngap = { max = 1e-9 }\n",
+    )
+    .unwrap();
+    let out = sweep_binary(&file, &whole, &["--expect", drift.to_str().unwrap()]);
+    let said = String::from_utf8_lossy(&out.stderr).to_string();
+    assert_eq!(out.status.code(), Some(5), "{said}");
+    assert!(said.contains("horizon 8") && said.contains("gap"), "{said}");
+}
