@@ -229,6 +229,9 @@ fn citations() -> Vec<(String, String)> {
                     .take_while(|c| c.is_ascii_digit() || *c == '.')
                     .collect();
                 let digits = digits.trim_end_matches('.').to_string();
+                if digits.is_empty() {
+                    break; // a placeholder such as `§N` in prose about citations
+                }
                 found.push((name.clone(), digits.clone()));
                 rest = &number[digits.len()..];
             }
