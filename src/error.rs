@@ -41,8 +41,10 @@ pub enum Error {
         /// What went wrong.
         reason: String,
     },
-    /// Reading or writing a file failed.
-    #[error("{action} {path}: {source}")]
+    /// Reading or writing a file failed. Its message names the action and the file; the
+    /// cause is the error's source (printed once by the cause chain, or by
+    /// [`Error::chain`]).
+    #[error("{action} {path}")]
     Io {
         /// "cannot read", "cannot write", ...
         action: &'static str,
@@ -107,4 +109,19 @@ pub enum Error {
         /// What is wrong.
         reason: String,
     },
+}
+
+impl Error {
+    /// The message with every cause after it, `: `-separated (for places that keep an
+    /// error as text, such as a CSV cell; the binary prints the same chain).
+    pub fn chain(&self) -> String {
+        let mut text = self.to_string();
+        let mut cause = std::error::Error::source(self);
+        while let Some(c) = cause {
+            text.push_str(": ");
+            text.push_str(&c.to_string());
+            cause = c.source();
+        }
+        text
+    }
 }

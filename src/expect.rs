@@ -248,7 +248,7 @@ impl GameResult {
                         r.set("verified", "yes");
                     }
                     Err(e) => {
-                        r.set("outcome", format!("rejected: {e}"));
+                        r.set("outcome", format!("rejected: {}", e.chain()));
                         r.set("verified", "no");
                     }
                 }

@@ -21,9 +21,9 @@ fn run_large_scale(game: &LargeScale) -> Result<u8, Error> {
     let class = &game.function;
     let d = class.dim();
     let t = game.horizon;
-    println!("class: {}", class.describe());
-    println!("oracle: value and one (sub)gradient, l2 norm, x_0 = 0; T = {t} queries");
-    println!();
+    crate::say!("class: {}", class.describe());
+    crate::say!("oracle: value and one (sub)gradient, l2 norm, x_0 = 0; T = {t} queries");
+    crate::say!();
     for bound in gap_bounds(class, t) {
         let side = match bound.side {
             Side::Lower => "lower",
@@ -32,12 +32,12 @@ fn run_large_scale(game: &LargeScale) -> Result<u8, Error> {
         let value = bound
             .gap
             .map_or_else(|| "-".to_string(), |g| format!("{g:.6e}"));
-        println!("{side:5} {value:>14}  {}", bound.label);
-        println!("      formula: {}", bound.formula);
-        println!("      source:  {}", bound.source);
+        crate::say!("{side:5} {value:>14}  {}", bound.label);
+        crate::say!("      formula: {}", bound.formula);
+        crate::say!("      source:  {}", bound.source);
     }
-    println!();
-    println!(
+    crate::say!();
+    crate::say!(
         "Published-theorem demonstrations, not certificates: the constants are irrational, \
          so games compare gaps with these curves to a relative 1e-12 (docs/theory.md §0, §3). \
          A lower curve holds for span methods on the explicit instances and for every \
@@ -69,9 +69,9 @@ pub fn run(args: &BoundsArgs) -> Result<u8, Error> {
             lattice_bounds(&class),
         ),
     };
-    println!("class: {described}");
-    println!("oracle: {oracle}");
-    println!();
+    crate::say!("class: {described}");
+    crate::say!("oracle: {oracle}");
+    crate::say!();
     for bound in bounds {
         let side = match bound.side {
             Side::Lower => "lower",
@@ -85,12 +85,12 @@ pub fn run(args: &BoundsArgs) -> Result<u8, Error> {
         let value = bound
             .queries
             .map_or_else(|| "-".to_string(), |q| q.to_string());
-        println!("{side:5} {value:>12}  {}  [{status}]", bound.label);
-        println!("      formula: {}", bound.formula);
-        println!("      source:  {}", bound.source);
+        crate::say!("{side:5} {value:>12}  {}  [{status}]", bound.label);
+        crate::say!("      formula: {}", bound.formula);
+        crate::say!("      source:  {}", bound.source);
     }
-    println!();
-    println!(
+    crate::say!();
+    crate::say!(
         "A lower bound holds for every method, run by run; an upper bound is what the named \
          method needs at most on the whole class."
     );

@@ -17,7 +17,7 @@ pub struct ChartArgs {
 /// Runs `chart`.
 pub fn run(args: &ChartArgs) -> Result<u8, Error> {
     for path in draw_all(&args.folder)? {
-        println!("{}", path.display());
+        crate::say!("{}", path.display());
     }
     Ok(EXIT_OK)
 }

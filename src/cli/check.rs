@@ -47,7 +47,7 @@ pub fn run(args: &CheckArgs) -> Result<u8, Error> {
     if let Some(path) = &args.witnesses {
         crate::cli::audit::write_witnesses(path, &audit)?;
     }
-    print!(
+    crate::say_text!(
         "{}",
         crate::cli::audit::describe(&audit, args.witnesses.as_ref())
     );
@@ -62,28 +62,28 @@ pub fn run(args: &CheckArgs) -> Result<u8, Error> {
 fn verify(args: &CheckArgs) -> Result<u8, Error> {
     match certificate::verify_file(&args.file) {
         Ok(verdict) => {
-            println!("valid certificate: {}", args.file.display());
-            println!(
+            crate::say!("valid certificate: {}", args.file.display());
+            crate::say!(
                 "class                  {}",
                 describe_class(&verdict.header.class)
             );
-            println!(
+            crate::say!(
                 "method {} against adversary {}",
                 verdict.header.method, verdict.header.adversary
             );
-            println!(
+            crate::say!(
                 "queries used           {}",
                 queries_used_text(verdict.queries_used, verdict.censored)
             );
-            println!("certified lower bound  {}", lower_bound_text(&verdict));
-            println!(
+            crate::say!("certified lower bound  {}", lower_bound_text(&verdict));
+            crate::say!(
                 "outcome                {}",
                 describe_outcome(&verdict.outcome, &verdict.ending)
             );
             Ok(EXIT_OK)
         }
         Err(error @ Error::Transcript { .. }) => {
-            println!("REJECTED: {}: {error}", args.file.display());
+            crate::say!("REJECTED: {}: {error}", args.file.display());
             Ok(EXIT_REJECTED)
         }
         Err(error) => Err(error),

@@ -42,10 +42,10 @@ pub fn run(args: &DemoArgs) -> Result<u8, Error> {
         root: args.out.clone(),
         progress: true,
     };
-    println!("naysayer demo: {}", scenario.description);
+    crate::say!("naysayer demo: {}", scenario.description);
     let summary = sweep::run(&scenario, &settings)?;
     let dir = scenario.results_dir(&args.out);
-    println!(
+    crate::say!(
         "{} games ({} played now, {} found finished) -> {}\n",
         summary.games,
         summary.played,
@@ -54,19 +54,19 @@ pub fn run(args: &DemoArgs) -> Result<u8, Error> {
     );
     print_table(&summary.csv, 8, 1e-6)?;
     let class = FeasibilityClass::new(8, 1.0, 1e-6, Promise::MayBeEmpty)?;
-    println!("\nbounds for d = 8, R/rho = 1e6 (queries):");
+    crate::say!("\nbounds for d = 8, R/rho = 1e6 (queries):");
     for bound in feasibility_bounds(&class) {
         let value = bound
             .queries
             .map_or_else(|| "order only".to_string(), |q| q.to_string());
-        println!("  {:<28} {:>12}  ({})", bound.label, value, bound.source);
+        crate::say!("  {:<28} {:>12}  ({})", bound.label, value, bound.source);
     }
-    println!("\ncharts:");
+    crate::say!("\ncharts:");
     for png in crate::cli::chart::draw_all(&dir)? {
-        println!("  {}", png.display());
+        crate::say!("  {}", png.display());
     }
     if summary.rejected > 0 {
-        println!(
+        crate::say!(
             "{} certificates were REJECTED by the verifier",
             summary.rejected
         );
@@ -88,8 +88,8 @@ fn print_table(csv: &Path, dim: usize, rho: f64) -> Result<(), Error> {
             .position(|c| *c == name)
             .expect("known column")
     };
-    println!("d = {dim}, R/rho = {}:", 1.0 / rho);
-    println!(
+    crate::say!("d = {dim}, R/rho = {}:", 1.0 / rho);
+    crate::say!(
         "{:<18} {:>5} {:>14} {:>22} {:>9}  outcome",
         "method", "seed", "queries used", "certified lower bound", "verified"
     );
@@ -106,7 +106,7 @@ fn print_table(csv: &Path, dim: usize, rho: f64) -> Result<(), Error> {
         } else {
             f[col("queries_used")].clone()
         };
-        println!(
+        crate::say!(
             "{:<18} {:>5} {:>14} {:>22} {:>9}  {}",
             f[col("method")],
             f[col("seed")],

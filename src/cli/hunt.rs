@@ -95,7 +95,7 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
     if let Some(bar) = bar {
         bar.finish_and_clear();
     }
-    print!("{}", summary(args, &report));
+    crate::say_text!("{}", summary(args, &report));
     Ok(if report.verdict.is_ok() {
         EXIT_OK
     } else {
@@ -219,14 +219,14 @@ fn run_replay(path: &std::path::Path) -> Result<u8, Error> {
     let (header, _, _) = replay::split_records(&records)?;
     let mut method = crate::method::build(&header.method, &header.class, header.seed)?;
     let report = replay::replay_answers(method.as_mut(), &records)?;
-    println!(
+    crate::say!(
         "replayed {} against {} recorded answers from {}",
         header.method,
         report.original.queries_used,
         path.display()
     );
-    println!("{}", report.describe());
-    println!(
+    crate::say!("{}", report.describe());
+    crate::say!(
         "method {} after {} queries",
         replay::ending_words(&report.record.ending),
         report.record.queries_used

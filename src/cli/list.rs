@@ -8,7 +8,7 @@ use crate::method::METHODS;
 
 /// Runs `list`.
 pub fn run() -> Result<u8, Error> {
-    println!("families (--class, or class.family in a scenario):");
+    crate::say!("families (--class, or class.family in a scenario):");
     for f in FAMILIES {
         let evidence = match f.evidence() {
             Evidence::Certificate => "games end in certificates, checked exactly",
@@ -16,21 +16,21 @@ pub fn run() -> Result<u8, Error> {
                 "games end in demonstrations, checked to a stated tolerance (not certificates)"
             }
         };
-        println!("  {:<26} {evidence}", f.name());
+        crate::say!("  {:<26} {evidence}", f.name());
     }
     for f in FAMILIES {
-        println!("{} methods:", f.name());
+        crate::say!("{} methods:", f.name());
         for m in METHODS.iter().filter(|m| m.families.contains(&f.name())) {
             let kind = if m.deterministic { "" } else { " (seeded)" };
-            println!("  {:<26} {}{kind}", m.name, m.description);
+            crate::say!("  {:<26} {}{kind}", m.name, m.description);
         }
-        println!("{} adversaries:", f.name());
+        crate::say!("{} adversaries:", f.name());
         for a in ADVERSARIES.iter().filter(|a| a.family == f.name()) {
             let scope = match a.scope {
                 Scope::EveryMethod => "",
                 Scope::SpanMethods => " (binds span methods only)",
             };
-            println!("  {:<26} {}{scope}", a.name, a.description);
+            crate::say!("  {:<26} {}{scope}", a.name, a.description);
         }
     }
     Ok(EXIT_OK)

@@ -73,7 +73,7 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
     };
     let start = Instant::now();
     let mut search = Minimax::new(&class, queries)?;
-    println!("class                  {}", class.describe());
+    crate::say!("class                  {}", class.describe());
     let q_text = match queries {
         QuerySet::Lattice => "lattice points of the box",
         QuerySet::HalfInteger => "lattice and half-integer points of the box",
@@ -81,27 +81,27 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
     match &args.method {
         None => {
             let report = search.solve();
-            println!(
+            crate::say!(
                 "query set Q            {q_text} ({} points, {} lattice points)",
                 report.query_points, report.lattice_points
             );
-            println!("V_Q                    {}", report.value);
-            println!(
+            crate::say!("V_Q                    {}", report.value);
+            crate::say!(
                 "inequalities           (count a proven adversary forces on every method) <= \
                  (true complexity) <= V_Q = {}",
                 report.value
             );
             if class.contains_unit_cube() && args.int_lower == 0 && args.int_upper == 1 {
-                println!(
+                crate::say!(
                     "                       corner forces 2^n = {} on every method (docs/theory.md §4)",
                     1u64 << args.int_dim
                 );
             }
             match &report.first_query {
-                Some(q) => println!("optimal first query    {q:?}"),
-                None => println!("optimal first query    none needed"),
+                Some(q) => crate::say!("optimal first query    {q:?}"),
+                None => crate::say!("optimal first query    none needed"),
             }
-            println!(
+            crate::say!(
                 "search size            {} memoised states, {} halfspace traces on Q, {:.2?}",
                 report.states,
                 report.traces,
@@ -110,21 +110,21 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
         }
         Some(name) => {
             let report = search.method_worst_case(&class, name)?;
-            println!(
+            crate::say!(
                 "query set Q            {q_text} ({} points, {} lattice points)",
                 report.query_points, report.lattice_points
             );
-            println!("method                 {name}");
-            println!("worst case             {}", report.value);
-            println!(
+            crate::say!("method                 {name}");
+            crate::say!("worst case             {}", report.value);
+            crate::say!(
                 "inequalities           V_Q <= worst case of {name} = {} (one explicit cut per \
                  halfspace trace on Q)",
                 report.value
             );
             if let Some(q) = &report.first_query {
-                println!("first query            {q:?}");
+                crate::say!("first query            {q:?}");
             }
-            println!(
+            crate::say!(
                 "search size            {} nodes, {:.2?}",
                 report.states,
                 start.elapsed()

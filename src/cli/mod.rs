@@ -15,6 +15,7 @@ pub mod demo;
 pub mod hunt;
 pub mod list;
 pub mod minimax;
+pub mod output;
 pub mod play;
 pub mod replay;
 pub mod sweep;
@@ -51,12 +52,12 @@ pub fn gate(
     let expectations = crate::expect::Expectations::from_file(path)?;
     let drifts = expectations.check(results, require_match);
     for drift in &drifts {
-        eprintln!("naysayer: drift: {drift}");
+        crate::note!("naysayer: drift: {drift}");
     }
     Ok(if code != EXIT_OK {
         code
     } else if drifts.is_empty() {
-        println!(
+        crate::say!(
             "expectations           {} held ({} tables)",
             path.display(),
             expectations.games.len()

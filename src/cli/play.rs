@@ -142,16 +142,16 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
     let report = family::play(&spec, method.as_mut(), flush)?;
     let (ending, accepted) = match &report {
         GameReport::Certificate(r) => {
-            print!("{}", summary(&spec, r));
+            crate::say_text!("{}", summary(&spec, r));
             (&r.record.ending, r.verdict.is_ok())
         }
         GameReport::Demonstration(r) => {
-            print!("{}", demonstration_summary(&spec, r));
+            crate::say_text!("{}", demonstration_summary(&spec, r));
             (&r.record.ending, report.accepted())
         }
     };
     if let Ending::MethodFailed { reason } = ending {
-        eprintln!("naysayer: method failed: {reason}");
+        crate::note!("naysayer: method failed: {reason}");
     }
     let code = match (accepted, ending) {
         (false, _) => EXIT_REJECTED,

@@ -243,12 +243,12 @@ pub fn run(args: &ReplayArgs) -> Result<u8, Error> {
     ) {
         Ok(report) => report,
         Err(e @ Error::InvalidClass { .. }) => {
-            println!("cannot replay: {e}");
+            crate::say!("cannot replay: {e}");
             return Ok(EXIT_BAD_INPUT);
         }
         Err(e) => return Err(e),
     };
-    print!("{}", summary(&report, args.transcript_out.as_ref()));
+    crate::say_text!("{}", summary(&report, args.transcript_out.as_ref()));
     Ok(match report.record.ending {
         Ending::MethodFailed { .. } => EXIT_METHOD_FAILED,
         _ => EXIT_OK,

@@ -70,7 +70,7 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
             results.extend(crate::expect::GameResult::from_csv(&summary.csv)?);
         }
         let demonstration = scenario.grid.family().evidence() == Evidence::Demonstration;
-        println!(
+        crate::say!(
             "{}: {} {}games ({} resumed, {} played) -> {}",
             scenario.name,
             summary.games,
@@ -81,13 +81,13 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
         );
         if summary.rejected > 0 {
             if demonstration {
-                println!(
+                crate::say!(
                     "{}: {} games fell below a claimed lower curve or were refused by the \
                      judge (see the holds and outcome columns)",
                     scenario.name, summary.rejected
                 );
             } else {
-                println!(
+                crate::say!(
                     "{}: {} certificates REJECTED by the verifier (see the outcome column)",
                     scenario.name, summary.rejected
                 );
@@ -109,7 +109,7 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
 /// Runs `merge`.
 pub fn run_merge(args: &MergeArgs) -> Result<u8, Error> {
     let out = sweep::merge(&args.folder)?;
-    println!("merged -> {}", out.display());
+    crate::say!("merged -> {}", out.display());
     if !args.no_charts {
         crate::cli::chart::draw_all(&args.folder)?;
     }

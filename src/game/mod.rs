@@ -89,7 +89,7 @@ pub fn play(
         match method.next(&mut query) {
             Err(error) => {
                 break Ending::MethodFailed {
-                    reason: error.to_string(),
+                    reason: error.chain(),
                 }
             }
             Ok(Step::Output(output)) => {
@@ -127,7 +127,7 @@ pub fn play(
                 }
                 if let Err(error) = method.observe(&query, &answer) {
                     break Ending::MethodFailed {
-                        reason: error.to_string(),
+                        reason: error.chain(),
                     };
                 }
             }

@@ -552,7 +552,7 @@ impl Grid for BoxGrid {
                 outcome_name(&v.outcome).to_string(),
                 "yes",
             ),
-            Err(e) => (String::new(), String::new(), format!("rejected: {e}"), "no"),
+            Err(e) => (String::new(), String::new(), format!("rejected: {}", e.chain()), "no"),
         };
         let mut cells: Vec<String> = self
             .identity(lineup, game)

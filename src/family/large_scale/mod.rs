@@ -367,7 +367,7 @@ impl Grid for LargeScaleGrid {
                 ]);
             }
             Err(e) => {
-                cells.push(format!("rejected: {e}"));
+                cells.push(format!("rejected: {}", e.chain()));
                 cells.extend(std::iter::repeat_n(String::new(), 7));
             }
         }

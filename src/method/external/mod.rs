@@ -85,6 +85,7 @@ mod serve;
 pub use messages::{header_line, AccuracyMessage, BoxMessage, GameHeader, MethodMessage};
 pub use serve::serve;
 
+use std::io::Write;
 use std::process::{Child, ChildStdin, Command, Stdio};
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::sync::{Arc, Mutex};
@@ -543,7 +544,8 @@ impl ExternalMethod {
             Some(_) => Ok(()),
             None => {
                 // Still running after the grace period: killed; the output stands.
-                eprintln!(
+                let _ = writeln!(
+                    std::io::stderr(),
                     "naysayer: note: the program did not exit within {} after its output; \
                      killed",
                     seconds(grace)
