@@ -12,6 +12,7 @@ pub mod instance_oracle;
 pub mod lattice_half;
 pub mod mixed_corner;
 pub mod orthant;
+pub mod slab_funnel;
 
 use serde::{Deserialize, Serialize};
 
@@ -83,10 +84,15 @@ pub const ADVERSARIES: &[AdversaryInfo] = &[
                       the larger half (forces d*k + 1 queries; theorem, docs/theory.md §1.1)",
     },
     AdversaryInfo {
+        name: "slab-funnel",
+        description: "first-order, box: nested slab levels revealing one sign per query \
+                      (forces d*ceil(log_7(L R/(2 eps))) on every deterministic method; theorem, \
+                      docs/theory.md §2.4; every run also certified)",
+    },
+    AdversaryInfo {
         name: "orthant",
-        description:
-            "first-order, box: nested orthant levels revealing one sign per query \
-                      (ours, docs/theory.md §2.3; every run certified by the universal certificate)",
+        description: "first-order, box: nested orthant levels; leaks (ours, no proven count, \
+                      docs/theory.md §2.3; kept for comparison with slab-funnel)",
     },
     AdversaryInfo {
         name: "lattice-half",
@@ -111,6 +117,10 @@ pub const ADVERSARIES: &[AdversaryInfo] = &[
 pub fn build(name: &str, class: &Class) -> Result<Box<dyn Adversary + Send>, Error> {
     match (name, class) {
         ("halving", Class::Feasibility(c)) => Ok(Box::new(Halving::new(c))),
+        ("slab-funnel", Class::FirstOrder(c)) => Ok(Box::new(slab_funnel::SlabFunnel::new(
+            c,
+            slab_funnel::FunnelSettings::default(),
+        )?)),
         ("orthant", Class::FirstOrder(c)) => Ok(Box::new(orthant::Orthant::new(
             c,
             orthant::OrthantSettings::default(),
