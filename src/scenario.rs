@@ -208,9 +208,11 @@ fn class_for(family: &Family, d: usize, half_width: f64, accuracy: f64) -> Resul
         Family::Feasibility { promise } => {
             Class::Feasibility(FeasibilityClass::new(d, half_width, accuracy, *promise)?)
         }
-        Family::FirstOrder { lipschitz, norm } => Class::FirstOrder(FirstOrderClass::new(
-            d, half_width, accuracy, *lipschitz, *norm,
-        )?),
+        Family::FirstOrder { lipschitz, norm } => {
+            let class = FirstOrderClass::new(d, half_width, accuracy, *lipschitz, *norm)?;
+            class.check_accuracy_below_half_range()?;
+            Class::FirstOrder(class)
+        }
         Family::Lattice {
             int_lower,
             int_upper,

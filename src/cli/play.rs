@@ -4,7 +4,7 @@ use std::time::Duration;
 
 use clap::Args;
 
-use crate::bounds::halving_lower_bound;
+use crate::bounds::{halving_lower_bound, slab_funnel_lower_bound};
 use crate::certificate::{Outcome, Verdict};
 use crate::class::Class;
 use crate::cli::{
@@ -22,7 +22,7 @@ pub struct PlayArgs {
     /// Built-in method (see `naysayer list`).
     #[arg(short, long, default_value = "midpoint")]
     pub method: String,
-    /// Adversary (see `naysayer list`; default: halving, or orthant for first-order).
+    /// Adversary (see `naysayer list`; default: halving, or slab-funnel for first-order).
     #[arg(short, long)]
     pub adversary: Option<String>,
     /// The family of classes.
@@ -103,7 +103,7 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
         Family::Feasibility => (Class::Feasibility(args.class.to_class()?), "halving"),
         Family::FirstOrder => (
             Class::FirstOrder(args.first_order.to_class(&args.class)?),
-            "orthant",
+            "slab-funnel",
         ),
         Family::Lattice => {
             let class = args.lattice.to_class(&args.class)?;
@@ -239,6 +239,14 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
             "theory                 every method needs at least {} queries on this class \
              (theorem: box halving, docs/theory.md §1.1)\n",
             halving_lower_bound(class)
+        ));
+    }
+    if let Class::FirstOrder(class) = &spec.class {
+        out.push_str(&format!(
+            "theory                 every deterministic method needs at least {} queries on \
+             this class (theorem: slab funnel, docs/theory.md §2.4); the order \
+             Theta(d log(LR/eps)) (Nemirovski & Yudin 1983) is a guide only\n",
+            slab_funnel_lower_bound(class)
         ));
     }
     match &report.verdict {

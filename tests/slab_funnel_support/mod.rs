@@ -10,8 +10,10 @@ use num_traits::{Signed, Zero};
 use naysayer::adversary::slab_funnel::SlabFunnel;
 use naysayer::certificate::universal::Exchange;
 use naysayer::class::{Class, FirstOrderClass, LipschitzNorm};
+use naysayer::error::Error;
 use naysayer::exact::{f64_to_rational, nearest_f64, Exact};
-use naysayer::oracle::{Answer, FirstOrderAnswer};
+use naysayer::method::Method;
+use naysayer::oracle::{Answer, FirstOrderAnswer, Output, Step};
 use naysayer::transcript::{Ending, FinalRecord, Header, Witnesses};
 use naysayer::transcript::{QueryRecord, Record, FORMAT_VERSION};
 
@@ -397,4 +399,78 @@ pub fn c1_counterexample() -> (FirstOrderClass, Vec<Vec<f64>>) {
         -0.9703369140625,
     ];
     (class, queries.iter().map(|x| vec![*x]).collect())
+}
+
+/// A method written for the construction: it always queries the centre of the alive
+/// region (fixed coordinates at the centres of their slabs, m + s (3/4) h; unfixed ones
+/// at the level centre m), so every answer fixes exactly one sign (the unfixed
+/// coordinates tie at U = lambda h / 2, above every fixed piece, -lambda h / 4; the
+/// lowest is fixed, +1 on the centre), and it reads the level structure back from the
+/// answers. After `stop_after` queries it outputs the alive centre.
+pub struct OneSignPerQuery {
+    centre: Vec<f64>,
+    half_width: f64,
+    signs: Vec<i8>,
+    asked: u64,
+    stop_after: u64,
+}
+
+impl OneSignPerQuery {
+    pub fn new(class: &FirstOrderClass, stop_after: u64) -> OneSignPerQuery {
+        OneSignPerQuery {
+            centre: vec![0.0; class.dim],
+            half_width: class.half_width,
+            signs: vec![0; class.dim],
+            asked: 0,
+            stop_after,
+        }
+    }
+
+    fn alive_centre(&self) -> Vec<f64> {
+        self.centre
+            .iter()
+            .zip(&self.signs)
+            .map(|(m, s)| m + f64::from(*s) * 0.75 * self.half_width)
+            .collect()
+    }
+}
+
+impl Method for OneSignPerQuery {
+    fn name(&self) -> &str {
+        "one-sign-per-query"
+    }
+
+    fn next(&mut self, query: &mut [f64]) -> Result<Step, Error> {
+        let c = self.alive_centre();
+        if self.asked == self.stop_after {
+            return Ok(Step::Output(Output::Point { point: c }));
+        }
+        query.copy_from_slice(&c);
+        self.asked += 1;
+        Ok(Step::Query)
+    }
+
+    fn observe(&mut self, _query: &[f64], answer: &Answer) -> Result<(), Error> {
+        let Answer::FirstOrder(a) = answer else {
+            unreachable!("first-order answers")
+        };
+        let (i, g) = a
+            .subgradient
+            .iter()
+            .enumerate()
+            .find(|(_, g)| g.to_f64() != 0.0)
+            .expect("one nonzero entry");
+        assert_eq!(self.signs[i], 0, "every answer fixes a new sign");
+        // The answered gradient is -lambda s e_i.
+        self.signs[i] = if g.to_f64() < 0.0 { 1 } else { -1 };
+        if self.signs.iter().all(|s| *s != 0) {
+            let step = 0.75 * self.half_width;
+            for (m, s) in self.centre.iter_mut().zip(&self.signs) {
+                *m += f64::from(*s) * step;
+            }
+            self.half_width /= 4.0;
+            self.signs.iter_mut().for_each(|s| *s = 0);
+        }
+        Ok(())
+    }
 }
