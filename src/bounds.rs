@@ -195,7 +195,8 @@ pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
             side: Side::Lower,
             queries: Some(slab_funnel_lower_bound(class)),
             formula: "d * ceil(log_7(L R / (2 eps))) for eps < L R / 2, every deterministic \
-                      method; subgradients of l1 norm <= L, so it holds in every l_p norm",
+                      method; the hard instances have subgradients of l1 norm <= L, so the \
+                      bound holds for the l1, l2 and l_inf classes alike",
             status: Status::Proven,
             source: "slab-funnel adversary, docs/theory.md §2.4 (derived, with proof)",
         },

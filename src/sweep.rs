@@ -41,7 +41,8 @@ use crate::transcript::Ending;
 /// (empty for the other families). `lipschitz` and `certified_uncertainty` are empty
 /// for feasibility classes, `promise` for first-order ones; bound columns are empty
 /// where the class has no proven number (for lattice classes `lower_bound` is the
-/// lattice-halving bound of docs/theory.md §4, pure integer only).
+/// lattice-halving bound of docs/theory.md §4, pure integer only; for first-order classes
+/// the slab-funnel bound of docs/theory.md §2.4, deterministic methods).
 pub const COLUMNS: &[&str] = &[
     "game",
     "scenario",
@@ -543,7 +544,7 @@ impl ClassFacts {
                 lipschitz: Some(c.lipschitz),
                 promise: None,
                 lattice: None,
-                lower_bound: None,
+                lower_bound: Some(crate::bounds::slab_funnel_lower_bound(c)),
                 upper_centre_of_gravity: Some(
                     crate::bounds::first_order_centre_of_gravity_upper_bound(c),
                 ),
