@@ -92,7 +92,10 @@ pub enum LpExtension {
 /// Parameters of the slab funnel (docs/theory.md §2.4); beta is fixed at 1/2.
 #[derive(Clone, Debug, PartialEq)]
 pub struct FunnelSettings {
-    /// Numerator of the slope ratio theta (default 4).
+    /// Numerator of the slope ratio theta (default 4). The theorem needs conditions C1 to
+    /// C4 of docs/theory.md §2.4 (theta = 4/7 and 9/16 meet them; 3/5 breaks C1, and the
+    /// tests show the answers then become inconsistent); the count d ceil(log_7(...))
+    /// is the one for 4/7.
     pub theta_numerator: u32,
     /// Denominator of the slope ratio theta (default 7); 0 < theta < 1.
     pub theta_denominator: u32,
