@@ -3,6 +3,11 @@
 //!
 //! - `orthant_answer_d100`: one answer of the orthant adversary (docs/theory.md §2.3) at
 //!   d = 100 with 20 levels open, exact arithmetic included. Target: <= 20 microseconds.
+//! - `slab_funnel_answer_d100_20_levels`: one answer of the slab-funnel adversary
+//!   (docs/theory.md §2.4) at d = 100 with 20 levels open, exact value included: points of
+//!   the box (outside the current level box: every revealed piece is scanned), points
+//!   near the current centre (inside it: O(d)), and the centre itself (an exact tie).
+//!   Target: <= 20 microseconds.
 //! - `certificate_t1000_d10`: the universal certificate search (docs/theory.md §2.2, longest
 //!   certified prefix by binary search with constraint generation) plus the exact
 //!   verification of the resulting transcript, T = 1000 queries of `subgradient`
@@ -12,6 +17,7 @@ use std::time::Instant;
 
 use criterion::{black_box, criterion_group, criterion_main, Criterion};
 use naysayer::adversary::orthant::{Orthant, OrthantSettings};
+use naysayer::adversary::slab_funnel::{FunnelSettings, SlabFunnel};
 use naysayer::adversary::Adversary;
 use naysayer::certificate::universal::{self, Exchange};
 use naysayer::certificate::verify_records;
@@ -107,6 +113,95 @@ fn orthant_answer(c: &mut Criterion) {
     group.finish();
 }
 
+/// A slab funnel driven until `levels` levels are open (the last one with half its
+/// signs fixed), and the current level's centre. Each query is the centre of the alive
+/// region with the unfixed coordinates on the level centre: the unfixed coordinates tie
+/// at U = lambda beta h above every fixed piece (-lambda h / 4 at the slab centres), so the
+/// lowest one is fixed with sign +1 (docs/theory.md §2.4, tie rules); with every sign +1,
+/// m' = m + 3h/4 and h' = h/4.
+fn funnel_with_levels(class: &FirstOrderClass, levels: usize) -> (SlabFunnel, Vec<f64>) {
+    let d = class.dim;
+    let mut adversary = SlabFunnel::new(class, FunnelSettings::default()).unwrap();
+    let mut centre = vec![0.0; d];
+    let mut h = class.half_width;
+    let fix = |adversary: &mut SlabFunnel, centre: &[f64], h: f64, count: usize| {
+        for k in 0..count {
+            let query: Vec<f64> = centre
+                .iter()
+                .enumerate()
+                .map(|(i, m)| if i < k { m + 0.75 * h } else { *m })
+                .collect();
+            adversary.answer(&query);
+        }
+    };
+    while adversary.levels().len() < levels {
+        let opened = adversary.levels().len();
+        fix(&mut adversary, &centre, h, d);
+        assert_eq!(
+            adversary.levels().len(),
+            opened + 1,
+            "each round opens a level"
+        );
+        for m in &mut centre {
+            *m += 0.75 * h;
+        }
+        h /= 4.0;
+    }
+    fix(&mut adversary, &centre, h, d / 2);
+    assert_eq!(adversary.levels().len(), levels);
+    (adversary, centre)
+}
+
+/// Target: <= 20 microseconds per answer at d = 100 with 20 levels open.
+fn funnel_answer(c: &mut Criterion) {
+    let class = FirstOrderClass::new(100, 1.0, 1e-9, 1.0, LipschitzNorm::L2).unwrap();
+    let (adversary, centre) = funnel_with_levels(&class, 20);
+    let h = 0.25f64.powi(19);
+    // None of these reveals a sign (the state stays at 20 levels): points of the box
+    // (answered by the boundary or the top levels' pieces), points near the centre with
+    // the fixed coordinates moved towards their faces' far side by more than the unfixed
+    // ones move (a fixed piece beats U), and the centre itself (every current piece ties
+    // at lambda beta h; the fixed pieces win).
+    let mut rng = ChaCha8Rng::seed_from_u64(11);
+    let uniform: Vec<Vec<f64>> = (0..64)
+        .map(|_| (0..100).map(|_| rng.random_range(-1.0..1.0)).collect())
+        .collect();
+    let near: Vec<Vec<f64>> = (0..64)
+        .map(|_| {
+            let mut y = centre.clone();
+            for (i, yi) in y.iter_mut().enumerate() {
+                *yi += if i < 50 {
+                    -rng.random_range(2e-3..3e-3) * h
+                } else {
+                    rng.random_range(-1e-3..1e-3) * h
+                };
+            }
+            y
+        })
+        .collect();
+    let exact_centre = vec![centre.clone()];
+    let mut group = c.benchmark_group("slab_funnel_answer_d100_20_levels");
+    for (name, queries) in [
+        ("uniform", &uniform),
+        ("near centre", &near),
+        ("at centre", &exact_centre),
+    ] {
+        group.bench_function(name, |b| {
+            b.iter_custom(|iters| {
+                let mut fresh = adversary.clone();
+                let start = Instant::now();
+                for k in 0..iters as usize {
+                    black_box(fresh.answer(&queries[k % queries.len()]));
+                }
+                let elapsed = start.elapsed();
+                assert_eq!(fresh.levels().len(), 20, "no query reveals a sign");
+                elapsed
+            })
+        });
+    }
+    group.finish();
+}
+
 /// T exchanges of built-in method `method` against `orthant`, with their records.
 fn recorded_game(class: &FirstOrderClass, method: &str, t: usize) -> (Vec<Exchange>, Vec<Record>) {
     let mut method = naysayer::method::build(method, &Class::FirstOrder(class.clone()), 0).unwrap();
@@ -188,5 +283,5 @@ fn certificate_search(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, orthant_answer, certificate_search);
+criterion_group!(benches, funnel_answer, orthant_answer, certificate_search);
 criterion_main!(benches);

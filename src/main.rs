@@ -16,9 +16,7 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     let code = match cli::run(cli) {
         Ok(code) => code,
-        Err(Error::Io { source, .. }) if source.kind() == std::io::ErrorKind::BrokenPipe => {
-            EXIT_IO
-        }
+        Err(Error::Io { source, .. }) if source.kind() == std::io::ErrorKind::BrokenPipe => EXIT_IO,
         Err(error) => {
             let code = cli::exit_code_for(&error);
             let error = anyhow::Error::new(error);

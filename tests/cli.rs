@@ -304,3 +304,94 @@ fn bounds_prints_lattice_lines_with_their_status() {
     assert!(text.contains("not a theorem"), "{text}");
     assert!(text.contains("Oertel, Wagner & Weismantel"), "{text}");
 }
+
+#[test]
+fn first_order_bad_input_exits_2_naming_the_flag() {
+    let dir = TempDir::new().unwrap();
+    // (flags, the flag the message must name, a word of the reason)
+    let cases: [(&[&str], &str, &str); 7] = [
+        (&["--eps=0"], "--eps", "positive"),
+        (&["--eps=-1e-3"], "--eps", "positive"),
+        (&["--eps=NaN"], "--eps", "positive"),
+        (&["--eps=0.5"], "--eps", "L R / 2"),
+        (&["--eps=0.3", "--lipschitz=0.5"], "--eps", "L R / 2"),
+        (&["--lipschitz=0"], "--lipschitz", "positive"),
+        (&["--lipschitz=inf"], "--lipschitz", "positive"),
+    ];
+    for command in ["play", "bounds"] {
+        for (flags, flag, word) in cases {
+            let mut args = vec![command, "--class", "first-order"];
+            args.extend_from_slice(flags);
+            let out = run_in(dir.path(), &args);
+            let err = stderr(&out);
+            assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+            assert!(err.contains(flag) && err.contains(word), "{args:?}: {err}");
+            assert!(stdout(&out).is_empty(), "{args:?}: printed a result");
+        }
+    }
+    // At eps >= L R / 2 the message says that the bound asks for no query.
+    let out = run_in(dir.path(), &["play", "--class", "first-order", "--eps=0.7"]);
+    assert!(stderr(&out).contains("no query"), "{}", stderr(&out));
+    assert!(files_in(dir.path()).is_empty());
+}
+
+#[test]
+fn first_order_play_and_bounds_print_the_slab_funnel_theorem() {
+    let dir = TempDir::new().unwrap();
+    // docs/theory.md §2.4, derived: d * ceil(log_7(L R / (2 eps))) = 2 * 7 = 14 at d = 2,
+    // L = R = 1, eps = 1e-6 (500000 lies in (7^6, 7^7]).
+    let out = run_in(
+        dir.path(),
+        &[
+            "bounds",
+            "--class",
+            "first-order",
+            "-d",
+            "2",
+            "--eps",
+            "1e-6",
+        ],
+    );
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0), "{text}");
+    assert_eq!(field(&text, "lower"), Some("14"), "{text}");
+    assert!(text.contains("docs/theory.md §2.4"), "{text}");
+    assert!(text.contains("Nemirovski & Yudin"), "{text}");
+    let out = run_in(
+        dir.path(),
+        &[
+            "play",
+            "--class",
+            "first-order",
+            "-m",
+            "kelley",
+            "-d",
+            "2",
+            "--eps",
+            "1e-6",
+        ],
+    );
+    let text = stdout(&out);
+    assert_eq!(out.status.code(), Some(0), "{text}");
+    assert_eq!(field(&text, "adversary"), Some("slab-funnel"), "{text}");
+    let theory = text
+        .lines()
+        .find(|l| l.starts_with("theory"))
+        .unwrap_or_default();
+    assert!(
+        theory.contains("at least 14 queries") && theory.contains("docs/theory.md §2.4"),
+        "{text}"
+    );
+    let bound: u64 = field(&text, "certified lower bound")
+        .and_then(|v| v.parse().ok())
+        .unwrap();
+    assert!(bound >= 14, "{text}");
+    // `list` says that orthant leaks.
+    let list = stdout(&run_in(dir.path(), &["list"]));
+    let orthant = list
+        .lines()
+        .find(|l| l.trim_start().starts_with("orthant"))
+        .unwrap();
+    assert!(orthant.contains("leaks"), "{list}");
+    assert!(list.contains("slab-funnel"), "{list}");
+}

@@ -1,15 +1,22 @@
 //! Targeted adversary search (`naysayer hunt`, issue 7, separation part): the search
 //! never does worse than the halving adversary, finds longer verified games for
 //! analytic-center and sampled-centroid, refuses non-deterministic methods, and its worst
-//! transcript round-trips through the file, the verifier and answer replay.
+//! transcript round-trips through the file, the verifier and answer replay. First-order
+//! classes: the search over the slab funnel's free choices (docs/theory.md §2.4) never
+//! reports less than the funnel's own game and verifies what it reports.
+
+mod slab_funnel_support;
 
 use std::process::Command;
 use std::sync::atomic::{AtomicU64, Ordering};
 
 use naysayer::certificate::verify_file;
-use naysayer::class::{Class, FeasibilityClass, Promise};
+use naysayer::class::{Class, FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
 use naysayer::error::Error;
 use naysayer::geometry::BoxModel;
+use naysayer::hunt::first_order::{
+    hunt_first_order, hunt_first_order_builtin, HUNT_FUNNEL_ADVERSARY,
+};
 use naysayer::hunt::replay::{read_records, replay_answers};
 use naysayer::hunt::{hunt, hunt_builtin, HuntReport, HuntSettings, HUNT_ADVERSARY};
 use naysayer::method::{self, Method};
@@ -313,4 +320,96 @@ fn cli_hunt_writes_a_transcript_that_check_and_replay_accept() {
         .output()
         .unwrap();
     assert_eq!(bad.status.code(), Some(2));
+}
+
+fn first_order(d: usize, eps: f64) -> FirstOrderClass {
+    FirstOrderClass::new(d, 1.0, eps, 1.0, LipschitzNorm::L2).unwrap()
+}
+
+#[test]
+fn first_order_hunts_never_report_less_than_the_funnel() {
+    // The search is seeded with the funnel's own game and compares with it on the
+    // verified count; every line of admissible choices keeps the theorem's count.
+    for (name, d) in [
+        ("kelley", 2),
+        ("ellipsoid", 2),
+        ("level", 1),
+        ("analytic-center", 3),
+    ] {
+        let class = first_order(d, 1e-4);
+        let settings = HuntSettings {
+            replays: 200,
+            game_budget: 200,
+            ..HuntSettings::default()
+        };
+        let report =
+            hunt_first_order_builtin(name, &class, 0, &settings, &mut |_| {}, None).unwrap();
+        let verdict = report.verdict.as_ref().expect("the worst game verifies");
+        let worst = verdict.certified_lower_bound().unwrap();
+        let generic = report.generic.certified_lower_bound.unwrap();
+        assert!(worst >= generic, "{name}: {worst} < {generic}");
+        // docs/theory.md §2.4, derived: d ceil(log_7(1 / (2 eps))) = 5 d at eps = 1e-4.
+        assert_eq!(report.lower_bound, 5 * d as u64);
+        assert!(worst >= report.lower_bound, "{name}: {worst}");
+        assert_eq!(report.header.adversary, HUNT_FUNNEL_ADVERSARY);
+    }
+}
+
+#[test]
+fn a_method_that_ties_at_every_query_branches_and_keeps_the_count() {
+    // Every query of this method lies on the level centre in its unfixed coordinates: all
+    // of them tie, with both signs, so the search branches at every depth; every line
+    // fixes one sign per query and certifies exactly the theorem's count (docs/theory.md
+    // §2.4, derived: d ceil(log_7(1 / (2 eps))) = 3 * 3 = 9 at d = 3, eps = 1e-2).
+    let class = first_order(3, 1e-2);
+    let factory = || -> Result<Box<dyn Method + Send>, Error> {
+        Ok(Box::new(slab_funnel_support::OneSignPerQuery::new(
+            &class, 9,
+        )))
+    };
+    let settings = HuntSettings {
+        replays: 400,
+        ..HuntSettings::default()
+    };
+    let report = hunt_first_order(&class, 0, &factory, &settings, &mut |_| {}, None).unwrap();
+    assert!(
+        report.candidates_tested > 2 * report.replays_used / 3,
+        "few branches: {} choices in {} replays",
+        report.candidates_tested,
+        report.replays_used
+    );
+    let verdict = report.verdict.as_ref().expect("the worst game verifies");
+    assert_eq!(report.worst.queries_used, 9);
+    assert!(verdict.certified_lower_bound().unwrap() >= 9);
+}
+
+#[test]
+fn cli_first_order_hunt_writes_a_transcript_that_check_and_replay_accept() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("funnel-hunt.jsonl");
+    let bin = env!("CARGO_BIN_EXE_naysayer");
+    let out = Command::new(bin)
+        .args(["hunt", "--class", "first-order", "-m", "kelley", "-d", "2"])
+        .args(["--eps", "1e-3", "--replays", "60", "--quiet", "-t"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(0), "{stdout}");
+    for label in [
+        "slab-funnel adversary",
+        "docs/theory.md §2.4",
+        "certificate valid",
+    ] {
+        assert!(stdout.contains(label), "{stdout}");
+    }
+    assert!(verify_file(&path).is_ok());
+    let replay = Command::new(bin)
+        .args(["hunt", "--replay"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    assert_eq!(replay.status.code(), Some(0));
+    assert!(String::from_utf8_lossy(&replay.stdout).contains("reproduced"));
+    let _ = read_records(&path).unwrap();
 }

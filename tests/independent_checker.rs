@@ -177,6 +177,10 @@ fn every_family(dir: &Path) -> Vec<(String, PathBuf)> {
         cases.push(("orthant", first_order(2, 1e-2, norm)));
     }
     cases.push(("orthant", first_order(3, 3e-2, LipschitzNorm::L2)));
+    for norm in [LipschitzNorm::L1, LipschitzNorm::L2, LipschitzNorm::Linf] {
+        cases.push(("slab-funnel", first_order(2, 1e-2, norm)));
+    }
+    cases.push(("slab-funnel", first_order(3, 3e-2, LipschitzNorm::L2)));
     let lattice =
         |n, upper, d, rho| Class::Lattice(LatticeClass::mixed(n, 0, upper, d, 1.0, rho).unwrap());
     cases.push(("corner", lattice(2, 1, 0, 0.5)));
@@ -203,7 +207,50 @@ fn every_family(dir: &Path) -> Vec<(String, PathBuf)> {
     ) {
         made.push(("halving/midpoint censored".into(), path));
     }
+    // The funnel's own witness pair, without the LP extension, on a game that goes on
+    // past the certified prefix.
+    made.push((
+        "slab-funnel own witnesses".into(),
+        play_funnel_own(dir, &first_order(2, 1e-6, LipschitzNorm::L2), "kelley"),
+    ));
     made
+}
+
+/// A game of `method` against the slab funnel with its own witness pair only (no LP
+/// extension), written to a file in `dir`.
+fn play_funnel_own(dir: &Path, class: &Class, method: &str) -> PathBuf {
+    use naysayer::adversary::slab_funnel::{FunnelSettings, LpExtension, SlabFunnel};
+    use naysayer::game::{self, GameSettings};
+    use naysayer::transcript::{Flush, TranscriptWriter};
+    let Class::FirstOrder(c) = class else {
+        unreachable!("a first-order class")
+    };
+    let path = dir.join(format!("funnel-own-{method}.jsonl"));
+    let spec = GameSpec {
+        class: class.clone(),
+        adversary: "slab-funnel".into(),
+        method: method.into(),
+        seed: 3,
+        budget: 400,
+        transcript: Some(path.clone()),
+    };
+    let settings = FunnelSettings {
+        lp_extension: LpExtension::Never,
+        ..FunnelSettings::default()
+    };
+    let mut adversary = SlabFunnel::new(c, settings).unwrap();
+    let mut m = naysayer::method::build(method, class, 3).unwrap();
+    let mut writer = TranscriptWriter::create(&path, Flush::Periodic).unwrap();
+    game::play(
+        &runner::header_for(&spec, method),
+        m.as_mut(),
+        &mut adversary,
+        &GameSettings { budget: 400 },
+        &mut [&mut writer],
+    )
+    .unwrap();
+    drop(writer);
+    path
 }
 
 #[test]
@@ -227,6 +274,14 @@ fn both_checkers_accept_every_family_and_agree_on_every_number() {
         "orthant/subgradient-decaying",
         "orthant/kelley",
         "orthant/level",
+        "slab-funnel/subgradient",
+        "slab-funnel/subgradient-decaying",
+        "slab-funnel/kelley",
+        "slab-funnel/level",
+        "slab-funnel/ellipsoid",
+        "slab-funnel/sampled-centroid",
+        "slab-funnel/analytic-center",
+        "slab-funnel own witnesses",
         "corner/enumerate",
         "lattice-half/lattice-centerpoint",
         "mixed-corner/fibre-bisection",
@@ -545,6 +600,83 @@ fn both_checkers_reject_the_same_tampered_first_order_transcripts() {
             "separation answer in a first-order game",
             edit(&lines, 1, |v| {
                 v["data"]["answer"] = serde_json::json!({"kind": "inside"})
+            }),
+        ),
+    ]);
+    both_reject(dir.path(), tampered);
+}
+
+#[test]
+fn both_checkers_reject_the_same_tampered_funnel_transcripts() {
+    if !python_present() {
+        return;
+    }
+    let dir = TempDir::new().unwrap();
+    // Kelley at d = 2, eps = 1e-6 goes on past the funnel's certified prefix (the
+    // witnesses certify 13 answers of 17).
+    let base = play_funnel_own(
+        dir.path(),
+        &first_order(2, 1e-6, LipschitzNorm::L2),
+        "kelley",
+    );
+    let lines = lines_of(&base);
+    assert!(agree(&base));
+    let n = last(&lines);
+    let fin = json(&lines[n]);
+    let prefix = fin["data"]["certificate"]["prefix"].as_u64().unwrap() as usize;
+    let used = fin["data"]["queries_used"].as_u64().unwrap() as usize;
+    assert!(prefix >= 3 && prefix < used, "prefix {prefix} of {used}");
+    let pieces = fin["data"]["certificate"]["instances"][0]["pieces"]
+        .as_array()
+        .unwrap()
+        .len();
+    let mut tampered = structural(&lines);
+    tampered.extend([
+        (
+            "answer value lowered inside the prefix",
+            edit(&lines, prefix, |v| {
+                let value = number(&v["data"]["answer"]["value"]);
+                v["data"]["answer"]["value"] = (value - 0.5).into();
+            }),
+        ),
+        (
+            "prefix extended over the answer that opened a level too deep",
+            edit(&lines, n, |v| {
+                v["data"]["certificate"]["prefix"] = (prefix as u64 + 1).into()
+            }),
+        ),
+        (
+            "the last revealed piece dropped from a witness",
+            edit(&lines, n, |v| {
+                v["data"]["certificate"]["instances"][1]["pieces"]
+                    .as_array_mut()
+                    .unwrap()
+                    .remove(pieces - 1);
+            }),
+        ),
+        (
+            "a revealed piece's sign flipped",
+            edit(&lines, n, |v| {
+                let slope =
+                    &mut v["data"]["certificate"]["instances"][0]["pieces"][pieces - 1]["slope"];
+                for x in slope.as_array_mut().unwrap() {
+                    if number(x) != 0.0 {
+                        *x = (-number(x)).into();
+                    }
+                }
+            }),
+        ),
+        (
+            "cone apexes moved together",
+            edit(&lines, n, |v| {
+                let c = v["data"]["certificate"]["instances"][0]["center"].clone();
+                v["data"]["certificate"]["instances"][1]["center"] = c;
+            }),
+        ),
+        (
+            "floor raised above the answers",
+            edit(&lines, n, |v| {
+                v["data"]["certificate"]["instances"][0]["floor"] = 1.0.into()
             }),
         ),
     ]);

@@ -671,7 +671,11 @@ fn rows_without_timing(path: &std::path::Path) -> Vec<String> {
         .collect()
 }
 
-fn sweep_binary(scenario: &std::path::Path, out: &std::path::Path, extra: &[&str]) -> std::process::Output {
+fn sweep_binary(
+    scenario: &std::path::Path,
+    out: &std::path::Path,
+    extra: &[&str],
+) -> std::process::Output {
     std::process::Command::new(env!("CARGO_BIN_EXE_naysayer"))
         .arg("sweep")
         .arg(scenario)
@@ -690,7 +694,11 @@ fn large_scale_sweeps_shard_merge_resume_and_take_expectations() {
     std::fs::write(&file, SCENARIO).unwrap();
     let whole = dir.path().join("whole");
     let out = sweep_binary(&file, &whole, &[]);
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let reference = rows_without_timing(&whole.join("tiny/games.csv"));
     assert_eq!(reference.len(), 13, "a header and 12 games");
 
@@ -698,7 +706,11 @@ fn large_scale_sweeps_shard_merge_resume_and_take_expectations() {
     let sharded = dir.path().join("sharded");
     for k in ["1/2", "2/2"] {
         let out = sweep_binary(&file, &sharded, &["--shard", k]);
-        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
     }
     let merge = std::process::Command::new(env!("CARGO_BIN_EXE_naysayer"))
         .arg("merge")
@@ -706,8 +718,15 @@ fn large_scale_sweeps_shard_merge_resume_and_take_expectations() {
         .arg("--no-charts")
         .output()
         .unwrap();
-    assert!(merge.status.success(), "{}", String::from_utf8_lossy(&merge.stderr));
-    assert_eq!(rows_without_timing(&sharded.join("tiny/games.csv")), reference);
+    assert!(
+        merge.status.success(),
+        "{}",
+        String::from_utf8_lossy(&merge.stderr)
+    );
+    assert_eq!(
+        rows_without_timing(&sharded.join("tiny/games.csv")),
+        reference
+    );
 
     // Interrupted after three games with a torn fourth row: the rerun keeps the three,
     // plays the rest, and ends with the same table.
@@ -718,7 +737,10 @@ fn large_scale_sweeps_shard_merge_resume_and_take_expectations() {
     std::fs::write(&csv, &kept).unwrap();
     let out = sweep_binary(&file, &whole, &[]);
     let said = String::from_utf8_lossy(&out.stdout).to_string();
-    assert!(out.status.success() && said.contains("3 resumed, 9 played"), "{said}");
+    assert!(
+        out.status.success() && said.contains("3 resumed, 9 played"),
+        "{said}"
+    );
     assert_eq!(rows_without_timing(&csv), reference);
 
     // A row that claims to be another game is refused with its line number.
@@ -741,7 +763,11 @@ fn large_scale_sweeps_shard_merge_resume_and_take_expectations() {
     )
     .unwrap();
     let out = sweep_binary(&file, &whole, &["--expect", held.to_str().unwrap()]);
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let drift = dir.path().join("drift.toml");
     std::fs::write(
         &drift,

@@ -420,3 +420,61 @@ fn lattice_scenarios_parse_strictly() {
         }
     }
 }
+
+/// A first-order scenario (the slab funnel), valid; its mistakes name line and column.
+const FIRST_ORDER: &str = r#"name = "funnel"
+description = "First-order methods against the slab funnel."
+
+[class]
+family = "first-order"
+dims = [1, 2]
+half_width = 1.0
+eps = [1e-2, 1e-4]
+lipschitz = 1.0
+
+[adversary]
+name = "slab-funnel"
+
+[play]
+methods = ["kelley", "level"]
+seeds = [0]
+budget = 100
+"#;
+
+/// Bad first-order input (issue 14): L <= 0 or not finite, eps <= 0 or not finite, and
+/// eps >= L R / 2 (where the first-order lower bound of docs/theory.md §2.4 asks for no query)
+/// are refused with the line and column of the offending value.
+#[test]
+fn first_order_scenarios_refuse_bad_accuracy_and_lipschitz() {
+    let path = Path::new("funnel.toml");
+    let scenario = Scenario::parse(FIRST_ORDER, path).unwrap();
+    assert_eq!(scenario.games().count(), 8, "2 dims x 2 eps x 2 methods");
+    let mistakes = [
+        // (replaced line, new text, line, column, word)
+        (8, "eps = [1e-2, 0.5]", 8, 14, "L R / 2"),
+        // L = 0.01 makes eps = 1e-2 larger than L R / 2 = 0.005: the first eps entry.
+        (9, "lipschitz = 0.01", 8, 8, "L R / 2"),
+        (8, "eps = [1e-2, -1e-3]", 8, 14, "eps"),
+        (8, "eps = [nan]", 8, 8, "eps"),
+        (9, "lipschitz = 0.0", 9, 13, "lipschitz"),
+        (9, "lipschitz = inf", 9, 13, "lipschitz"),
+    ];
+    for (line, text, at_line, at_column, word) in mistakes {
+        let mut lines: Vec<&str> = FIRST_ORDER.lines().collect();
+        lines[line - 1] = text;
+        let bad = lines.join("\n");
+        let error = Scenario::parse(&bad, path).expect_err(&bad);
+        match &error {
+            Error::Scenario {
+                line,
+                column,
+                reason,
+                ..
+            } => {
+                assert_eq!((*line, *column), (at_line, at_column), "{error}");
+                assert!(reason.contains(word), "{error}");
+            }
+            other => panic!("not a scenario error: {other:?}"),
+        }
+    }
+}

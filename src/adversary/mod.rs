@@ -15,6 +15,7 @@ pub mod mixed_corner;
 pub mod orthant;
 pub mod rotation;
 pub mod rotation_chain;
+pub mod slab_funnel;
 
 use serde::{Deserialize, Serialize};
 
@@ -126,6 +127,7 @@ pub struct AdversaryInfo {
 /// type and an `INFO` entry, and list the entry here.
 pub const ADVERSARIES: &[AdversaryInfo] = &[
     halving::INFO,
+    slab_funnel::INFO,
     orthant::INFO,
     lattice_half::INFO,
     corner::INFO,

@@ -2,14 +2,17 @@
 //! source.
 //!
 //! Notation: X = [-R, R]^d, accuracy rho (radius of a Euclidean ball inside K when K is
-//! nonempty), separation oracle with strict cuts (docs/theory.md §0). A lower bound
-//! holds for every method, deterministic or randomized, run by run (the adversary
-//! answers adaptively). An upper bound is what one named method is proven to need at
+//! nonempty), separation oracle with strict cuts (docs/theory.md §0); first-order: accuracy
+//! eps, Lipschitz constant L. A lower bound holds run by run (the adversary answers
+//! adaptively): the box-halving bound for every method, deterministic or randomized; the
+//! slab-funnel bound (docs/theory.md §2.4) is stated for deterministic methods. An upper bound is what one named method is proven to need at
 //! most on the whole class. A guide is a published order of growth whose constant is
 //! not verified here; it is printed without a number.
 
 pub mod large_scale;
 
+use num_bigint::BigInt;
+use num_rational::BigRational;
 use serde::Serialize;
 
 use crate::class::LatticeClass;
@@ -156,12 +159,49 @@ pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
     ]
 }
 
-/// Every bound line for a first-order class (docs/theory.md §2, §2.5).
+/// The number of slab-funnel levels K >= 0 with beta L R r^K > eps, where beta = 1/2 and
+/// r = theta (1 - beta) / 2 (docs/theory.md §2.4), decided exactly in rational arithmetic (not
+/// with a floating logarithm). With theta = 4/7, r = 1/7 and the count is
+/// ceil(log_7(L R / (2 eps))) for eps < L R / 2, else 0.
+pub fn slab_funnel_levels(class: &crate::class::FirstOrderClass, theta: &BigRational) -> u64 {
+    let eps = crate::exact::f64_to_rational(class.eps);
+    let r = theta / BigRational::from_integer(BigInt::from(4));
+    let mut reach = crate::exact::f64_to_rational(class.lipschitz)
+        * crate::exact::f64_to_rational(class.half_width)
+        / BigRational::from_integer(BigInt::from(2));
+    let mut levels = 0u64;
+    while reach > eps {
+        levels += 1;
+        reach *= &r;
+    }
+    levels
+}
+
+/// The slab-funnel lower bound (docs/theory.md §2.4, derived with proof): every deterministic
+/// method needs at least d * ceil(log_7(L R / (2 eps))) queries to minimise, to accuracy
+/// eps < L R / 2, convex functions on [-R, R]^d whose subgradients have l1 norm at most L
+/// (so L-Lipschitz in every l_p norm); 0 when eps >= L R / 2.
+pub fn slab_funnel_lower_bound(class: &crate::class::FirstOrderClass) -> u64 {
+    let theta = BigRational::new(BigInt::from(4), BigInt::from(7));
+    class.dim as u64 * slab_funnel_levels(class, &theta)
+}
+
+/// Every bound line for a first-order class (docs/theory.md §2, §2.4, §2.5).
 pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
     let diameter = class.half_width * (class.dim as f64).sqrt();
     let ratio = class.lipschitz * diameter / class.eps;
     let subgradient = (ratio * ratio).ceil().min(u64::MAX as f64) as u64;
     vec![
+        Bound {
+            label: "lower bound (slab funnel)",
+            side: Side::Lower,
+            queries: Some(slab_funnel_lower_bound(class)),
+            formula: "d * ceil(log_7(L R / (2 eps))) for eps < L R / 2, every deterministic \
+                      method; the hard instances have subgradients of l1 norm <= L, so the \
+                      bound holds for the l1, l2 and l_inf classes alike",
+            status: Status::Proven,
+            source: "slab-funnel adversary, docs/theory.md §2.4 (derived, with proof)",
+        },
         Bound {
             label: "lower bound (information complexity)",
             side: Side::Lower,
@@ -372,6 +412,34 @@ mod tests {
                 );
             }
         }
+    }
+
+    #[test]
+    fn slab_funnel_levels_match_the_closed_form() {
+        use crate::class::{FirstOrderClass, LipschitzNorm};
+        // docs/theory.md §2.4 (derived): ceil(log_7(L R / (2 eps))) with L = R = 1:
+        // 50 -> 3 (7^2 = 49 < 50 <= 343), 5000 -> 5 (2401 < 5000 <= 16807),
+        // 500000 -> 7 (117649 < 500000 <= 823543); eps >= L R / 2 -> 0.
+        for (d, eps, count) in [
+            (1, 1e-2, 3),
+            (2, 1e-4, 10),
+            (5, 1e-6, 35),
+            (3, 0.5, 0),
+            (3, 0.9, 0),
+        ] {
+            let class = FirstOrderClass::new(d, 1.0, eps, 1.0, LipschitzNorm::L2).unwrap();
+            assert_eq!(
+                slab_funnel_lower_bound(&class),
+                count,
+                "d = {d}, eps = {eps}"
+            );
+        }
+        // L R / (2 eps) = 49 exactly (L = 49, R = 1, eps = 1/2): 7^K < 49 for K = 0, 1
+        // only, so ceil(log_7 49) = 2 levels; the exact predicate does not round up.
+        let class = FirstOrderClass::new(1, 1.0, 0.5, 49.0, LipschitzNorm::L2).unwrap();
+        assert_eq!(slab_funnel_lower_bound(&class), 2);
+        let class = FirstOrderClass::new(1, 1.0, 0.5, 49.5, LipschitzNorm::L2).unwrap();
+        assert_eq!(slab_funnel_lower_bound(&class), 3);
     }
 
     #[test]

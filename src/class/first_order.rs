@@ -82,6 +82,31 @@ impl FirstOrderClass {
         })
     }
 
+    /// Checks eps < L R / 2 exactly: at eps >= L R / 2 the first-order lower bound of
+    /// docs/theory.md §2.4 asks for no query at all, and the slab funnel has no certificate.
+    /// The class itself stays valid (files written with such an eps can still be read);
+    /// the commands and scenario files refuse it.
+    pub fn check_accuracy_below_half_range(&self) -> Result<(), Error> {
+        let eps = crate::exact::f64_to_rational(self.eps);
+        let two = num_rational::BigRational::from_integer(2.into());
+        let range = crate::exact::f64_to_rational(self.lipschitz)
+            * crate::exact::f64_to_rational(self.half_width);
+        if two * eps >= range {
+            return Err(Error::InvalidClass {
+                reason: format!(
+                    "eps = {} is at least L R / 2 = {} (L = {}, R = {}): at this accuracy the \
+                     first-order lower bound of docs/theory.md §2.4 asks for no query at all; \
+                     choose eps below L R / 2",
+                    self.eps,
+                    self.lipschitz * self.half_width / 2.0,
+                    self.lipschitz,
+                    self.half_width
+                ),
+            });
+        }
+        Ok(())
+    }
+
     /// log2(L R / eps), the accuracy scale of the class.
     pub fn log2_scale(&self) -> f64 {
         (self.lipschitz * self.half_width / self.eps).log2()

@@ -91,8 +91,9 @@ pub fn run(args: &BoundsArgs) -> Result<u8, Error> {
     }
     crate::say!();
     crate::say!(
-        "A lower bound holds for every method, run by run; an upper bound is what the named \
-         method needs at most on the whole class."
+        "A proven lower bound holds run by run for every method (the slab-funnel bound: for \
+         every deterministic method); an upper bound is what the named method needs at most \
+         on the whole class."
     );
     Ok(EXIT_OK)
 }

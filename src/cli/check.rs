@@ -69,7 +69,8 @@ fn verify(args: &CheckArgs) -> Result<u8, Error> {
             );
             crate::say!(
                 "method {} against adversary {}",
-                verdict.header.method, verdict.header.adversary
+                verdict.header.method,
+                verdict.header.adversary
             );
             crate::say!(
                 "queries used           {}",

@@ -91,7 +91,11 @@ fn print_table(csv: &Path, dim: usize, rho: f64) -> Result<(), Error> {
     crate::say!("d = {dim}, R/rho = {}:", 1.0 / rho);
     crate::say!(
         "{:<18} {:>5} {:>14} {:>22} {:>9}  outcome",
-        "method", "seed", "queries used", "certified lower bound", "verified"
+        "method",
+        "seed",
+        "queries used",
+        "certified lower bound",
+        "verified"
     );
     for line in text.lines().skip(1) {
         let f = split_csv_line(line);

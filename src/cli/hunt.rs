@@ -9,8 +9,11 @@
 
 use clap::Args;
 
+use crate::class::Class;
 use crate::cli::play::{describe_outcome, lower_bound_text, queries_used_text};
-use crate::cli::{describe_class, ClassArgs, PathArg, EXIT_OK, EXIT_REJECTED};
+use crate::cli::{
+    describe_class, ClassArgs, Family, FirstOrderArgs, PathArg, EXIT_OK, EXIT_REJECTED,
+};
 use crate::error::Error;
 use crate::hunt::{self, replay, GameFigures, HuntReport, HuntSettings};
 
@@ -21,9 +24,16 @@ pub struct HuntArgs {
     /// seed.
     #[arg(short, long, default_value = "analytic-center")]
     pub method: String,
+    /// The family of classes: feasibility (search over strict cuts) or first-order
+    /// (search over the slab funnel's free choices, docs/theory.md §2.4).
+    #[arg(long = "class", value_enum, default_value_t = Family::Feasibility)]
+    pub family: Family,
     /// The class.
     #[command(flatten)]
     pub class: ClassArgs,
+    /// First-order parameters (`--class first-order`).
+    #[command(flatten)]
+    pub first_order: FirstOrderArgs,
     /// Seed of the method (randomized methods are deterministic given it).
     #[arg(long, default_value_t = 0)]
     pub seed: u64,
@@ -62,7 +72,6 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
     if let Some(path) = &args.replay {
         return run_replay(path);
     }
-    let class = args.class.to_class()?;
     let settings = HuntSettings {
         width: args.width,
         replays: args.replays,
@@ -84,14 +93,40 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
             ));
         }
     };
-    let report = hunt::hunt_builtin(
-        &args.method,
-        &class,
-        args.seed,
-        &settings,
-        &mut on_progress,
-        args.transcript.as_deref(),
-    )?;
+    let report = match args.family {
+        Family::Feasibility => hunt::hunt_builtin(
+            &args.method,
+            &args.class.to_class()?,
+            args.seed,
+            &settings,
+            &mut on_progress,
+            args.transcript.as_deref(),
+        )?,
+        Family::FirstOrder => hunt::first_order::hunt_first_order_builtin(
+            &args.method,
+            &args.first_order.to_class(&args.class)?,
+            args.seed,
+            &settings,
+            &mut on_progress,
+            args.transcript.as_deref(),
+        )?,
+        Family::Lattice => {
+            return Err(Error::Unsupported {
+                what: "hunt".into(),
+                reason: "lattice classes have no hunt; use `naysayer minimax` for small ones"
+                    .into(),
+            })
+        }
+        Family::LargeScale => {
+            return Err(Error::Unsupported {
+                what: "hunt".into(),
+                reason: "the large-scale family has no hunt: its adaptive-rotation \
+                         adversaries already bind every deterministic method \
+                         (docs/theory.md §3)"
+                    .into(),
+            })
+        }
+    };
     if let Some(bar) = bar {
         bar.finish_and_clear();
     }
@@ -145,33 +180,52 @@ fn summary(args: &HuntArgs, report: &HuntReport) -> String {
             args.width, report.passes, args.hunt_seed
         ),
     );
+    let first_order = matches!(report.header.class, Class::FirstOrder(_));
+    let (generic, theorem) = if first_order {
+        (
+            "slab-funnel",
+            "every deterministic method (theorem: slab funnel, docs/theory.md §2.4)",
+        )
+    } else {
+        (
+            "halving",
+            "every method (theorem: box halving, docs/theory.md §1.1)",
+        )
+    };
     line("worst found", figures_text(&report.worst));
-    line("halving adversary", figures_text(&report.generic));
+    line(
+        &format!("{generic} adversary"),
+        figures_text(&report.generic),
+    );
     line(
         "lower bound",
-        format!(
-            "{} queries for every method (theorem: box halving, docs/theory.md §1.1)",
-            report.lower_bound
-        ),
+        format!("{} queries for {theorem}", report.lower_bound),
     );
     line(
         "found by",
         if report.found_by_search {
-            "the search (longer than the halving game)".into()
+            format!("the search (longer than the {generic} game)")
         } else {
-            "the seed line: no searched line beat the halving game".into()
+            format!("the seed line: no searched line beat the {generic} game")
         },
     );
     line(
         "budget used",
-        format!(
-            "{} of {} replays; {} candidate answers tested, {} rejected by the exact check \
-             after the LP accepted them",
-            report.replays_used,
-            report.replay_budget,
-            report.candidates_tested,
-            report.rejected_by_exact_check
-        ),
+        if first_order {
+            format!(
+                "{} of {} replays; {} admissible answers tried (ties of the funnel's answer)",
+                report.replays_used, report.replay_budget, report.candidates_tested
+            )
+        } else {
+            format!(
+                "{} of {} replays; {} candidate answers tested, {} rejected by the exact \
+                 check after the LP accepted them",
+                report.replays_used,
+                report.replay_budget,
+                report.candidates_tested,
+                report.rejected_by_exact_check
+            )
+        },
     );
     if report.method_failures.0 > 0 {
         line(

@@ -83,7 +83,8 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
             let report = search.solve();
             crate::say!(
                 "query set Q            {q_text} ({} points, {} lattice points)",
-                report.query_points, report.lattice_points
+                report.query_points,
+                report.lattice_points
             );
             crate::say!("V_Q                    {}", report.value);
             crate::say!(
@@ -112,7 +113,8 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
             let report = search.method_worst_case(&class, name)?;
             crate::say!(
                 "query set Q            {q_text} ({} points, {} lattice points)",
-                report.query_points, report.lattice_points
+                report.query_points,
+                report.lattice_points
             );
             crate::say!("method                 {name}");
             crate::say!("worst case             {}", report.value);

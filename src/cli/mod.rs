@@ -217,20 +217,40 @@ pub struct FirstOrderArgs {
 }
 
 impl FirstOrderArgs {
-    /// Validates into a first-order class with the dimension and box of `shape`.
+    /// Validates into a first-order class with the dimension and box of `shape`: L and
+    /// eps finite and positive, eps < L R / 2 (errors name the flag).
     pub fn to_class(&self, shape: &ClassArgs) -> Result<crate::class::FirstOrderClass, Error> {
         let norm = match self.norm.as_str() {
             "l1" => crate::class::LipschitzNorm::L1,
             "linf" => crate::class::LipschitzNorm::Linf,
             _ => crate::class::LipschitzNorm::L2,
         };
-        crate::class::FirstOrderClass::new(
-            shape.dim,
-            shape.half_width,
-            self.eps,
-            self.lipschitz,
-            norm,
-        )
+        let (l, eps) = (self.lipschitz, self.eps);
+        if !(l.is_finite() && l > 0.0) {
+            return Err(Error::InvalidSetting {
+                name: "--lipschitz",
+                reason: format!("L = {l} must be a finite positive number"),
+            });
+        }
+        if !(eps.is_finite() && eps > 0.0) {
+            return Err(Error::InvalidSetting {
+                name: "--eps",
+                reason: format!("eps = {eps} must be a finite positive number"),
+            });
+        }
+        let class = crate::class::FirstOrderClass::new(shape.dim, shape.half_width, eps, l, norm)?;
+        class
+            .check_accuracy_below_half_range()
+            .map_err(|e| Error::InvalidSetting {
+                name: "--eps",
+                reason: match e {
+                    Error::InvalidClass { reason } => {
+                        format!("{reason} (L is --lipschitz, R is --half-width)")
+                    }
+                    other => other.to_string(),
+                },
+            })?;
+        Ok(class)
     }
 }
 

@@ -4,7 +4,7 @@ use std::time::Duration;
 
 use clap::Args;
 
-use crate::bounds::halving_lower_bound;
+use crate::bounds::{halving_lower_bound, slab_funnel_lower_bound};
 use crate::certificate::{Outcome, Verdict};
 use crate::class::Class;
 use crate::cli::{
@@ -305,6 +305,14 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
             "theory                 every method needs at least {} queries on this class \
              (theorem: box halving, docs/theory.md §1.1)\n",
             halving_lower_bound(class)
+        ));
+    }
+    if let Class::FirstOrder(class) = &spec.class {
+        out.push_str(&format!(
+            "theory                 every deterministic method needs at least {} queries on \
+             this class (theorem: slab funnel, docs/theory.md §2.4); the order \
+             Theta(d log(LR/eps)) (Nemirovski & Yudin 1983) is a guide only\n",
+            slab_funnel_lower_bound(class)
         ));
     }
     match &report.verdict {

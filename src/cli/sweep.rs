@@ -84,12 +84,14 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
                 crate::say!(
                     "{}: {} games fell below a claimed lower curve or were refused by the \
                      judge (see the holds and outcome columns)",
-                    scenario.name, summary.rejected
+                    scenario.name,
+                    summary.rejected
                 );
             } else {
                 crate::say!(
                     "{}: {} certificates REJECTED by the verifier (see the outcome column)",
-                    scenario.name, summary.rejected
+                    scenario.name,
+                    summary.rejected
                 );
             }
             code = EXIT_REJECTED;

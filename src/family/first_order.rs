@@ -29,6 +29,6 @@ impl Family for FirstOrder {
     }
 
     fn default_adversary(&self, _class: &Class) -> &'static str {
-        "orthant"
+        "slab-funnel"
     }
 }

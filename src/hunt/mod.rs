@@ -1,5 +1,6 @@
 //! Targeted adversary search ("hunt"): the answers that make one given deterministic
-//! method slowest on the separation feasibility class (docs/theory.md §1).
+//! method slowest on the separation feasibility class (docs/theory.md §1); first-order
+//! classes are searched over the slab funnel's free choices ([`first_order`]).
 //!
 //! The built-in adversaries are method-agnostic. A hunt instead searches the game tree
 //! of one method: at each of its queries the hunt may give any admissible answer
@@ -59,6 +60,7 @@
 //! need two disjoint rho-balls as witnesses and is refused.
 
 pub mod answers;
+pub mod first_order;
 pub mod replay;
 
 use rayon::prelude::*;
@@ -172,7 +174,7 @@ pub struct GameFigures {
 }
 
 impl GameFigures {
-    fn from_verdict(verdict: &Verdict) -> GameFigures {
+    pub(crate) fn from_verdict(verdict: &Verdict) -> GameFigures {
         GameFigures {
             queries_used: verdict.queries_used,
             censored: verdict.censored,
@@ -193,12 +195,14 @@ pub struct HuntReport {
     pub verdict: Result<Verdict, Error>,
     /// The worst game found.
     pub worst: GameFigures,
-    /// The same method against the halving adversary (the generic adversary).
+    /// The same method against the generic adversary of the class: halving (separation)
+    /// or slab-funnel (first-order, [`first_order`]).
     pub generic: GameFigures,
-    /// The theorem's lower bound for the class (docs/theory.md §1.1: d k + 1).
+    /// The theorem's lower bound for the class (docs/theory.md §1.1: d k + 1; first-order
+    /// docs/theory.md §2.4: d ceil(log_7(L R / (2 eps)))).
     pub lower_bound: u64,
     /// True when the worst game came from the search, false when no line beat the
-    /// halving game (the seed line).
+    /// generic adversary's game (the seed line).
     pub found_by_search: bool,
     /// Replays used (may exceed the budget by the closing of the last open line).
     pub replays_used: u64,

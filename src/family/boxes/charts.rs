@@ -169,6 +169,14 @@ fn bound_curves(classes: &[(f64, Class)]) -> Vec<Curve> {
             },
         ),
         line(
+            "lower bound (slab funnel, theorem)",
+            CurveStyle::LowerBound,
+            &|c| match c {
+                Class::FirstOrder(_) => ClassFacts::of(c).lower_bound,
+                _ => None,
+            },
+        ),
+        line(
             "lower bound floor(log2|S|)+1 (docs/theory.md §4)",
             CurveStyle::LowerBound,
             &lattice(bounds::lattice_half_lower_bound),
@@ -293,7 +301,7 @@ pub fn draw_all(dir: &Path, lineup: &Lineup<'_>, grid: &BoxGrid) -> Result<Vec<P
     );
     let subtitle = if first_order {
         format!(
-            "{subtitle}; lower bound Theta(d log(LR/eps)), constant unspecified (Nemirovski & Yudin 1983)"
+            "{subtitle}; theorem d*ceil(log_7(LR/(2 eps))) (docs/theory.md §2.4); order Theta(d log(LR/eps)) (Nemirovski & Yudin 1983)"
         )
     } else {
         subtitle

@@ -17,6 +17,7 @@ use toml::Spanned;
 use crate::bounds::{
     centre_of_gravity_upper_bound, ellipsoid_upper_bound,
     first_order_centre_of_gravity_upper_bound, halving_lower_bound, lattice_half_lower_bound,
+    slab_funnel_lower_bound,
 };
 use crate::certificate::Outcome;
 use crate::class::{
@@ -76,9 +77,11 @@ impl BoxKind {
             BoxKind::Feasibility { promise } => {
                 Class::Feasibility(FeasibilityClass::new(d, half_width, accuracy, *promise)?)
             }
-            BoxKind::FirstOrder { lipschitz, norm } => Class::FirstOrder(FirstOrderClass::new(
-                d, half_width, accuracy, *lipschitz, *norm,
-            )?),
+            BoxKind::FirstOrder { lipschitz, norm } => {
+                let class = FirstOrderClass::new(d, half_width, accuracy, *lipschitz, *norm)?;
+                class.check_accuracy_below_half_range()?;
+                Class::FirstOrder(class)
+            }
             BoxKind::Lattice {
                 int_lower,
                 int_upper,
@@ -422,7 +425,8 @@ pub fn parse(at: &ScenarioText<'_>, family: &'static str) -> Result<BoxGrid, Err
 /// (empty for the other families). `lipschitz` and `certified_uncertainty` are empty
 /// for feasibility classes, `promise` for first-order ones; bound columns are empty
 /// where the class has no proven number (for lattice classes `lower_bound` is the
-/// lattice-halving bound of docs/theory.md §4, pure integer only).
+/// lattice-halving bound of docs/theory.md §4, pure integer only; for first-order classes
+/// the slab-funnel bound of docs/theory.md §2.4, deterministic methods).
 pub const COLUMNS: &[&str] = &[
     "game",
     "scenario",
@@ -552,7 +556,12 @@ impl Grid for BoxGrid {
                 outcome_name(&v.outcome).to_string(),
                 "yes",
             ),
-            Err(e) => (String::new(), String::new(), format!("rejected: {}", e.chain()), "no"),
+            Err(e) => (
+                String::new(),
+                String::new(),
+                format!("rejected: {}", e.chain()),
+                "no",
+            ),
         };
         let mut cells: Vec<String> = self
             .identity(lineup, game)
@@ -653,7 +662,7 @@ impl ClassFacts {
                 lipschitz: Some(c.lipschitz),
                 promise: None,
                 lattice: None,
-                lower_bound: None,
+                lower_bound: Some(slab_funnel_lower_bound(c)),
                 upper_centre_of_gravity: Some(first_order_centre_of_gravity_upper_bound(c)),
                 upper_ellipsoid: None,
             },
