@@ -1,4 +1,4 @@
-//! The argmin adapter (feature `argmin`): argmin solvers play the orthant adversary to
+//! The argmin adapter (feature `argmin`): argmin solvers play the slab-funnel adversary to
 //! a verified certificate; value and gradient at one point cost one query; an argmin
 //! error keeps the transcript.
 #![cfg(feature = "argmin")]
@@ -19,7 +19,7 @@ fn spec(dir: &TempDir, name: &str, budget: u64) -> GameSpec {
         class: Class::FirstOrder(
             FirstOrderClass::new(2, 1.0, 1e-3, 1.0, LipschitzNorm::L2).unwrap(),
         ),
-        adversary: "orthant".into(),
+        adversary: "slab-funnel".into(),
         method: String::new(),
         seed: 0,
         budget,

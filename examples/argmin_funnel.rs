@@ -1,9 +1,10 @@
-//! argmin's steepest descent and L-BFGS against the orthant-level adversary
-//! (docs/theory.md §2.3), through the argmin adapter; each game's certificate is verified
-//! exactly.
+//! argmin's steepest descent and L-BFGS against the slab-funnel adversary
+//! (docs/theory.md §2.4, the first-order family's default: every deterministic method
+//! needs d * ceil(log_7(L R / (2 eps))) queries), through the argmin adapter; each game's
+//! certificate is verified exactly.
 //!
 //! ```sh
-//! cargo run --release --features argmin --example argmin_orthant
+//! cargo run --release --features argmin --example argmin_funnel
 //! ```
 
 use std::process::ExitCode;
@@ -63,7 +64,7 @@ fn main() -> ExitCode {
     };
     let spec = GameSpec {
         class,
-        adversary: "orthant".into(),
+        adversary: "slab-funnel".into(),
         method: String::new(),
         seed: 0,
         budget: 500,
