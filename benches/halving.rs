@@ -1,7 +1,6 @@
 //! Criterion benchmarks for the core game (issue targets in comments; figures measured
 //! on the project's 2-core machine go in DEVELOPERS.md).
 
-use std::io::BufWriter;
 use std::path::Path;
 
 use criterion::{black_box, criterion_group, criterion_main, BatchSize, Criterion, Throughput};
@@ -108,8 +107,7 @@ fn transcript_writing(c: &mut Criterion) {
             for (i, (q, a)) in exchanges.iter().enumerate() {
                 writer.on_query(i as u64 + 1, q, a, &adversary).unwrap();
             }
-            let mut out: BufWriter<std::fs::File> = writer.into_inner();
-            std::io::Write::flush(&mut out).unwrap();
+            writer.flush().unwrap();
         })
     });
     group.finish();

@@ -212,6 +212,21 @@ impl Scenario {
             adversary: &raw.adversary.name,
             budget: raw.play.budget.as_ref(),
         })?;
+        // The adversary must play every class of the grid (a cheap check, not a build).
+        if let Some(check) = crate::adversary::info(&adversary).and_then(|a| a.restriction) {
+            for point in 0..grid.len() {
+                if let Ok(class) = grid.class(point) {
+                    if let Err(reason) = check(&class) {
+                        return Err(error(
+                            raw.adversary.name.span(),
+                            format!(
+                                "adversary {adversary:?} cannot play a class of the grid: {reason}"
+                            ),
+                        ));
+                    }
+                }
+            }
+        }
         let at = Locator { path, text };
         let mut external: Vec<ExternalEntry> = Vec::new();
         if let Some(table) = &raw.external {

@@ -108,6 +108,18 @@ impl Corner {
     }
 }
 
+/// Pure integer classes whose box contains {0,1}^n.
+fn restriction(class: &Class) -> Result<(), String> {
+    match class {
+        Class::Lattice(c) if c.cont_dim != 0 || !c.contains_unit_cube() => Err(
+            "it needs a pure integer class (d = 0) whose box contains {0,1}^n; use \
+             mixed-corner for d >= 1"
+                .into(),
+        ),
+        _ => Ok(()),
+    }
+}
+
 /// The registry entry (docs/theory.md: see the description).
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "corner",
@@ -115,6 +127,7 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
     description: "integer, {0,1}^n: cuts each queried vertex off alone (forces 2^n; ours, \
                   docs/theory.md §4, every run certified)",
     scope: Scope::EveryMethod,
+    restriction: Some(restriction),
     build: |class| match class {
         Class::Lattice(c) => Ok(Box::new(Corner::new(c)?)),
         _ => Err(wrong_family("corner", "lattice")),

@@ -90,6 +90,7 @@ pub const DRORI_TEBOULLE: AdversaryInfo = AdversaryInfo {
     family: "large-scale",
     description: "large-scale nonsmooth instance, tight for the subgradient method (Drori & Teboulle 2016); N = T (span methods; demonstration)",
     scope: Scope::SpanMethods,
+    restriction: None,
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(FixedFunction::new("drori-teboulle", c)?)),
         _ => Err(wrong_family("drori-teboulle", "large-scale")),
@@ -102,6 +103,7 @@ pub const NESTEROV_NONSMOOTH: AdversaryInfo = AdversaryInfo {
     family: "large-scale",
     description: "large-scale nonsmooth instance of Nesterov 2004, Thm 3.2.1; k = T (span methods; demonstration)",
     scope: Scope::SpanMethods,
+    restriction: None,
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(FixedFunction::new("nesterov-nonsmooth", c)?)),
         _ => Err(wrong_family("nesterov-nonsmooth", "large-scale")),
@@ -114,6 +116,7 @@ pub const SMOOTH_CHAIN: AdversaryInfo = AdversaryInfo {
     family: "large-scale",
     description: "large-scale smooth chain quadratic of Nesterov 2004, Thm 2.1.7; k = T (span methods; demonstration)",
     scope: Scope::SpanMethods,
+    restriction: None,
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(FixedFunction::new("smooth-chain", c)?)),
         _ => Err(wrong_family("smooth-chain", "large-scale")),
@@ -126,6 +129,7 @@ pub const STRONGLY_CONVEX_CHAIN: AdversaryInfo = AdversaryInfo {
     family: "large-scale",
     description: "large-scale strongly convex chain of Nesterov 2004, Thm 2.1.13; k = T (span methods; demonstration)",
     scope: Scope::SpanMethods,
+    restriction: None,
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(FixedFunction::new("strongly-convex-chain", c)?)),
         _ => Err(wrong_family("strongly-convex-chain", "large-scale")),

@@ -126,6 +126,7 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
     description: "separation, box: cuts the least-cut axis through the query, keeping \
                   the larger half (forces d*k + 1 queries; theorem, docs/theory.md §1.1)",
     scope: Scope::EveryMethod,
+    restriction: None,
     build: |class| match class {
         Class::Feasibility(c) => Ok(Box::new(Halving::new(c))),
         _ => Err(wrong_family("halving", "feasibility")),

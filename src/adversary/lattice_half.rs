@@ -78,6 +78,20 @@ impl LatticeHalf {
     }
 }
 
+/// Pure integer classes with at most [`MAX_ALIVE`] lattice points.
+fn restriction(class: &Class) -> Result<(), String> {
+    match class {
+        Class::Lattice(c) if c.cont_dim != 0 => {
+            Err("it plays pure integer classes (d = 0); use mixed-corner for d >= 1".into())
+        }
+        Class::Lattice(c) if c.lattice_count() > MAX_ALIVE => Err(format!(
+            "the integer box has {} lattice points, more than the {MAX_ALIVE} it tracks",
+            c.lattice_count()
+        )),
+        _ => Ok(()),
+    }
+}
+
 /// The registry entry (docs/theory.md: see the description).
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "lattice-half",
@@ -86,6 +100,7 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   points it finds, at least (|S| - 1)/2 (forces floor(log2 |S|) + 1; \
                   docs/theory.md §4)",
     scope: Scope::EveryMethod,
+    restriction: Some(restriction),
     build: |class| match class {
         Class::Lattice(c) => Ok(Box::new(LatticeHalf::new(c)?)),
         _ => Err(wrong_family("lattice-half", "lattice")),

@@ -388,6 +388,18 @@ fn lambda_estimate(x: &[f64], z: &[i64]) -> f64 {
         .max(f64::MIN_POSITIVE)
 }
 
+/// Mixed-integer classes (d >= 1, n <= 62) whose integer box contains {0,1}^n.
+fn restriction(class: &Class) -> Result<(), String> {
+    match class {
+        Class::Lattice(c) if c.cont_dim == 0 || !c.contains_unit_cube() || c.int_dim() > 62 => Err(
+            "it needs a mixed-integer class (d >= 1, n <= 62) whose integer box \
+                 contains {0,1}^n; use corner for d = 0"
+                .into(),
+        ),
+        _ => Ok(()),
+    }
+}
+
 /// The registry entry (docs/theory.md: see the description).
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "mixed-corner",
@@ -396,6 +408,7 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   exact lifted cuts (forces 2^n (d k + 1); ours, docs/theory.md §4, every run \
                   certified)",
     scope: Scope::EveryMethod,
+    restriction: Some(restriction),
     build: |class| match class {
         Class::Lattice(c) => Ok(Box::new(MixedCorner::new(c)?)),
         _ => Err(wrong_family("mixed-corner", "lattice")),

@@ -119,6 +119,9 @@ pub struct AdversaryInfo {
     pub description: &'static str,
     /// Which methods its bound binds.
     pub scope: Scope,
+    /// A cheap check of a class of its family that it cannot play (`Err` says why), run
+    /// before building it and when a scenario is read, if any.
+    pub restriction: Option<crate::method::Restriction>,
     /// Builds it for a class of its family.
     pub build: fn(&Class) -> Result<Box<dyn Adversary + Send>, Error>,
 }
@@ -147,10 +150,18 @@ pub fn info(name: &str) -> Option<&'static AdversaryInfo> {
 
 /// Builds the adversary `name` for `class`.
 pub fn build(name: &str, class: &Class) -> Result<Box<dyn Adversary + Send>, Error> {
-    match info(name) {
-        Some(entry) => (entry.build)(class),
-        None => Err(Error::UnknownAdversary { name: name.into() }),
+    let Some(entry) = info(name) else {
+        return Err(Error::UnknownAdversary { name: name.into() });
+    };
+    if let Some(check) = entry.restriction {
+        if class.family_name() == entry.family {
+            check(class).map_err(|reason| Error::Unsupported {
+                what: format!("adversary {name:?}"),
+                reason,
+            })?;
+        }
     }
+    (entry.build)(class)
 }
 
 /// The error for an adversary built for a class of another family.

@@ -737,6 +737,7 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   (ours, docs/theory.md §2.3: no proven count, and it leaks (Kelley finds \
                   minimisers early); kept for comparison, every run certified)",
     scope: Scope::EveryMethod,
+    restriction: None,
     build: |class| match class {
         Class::FirstOrder(c) => Ok(Box::new(Orthant::new(c, OrthantSettings::default())?)),
         _ => Err(wrong_family("orthant", "first-order")),

@@ -234,6 +234,7 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
     description: "large-scale nonsmooth: adaptive rotation of the Drori-Teboulle function, \
                   N = T (any deterministic method; d >= 2T + 2; demonstration, docs/theory.md §3)",
     scope: Scope::EveryMethod,
+    restriction: None,
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(Rotation::for_game(c)?)),
         _ => Err(wrong_family("rotation", "large-scale")),

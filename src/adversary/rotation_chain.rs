@@ -185,6 +185,7 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   length 2T + 1 (any deterministic method; d >= 3T + 2; demonstration, \
                   docs/theory.md §3)",
     scope: Scope::EveryMethod,
+    restriction: None,
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(RotationChain::for_game(c)?)),
         _ => Err(wrong_family("rotation-chain", "large-scale")),

@@ -27,7 +27,7 @@ pub struct DemoArgs {
     #[arg(long, default_value = "results")]
     pub out: PathBuf,
     /// Worker threads (default: the number of cores).
-    #[arg(short, long)]
+    #[arg(short, long, allow_negative_numbers = true)]
     pub jobs: Option<usize>,
 }
 

@@ -35,25 +35,33 @@ pub struct HuntArgs {
     #[command(flatten)]
     pub first_order: FirstOrderArgs,
     /// Seed of the method (randomized methods are deterministic given it).
-    #[arg(long, default_value_t = 0)]
+    #[arg(long, default_value_t = 0, allow_negative_numbers = true)]
     pub seed: u64,
     /// Beam width: lines kept at each depth.
-    #[arg(long, default_value_t = 8)]
+    #[arg(long, default_value_t = 8, allow_negative_numbers = true)]
     pub width: usize,
     /// Search budget: method replays (one replay = one method step driven by the search).
-    #[arg(long, default_value_t = 10_000)]
+    #[arg(long, default_value_t = 10_000, allow_negative_numbers = true)]
     pub replays: u64,
     /// Seed of the hunt's random candidate directions.
-    #[arg(long = "hunt-seed", default_value_t = 0)]
+    #[arg(long = "hunt-seed", default_value_t = 0, allow_negative_numbers = true)]
     pub hunt_seed: u64,
     /// Random candidate directions per query.
-    #[arg(long = "random-directions", default_value_t = 4)]
+    #[arg(
+        long = "random-directions",
+        default_value_t = 4,
+        allow_negative_numbers = true
+    )]
     pub random_directions: usize,
     /// Candidate directions from this many of the method's most recent queries.
-    #[arg(long = "recent-queries", default_value_t = 2)]
+    #[arg(
+        long = "recent-queries",
+        default_value_t = 2,
+        allow_negative_numbers = true
+    )]
     pub recent_queries: usize,
     /// Most queries the method may ask in one game.
-    #[arg(long, default_value_t = 10_000)]
+    #[arg(long, default_value_t = 10_000, allow_negative_numbers = true)]
     pub budget: u64,
     /// Write the worst game's transcript here (JSON Lines); it is verified from the file.
     #[arg(short, long)]

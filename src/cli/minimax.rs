@@ -15,7 +15,7 @@ use crate::minimax::{Minimax, QuerySet};
 #[derive(Debug, Clone, Args)]
 pub struct LatticeArgs {
     /// Integer dimension n (lattice classes).
-    #[arg(long = "int-dim", default_value_t = 2)]
+    #[arg(long = "int-dim", default_value_t = 2, allow_negative_numbers = true)]
     pub int_dim: usize,
     /// Lower bound of every integer coordinate (lattice classes).
     #[arg(long = "int-lower", default_value_t = 0, allow_negative_numbers = true)]
@@ -24,7 +24,7 @@ pub struct LatticeArgs {
     #[arg(long = "int-upper", default_value_t = 1, allow_negative_numbers = true)]
     pub int_upper: i64,
     /// Continuous dimension d (lattice classes; 0 is pure integer feasibility).
-    #[arg(long = "cont-dim", default_value_t = 0)]
+    #[arg(long = "cont-dim", default_value_t = 0, allow_negative_numbers = true)]
     pub cont_dim: usize,
 }
 
@@ -46,7 +46,7 @@ impl LatticeArgs {
 #[derive(Debug, Args)]
 pub struct MinimaxArgs {
     /// Integer dimension n (1 to 3).
-    #[arg(long = "int-dim", default_value_t = 2)]
+    #[arg(long = "int-dim", default_value_t = 2, allow_negative_numbers = true)]
     pub int_dim: usize,
     /// Lower bound of every integer coordinate.
     #[arg(long = "int-lower", default_value_t = 0, allow_negative_numbers = true)]

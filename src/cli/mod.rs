@@ -130,16 +130,20 @@ pub struct LargeScaleArgs {
     #[arg(long, default_value = "nonsmooth", value_parser = ["nonsmooth", "smooth", "strongly-convex"])]
     pub kind: String,
     /// Horizon T of a large-scale game: its number of queries (and the methods' plan).
-    #[arg(long, default_value_t = 100)]
+    #[arg(long, default_value_t = 100, allow_negative_numbers = true)]
     pub horizon: u64,
     /// R >= ||x_0 - x*|| (large-scale classes).
-    #[arg(long, default_value_t = 1.0)]
+    #[arg(long, default_value_t = 1.0, allow_hyphen_values = true)]
     pub radius: f64,
     /// Smoothness beta (smooth and strongly-convex large-scale classes).
-    #[arg(long, default_value_t = 1.0)]
+    #[arg(long, default_value_t = 1.0, allow_hyphen_values = true)]
     pub smoothness: f64,
     /// Strong convexity mu (strongly-convex large-scale class), 0 < mu < beta.
-    #[arg(long = "strong-convexity", default_value_t = 0.01)]
+    #[arg(
+        long = "strong-convexity",
+        default_value_t = 0.01,
+        allow_hyphen_values = true
+    )]
     pub strong_convexity: f64,
 }
 
@@ -206,10 +210,10 @@ impl ClassSelection {
 #[derive(Debug, Clone, Args)]
 pub struct FirstOrderArgs {
     /// Additive accuracy eps (first-order classes).
-    #[arg(long, default_value_t = 1e-4)]
+    #[arg(long, default_value_t = 1e-4, allow_hyphen_values = true)]
     pub eps: f64,
     /// Lipschitz constant L (first-order classes).
-    #[arg(long, default_value_t = 1.0)]
+    #[arg(long, default_value_t = 1.0, allow_hyphen_values = true)]
     pub lipschitz: f64,
     /// The norm L is measured in: l1, l2 or linf (first-order classes).
     #[arg(long, default_value = "l2", value_parser = ["l1", "l2", "linf"])]
@@ -258,13 +262,18 @@ impl FirstOrderArgs {
 #[derive(Debug, Clone, Args)]
 pub struct ClassArgs {
     /// Dimension d.
-    #[arg(short = 'd', long = "dim", default_value_t = 2)]
+    #[arg(
+        short = 'd',
+        long = "dim",
+        default_value_t = 2,
+        allow_negative_numbers = true
+    )]
     pub dim: usize,
     /// Box half-width R (the box is [-R, R]^d).
-    #[arg(long = "half-width", default_value_t = 1.0)]
+    #[arg(long = "half-width", default_value_t = 1.0, allow_hyphen_values = true)]
     pub half_width: f64,
     /// Accuracy rho: K is empty or contains a Euclidean ball of this radius.
-    #[arg(long, default_value_t = 1e-3)]
+    #[arg(long, default_value_t = 1e-3, allow_hyphen_values = true)]
     pub rho: f64,
     /// Promise that K is nonempty (a method may not answer "empty").
     #[arg(long)]

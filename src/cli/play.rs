@@ -32,10 +32,10 @@ pub struct PlayArgs {
     pub class: ClassSelection,
     /// Most queries the method may ask (default 10^6; a large-scale game lasts its
     /// horizon).
-    #[arg(long)]
+    #[arg(long, allow_negative_numbers = true)]
     pub budget: Option<u64>,
     /// Seed of randomized methods.
-    #[arg(long, default_value_t = 0)]
+    #[arg(long, default_value_t = 0, allow_negative_numbers = true)]
     pub seed: u64,
     /// Write the transcript here (JSON Lines); otherwise it is kept in memory.
     #[arg(short, long)]
@@ -60,13 +60,13 @@ pub struct ExecArgs {
     #[arg(last = true, value_name = "PROGRAM")]
     pub command: Vec<String>,
     /// Seconds an external program may take for each reply before it is killed.
-    #[arg(long, default_value_t = 30.0)]
+    #[arg(long, default_value_t = 30.0, allow_hyphen_values = true)]
     pub answer_timeout: f64,
     /// Longest protocol line an external program may write, in bytes.
-    #[arg(long, default_value_t = 1 << 20)]
+    #[arg(long, default_value_t = 1 << 20, allow_negative_numbers = true)]
     pub max_line_bytes: usize,
     /// Most bytes an external program may write on stdout and stderr together.
-    #[arg(long, default_value_t = 1 << 30)]
+    #[arg(long, default_value_t = 1 << 30, allow_negative_numbers = true)]
     pub max_output_bytes: u64,
 }
 
@@ -93,6 +93,12 @@ impl ExecArgs {
 
 /// Runs `play`.
 pub fn run(args: &PlayArgs) -> Result<u8, Error> {
+    if args.budget == Some(0) {
+        return Err(Error::InvalidSetting {
+            name: "--budget",
+            reason: "0: a game needs a budget of at least 1 query".into(),
+        });
+    }
     let class = args.class.to_class()?;
     let family = family::of(&class);
     let budget = match (&class, args.budget) {

@@ -35,26 +35,27 @@ pub struct ReplayArgs {
     #[arg(
         long,
         conflicts_with = "witnesses",
-        required_unless_present = "witnesses"
+        required_unless_present = "witnesses",
+        allow_negative_numbers = true
     )]
     pub transcript: Option<PathArg>,
     /// A witness file written by `naysayer check --witnesses`.
     #[arg(long)]
     pub witnesses: Option<PathArg>,
     /// Which witness (1-based).
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, allow_negative_numbers = true)]
     pub witness: usize,
     /// Built-in method (see `naysayer list`).
     #[arg(short, long)]
     pub method: String,
     /// Accuracy eps the method aims for (default: the class's).
-    #[arg(long)]
+    #[arg(long, allow_hyphen_values = true)]
     pub eps: Option<f64>,
     /// Most queries the method may ask.
-    #[arg(long, default_value_t = 1_000_000)]
+    #[arg(long, default_value_t = 1_000_000, allow_negative_numbers = true)]
     pub budget: u64,
     /// Seed of randomized methods.
-    #[arg(long, default_value_t = 0)]
+    #[arg(long, default_value_t = 0, allow_negative_numbers = true)]
     pub seed: u64,
     /// Write the transcript here (JSON Lines).
     #[arg(short, long)]

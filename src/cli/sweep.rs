@@ -17,7 +17,7 @@ pub struct SweepArgs {
     #[arg(required = true)]
     pub scenarios: Vec<PathBuf>,
     /// Worker threads (default: the number of cores).
-    #[arg(short, long)]
+    #[arg(short, long, allow_negative_numbers = true)]
     pub jobs: Option<usize>,
     /// Play only shard K of N (K/N, 1-based), for cluster job arrays.
     #[arg(long, value_parser = Shard::parse)]

@@ -1,15 +1,13 @@
 //! The observers the crate ships: the transcript writers and a trace of the undecided
 //! measure.
 
-use std::io::Write;
-
 use crate::adversary::Adversary;
 use crate::error::Error;
 use crate::game::Observer;
 use crate::oracle::Answer;
 use crate::transcript::{FinalRecord, Header, MemoryTranscript, TranscriptWriter};
 
-impl<W: Write> Observer for TranscriptWriter<W> {
+impl Observer for TranscriptWriter {
     fn on_start(&mut self, header: &Header) -> Result<(), Error> {
         self.write_header(header)
     }

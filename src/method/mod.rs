@@ -156,12 +156,18 @@ pub(crate) fn wrong_family(name: &str, families: &[&str]) -> Error {
     }
 }
 
-/// Restriction of the pure integer methods: a lattice class without continuous part.
+/// Restriction of the pure integer methods: a lattice class without continuous part, with
+/// at most [`enumerate::MAX_LATTICE_POINTS`] lattice points (they list them).
 pub(crate) fn pure_integer_only(class: &Class) -> Result<(), String> {
     match class {
         Class::Lattice(c) if c.cont_dim > 0 => {
             Err("it plays pure integer classes (d = 0) only".into())
         }
+        Class::Lattice(c) if c.lattice_count() > enumerate::MAX_LATTICE_POINTS => Err(format!(
+            "the integer box has {} lattice points, more than the {} it lists",
+            c.lattice_count(),
+            enumerate::MAX_LATTICE_POINTS
+        )),
         _ => Ok(()),
     }
 }

@@ -513,6 +513,7 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   d*ceil(log_7(L R/(2 eps))) on every deterministic method; theorem, \
                   docs/theory.md §2.4; every run also certified)",
     scope: Scope::EveryMethod,
+    restriction: None,
     build: |class| match class {
         Class::FirstOrder(c) => Ok(Box::new(SlabFunnel::new(c, FunnelSettings::default())?)),
         _ => Err(wrong_family("slab-funnel", "first-order")),

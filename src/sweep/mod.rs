@@ -14,6 +14,11 @@
 //! identity columns against the grid), and plays only the rest. No row is ever
 //! duplicated or torn.
 //!
+//! One writer per folder: the sweep holds the folder's lock ([`lock::FolderLock`]) while it
+//! writes; a second sweep into the same folder refuses, naming the owner. Small files
+//! (`scenario.toml`, a merged `games.csv`) are written to a temporary file and renamed,
+//! so a crash leaves either the old file or the new one, never a torn one.
+//!
 //! Parallelism: one game is single-threaded and deterministic given its seed; `jobs`
 //! workers in a rayon pool take games in order from a shared, lazily enumerated queue,
 //! so completed games arrive nearly in order and the reorder buffer stays small; memory
@@ -25,6 +30,8 @@ use std::io::{BufRead, BufReader, IsTerminal, Write};
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc;
+
+pub mod lock;
 
 use crate::csv;
 use crate::error::Error;
@@ -129,6 +136,7 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         path: dir.clone(),
         source,
     })?;
+    let _lock = lock::FolderLock::acquire(&dir)?;
     claim_folder(&dir, scenario)?;
     let total = shard_games(scenario, settings.shard).count() as u64;
     let csv_path = dir.join("games.csv");
@@ -265,29 +273,63 @@ fn progress_bar(enabled: bool, total: u64, done: u64) -> Option<indicatif::Progr
 }
 
 /// Writes `scenario.toml` into a fresh folder, or checks that an existing one matches.
+/// An empty `scenario.toml` (left by an older version killed while writing it) counts as
+/// missing; a `games.csv` without a `scenario.toml` is refused (nothing says which
+/// scenario wrote it).
 fn claim_folder(dir: &Path, scenario: &Scenario) -> Result<(), Error> {
     let path = dir.join("scenario.toml");
-    match std::fs::read_to_string(&path) {
-        Ok(existing) if existing == scenario.source_text => Ok(()),
-        Ok(_) => Err(Error::Results {
+    let existing = match std::fs::read_to_string(&path) {
+        Ok(text) if text.is_empty() => None,
+        Ok(text) => Some(text),
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => None,
+        Err(source) => {
+            return Err(Error::Io {
+                action: "cannot read",
+                path,
+                source,
+            })
+        }
+    };
+    match existing {
+        Some(text) if text == scenario.source_text => Ok(()),
+        Some(_) => Err(Error::Results {
             path,
             reason: "these results were written by a different scenario text; remove the \
                      folder (or rename the scenario) to start afresh"
                 .into(),
         }),
-        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
-            std::fs::write(&path, &scenario.source_text).map_err(|source| Error::Io {
-                action: "cannot write",
-                path,
-                source,
-            })
-        }
-        Err(source) => Err(Error::Io {
-            action: "cannot read",
-            path,
-            source,
+        None if dir.join("games.csv").exists() => Err(Error::Results {
+            path: dir.join("games.csv"),
+            reason: "there is a games.csv but no scenario.toml beside it, so nothing says \
+                     which scenario wrote its rows; remove the folder (or put the scenario \
+                     back as scenario.toml) to go on"
+                .into(),
         }),
+        None => write_atomically(&path, scenario.source_text.as_bytes()),
     }
+}
+
+/// Writes `contents` to `path` through a temporary file in the same folder and a rename,
+/// so that `path` holds either its old contents or all of the new ones.
+pub fn write_atomically(path: &Path, contents: &[u8]) -> Result<(), Error> {
+    let name = path
+        .file_name()
+        .map_or("file".into(), |n| n.to_string_lossy().into_owned());
+    let tmp = path.with_file_name(format!(".{name}.{}.tmp", std::process::id()));
+    let write = || -> std::io::Result<()> {
+        let mut file = File::create(&tmp)?;
+        file.write_all(contents)?;
+        file.sync_all()?;
+        std::fs::rename(&tmp, path)
+    };
+    write().map_err(|source| {
+        let _ = std::fs::remove_file(&tmp);
+        Error::Io {
+            action: "cannot write",
+            path: path.to_path_buf(),
+            source,
+        }
+    })
 }
 
 /// How many leading games of the shard the CSV already holds, and how many bytes of it
@@ -490,6 +532,7 @@ pub fn merge(scenario_dir: &Path) -> Result<PathBuf, Error> {
         }
     }
     let scenario = Scenario::from_file(&shard_dirs[0].1.join("scenario.toml"))?;
+    let _lock = lock::FolderLock::acquire(scenario_dir)?;
     claim_folder(scenario_dir, &scenario)?;
     let mut rows: Vec<Vec<String>> = Vec::new();
     for (shard, dir) in &shard_dirs {
@@ -529,20 +572,10 @@ pub fn merge(scenario_dir: &Path) -> Result<PathBuf, Error> {
     }
     rows.sort_by_key(|r| r[0].parse::<u64>().unwrap_or(u64::MAX));
     let out_path = scenario_dir.join("games.csv");
-    let tmp = scenario_dir.join("games.csv.tmp");
     let mut text = format!("{}\n", scenario.grid.columns().join(","));
     for row in &rows {
         text.push_str(&csv::row(row));
     }
-    std::fs::write(&tmp, text).map_err(|source| Error::Io {
-        action: "cannot write",
-        path: tmp.clone(),
-        source,
-    })?;
-    std::fs::rename(&tmp, &out_path).map_err(|source| Error::Io {
-        action: "cannot write",
-        path: out_path.clone(),
-        source,
-    })?;
+    write_atomically(&out_path, text.as_bytes())?;
     Ok(out_path)
 }
