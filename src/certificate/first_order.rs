@@ -10,20 +10,26 @@
 //!   subgradient of W at x_t once W(x_t) = v_t), and W(x_t) <= v_t (every piece and the
 //!   cone at x_t);
 //! - the claim: the witnesses' eps-solution sets, which lie in c_W + (eps / sigma_W)
-//!   B_inf, are pairwise disjoint (||c_A - c_B||_inf > eps/sigma_A + eps/sigma_B), or the
-//!   certificate covers the whole game and the method's output x has W(x) > floor + eps
-//!   for some witness.
+//!   B_inf, are pairwise disjoint (||c_A - c_B||_inf > eps/sigma_A + eps/sigma_B), which
+//!   certifies the lower bound; or the certificate covers the whole game and the
+//!   method's output x has W(x) > floor + eps for some witness, which refutes the output
+//!   and certifies no bound.
 //!
-//! Evaluations first run in `f64` with a rigorous rounding-error bound; only when the
-//! bound cannot decide does the check fall back to exact rational arithmetic, so the
-//! outcome is always the exact one.
+//! Cost per certified answer and witness: a hash look-up of the answer's piece, O(log P)
+//! per coordinate for the pieces with one nonzero slope entry ([`PieceSet`]), the
+//! nonzeros of the dense pieces, and O(d) for the cone. Evaluations run on f64
+//! intervals first and fall back to exact rational arithmetic only when those cannot
+//! decide, so the outcome is always the exact one.
 
-use std::collections::HashMap;
+use std::cmp::Ordering;
 
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
 
-use crate::certificate::{ClassVerifier, Outcome};
+use crate::certificate::filter::Interval;
+use crate::certificate::pieces::PieceSet;
+pub use crate::certificate::pieces::{FilteredPiece, PieceKey};
+use crate::certificate::{ClassVerifier, Outcome, MAX_CHECK_WORK};
 use crate::class::{FirstOrderClass, LipschitzNorm};
 use crate::error::Error;
 use crate::exact::{f64_to_rational, Exact};
@@ -32,86 +38,38 @@ use crate::oracle::{Answer, Output};
 use crate::transcript::QueryRecord;
 use crate::transcript::{Ending, FinalRecord};
 
-/// A piece prepared for filtered evaluation.
-#[derive(Clone, Debug)]
-pub struct FilteredPiece {
-    exact: AffinePiece,
-    terms: Vec<(usize, f64)>,
-    intercept: f64,
-}
-
-impl FilteredPiece {
-    /// Prepares a piece.
-    pub fn new(piece: AffinePiece) -> FilteredPiece {
-        let terms = piece
-            .slope
-            .iter()
-            .enumerate()
-            .filter(|(_, a)| **a != Exact::ZERO)
-            .map(|(i, a)| (i, a.to_f64()))
-            .collect();
-        FilteredPiece {
-            intercept: piece.intercept.to_f64(),
-            terms,
-            exact: piece,
-        }
-    }
-
-    /// The exact piece.
-    pub fn exact(&self) -> &AffinePiece {
-        &self.exact
-    }
-
-    /// The piece's value at `x` in `f64` and a rigorous bound on its error; `None` when
-    /// the sum overflows.
-    pub fn approx_at(&self, x: &[f64]) -> Option<(f64, f64)> {
-        let mut approx = self.intercept;
-        let mut magnitude = self.intercept.abs();
-        for (i, a) in &self.terms {
-            let t = a * x[*i];
-            approx += t;
-            magnitude += t.abs();
-        }
-        let n = self.terms.len() as f64;
-        let err = (n + 4.0) * f64::EPSILON * magnitude + (n + 2.0) * 1e-300;
-        (approx.is_finite() && err.is_finite()).then_some((approx, err))
-    }
-
-    /// Compares the piece's value at `x` with `value`, exactly (`x` as f64 and, lazily,
-    /// as rationals).
-    pub fn cmp_at(&self, x: &[f64], value: &Exact) -> std::cmp::Ordering {
-        let mut approx = self.intercept;
-        let mut magnitude = self.intercept.abs();
-        for (i, a) in &self.terms {
-            let t = a * x[*i];
-            approx += t;
-            magnitude += t.abs();
-        }
-        let v = value.to_f64();
-        let n = self.terms.len() as f64;
-        let err = (n + 4.0) * f64::EPSILON * magnitude + (n + 2.0) * 1e-300;
-        let err_v = f64::EPSILON * v.abs() + 1e-300;
-        if approx.is_finite() && magnitude.is_finite() {
-            if approx + err < v - err_v {
-                return std::cmp::Ordering::Less;
-            }
-            if approx - err > v + err_v {
-                return std::cmp::Ordering::Greater;
-            }
-        }
-        let xr: Vec<BigRational> = x.iter().map(|xi| f64_to_rational(*xi)).collect();
-        self.exact.value_at(&xr).cmp(&value.to_rational())
-    }
-}
-
 /// The exact dual norm of `g` compared with `bound`: true when ||g||_* <= bound.
 pub fn dual_norm_at_most(g: &[Exact], norm: LipschitzNorm, bound: f64) -> bool {
+    let nonzero = || g.iter().filter(|x| **x != Exact::ZERO);
+    let limit = Interval::point(bound);
+    let filtered = match norm {
+        LipschitzNorm::L1 => {
+            let mut all = Some(Ordering::Less);
+            for x in nonzero() {
+                match Interval::of_exact(x).abs().cmp(&limit) {
+                    Some(Ordering::Greater) => return false,
+                    Some(_) => {}
+                    None => all = None,
+                }
+            }
+            all
+        }
+        LipschitzNorm::L2 => nonzero()
+            .fold(Interval::point(0.0), |acc, x| {
+                acc.add(Interval::of_exact(x).square())
+            })
+            .cmp(&limit.square()),
+        LipschitzNorm::Linf => nonzero()
+            .fold(Interval::point(0.0), |acc, x| {
+                acc.add(Interval::of_exact(x).abs())
+            })
+            .cmp(&limit),
+    };
+    if let Some(order) = filtered {
+        return order != Ordering::Greater;
+    }
     let bound = f64_to_rational(bound);
-    let abs: Vec<BigRational> = g
-        .iter()
-        .filter(|x| **x != Exact::ZERO)
-        .map(|x| x.to_rational().abs())
-        .collect();
+    let abs: Vec<BigRational> = nonzero().map(|x| x.to_rational().abs()).collect();
     match norm {
         // Lipschitz in l1: subgradients bounded in l_inf.
         LipschitzNorm::L1 => abs.iter().all(|a| *a <= bound),
@@ -124,14 +82,7 @@ pub fn dual_norm_at_most(g: &[Exact], norm: LipschitzNorm, bound: f64) -> bool {
     }
 }
 
-/// A function witness prepared for checks.
-struct Prepared {
-    witness: FunctionWitness,
-    pieces: Vec<FilteredPiece>,
-    keys: HashMap<String, usize>,
-}
-
-/// A canonical text key of a piece (exact values).
+/// A canonical text key of a piece (exact values); [`PieceKey`] is the fast form.
 pub fn piece_key(piece: &AffinePiece) -> String {
     let mut key = piece.intercept.to_exact_string();
     for a in &piece.slope {
@@ -139,6 +90,35 @@ pub fn piece_key(piece: &AffinePiece) -> String {
         key.push_str(&a.to_exact_string());
     }
     key
+}
+
+/// A function witness prepared for checks.
+struct Prepared {
+    witness: FunctionWitness,
+    pieces: PieceSet,
+    center: Vec<Interval>,
+    floor: Interval,
+    slope: Interval,
+}
+
+impl Prepared {
+    /// floor + sigma ||x - c||_inf compared with `value`, exactly.
+    fn cone_cmp(&self, x: &[f64], value: &Exact, value_iv: Interval) -> Ordering {
+        let dist = x
+            .iter()
+            .zip(&self.center)
+            .fold(Interval::point(0.0), |m, (xi, ci)| {
+                m.max(Interval::point(*xi).sub(*ci).abs())
+            });
+        let cone = self.floor.add(self.slope.mul(dist));
+        if let Some(order) = cone.cmp(&value_iv) {
+            return order;
+        }
+        let xr: Vec<BigRational> = x.iter().map(|v| f64_to_rational(*v)).collect();
+        let w = &self.witness;
+        let cone = w.floor.to_rational() + w.slope.to_rational() * w.center_distance(&xr);
+        cone.cmp(&value.to_rational())
+    }
 }
 
 /// Verifies first-order transcripts.
@@ -149,6 +129,7 @@ pub struct FirstOrderVerifier {
     certified: bool,
     prefix: u64,
     witnesses: Vec<Prepared>,
+    separated: bool,
 }
 
 impl FirstOrderVerifier {
@@ -163,11 +144,11 @@ impl FirstOrderVerifier {
             reason,
         };
         let (prefix, instances) = match &final_record.certificate {
-            None => (0, Vec::new()),
-            Some(w) => (w.prefix, w.instances.clone()),
+            None => (0, &[][..]),
+            Some(w) => (w.prefix, &w.instances[..]),
         };
         let mut witnesses = Vec::new();
-        for (k, instance) in instances.into_iter().enumerate() {
+        for (k, instance) in instances.iter().enumerate() {
             let label = format!("witness #{}", k + 1);
             let Witness::Function(w) = instance else {
                 return Err(error(format!(
@@ -175,30 +156,33 @@ impl FirstOrderVerifier {
                     instance.label()
                 )));
             };
-            check_function(&class, &w).map_err(|r| error(format!("{label}: {r}")))?;
-            let pieces: Vec<FilteredPiece> =
-                w.pieces.iter().cloned().map(FilteredPiece::new).collect();
-            let keys = w
-                .pieces
-                .iter()
-                .enumerate()
-                .map(|(i, p)| (piece_key(p), i))
-                .collect();
+            check_function(&class, w).map_err(|r| error(format!("{label}: {r}")))?;
             witnesses.push(Prepared {
-                witness: w,
-                pieces,
-                keys,
+                pieces: PieceSet::new(w.pieces.clone()),
+                center: w.center.iter().map(Interval::of_exact).collect(),
+                floor: Interval::of_exact(&w.floor),
+                slope: Interval::of_exact(&w.slope),
+                witness: w.clone(),
             });
         }
-        let verifier = FirstOrderVerifier {
+        let dense: u64 = witnesses.iter().map(|w| w.pieces.dense_work()).sum();
+        if dense.saturating_mul(prefix) > MAX_CHECK_WORK {
+            return Err(error(format!(
+                "checking the certificate needs {prefix} answers x {dense} dense piece \
+                 entries, more than the limit of {MAX_CHECK_WORK} evaluations"
+            )));
+        }
+        let mut verifier = FirstOrderVerifier {
             class,
             ending: final_record.ending.clone(),
             queries_used: final_record.queries_used,
             certified: final_record.certificate.is_some(),
             prefix,
             witnesses,
+            separated: false,
         };
-        if verifier.certified && !verifier.separated() {
+        verifier.separated = verifier.pairwise_separated();
+        if verifier.certified && !verifier.separated {
             let full = verifier.prefix == verifier.queries_used;
             let refuted = match (&verifier.ending, full) {
                 (
@@ -221,7 +205,7 @@ impl FirstOrderVerifier {
     }
 
     /// Pairwise ||c_A - c_B||_inf > eps/sigma_A + eps/sigma_B, with at least two witnesses.
-    fn separated(&self) -> bool {
+    fn pairwise_separated(&self) -> bool {
         let n = self.witnesses.len();
         if n < 2 {
             return false;
@@ -231,14 +215,8 @@ impl FirstOrderVerifier {
             for j in (i + 1)..n {
                 let a = &self.witnesses[i].witness;
                 let b = &self.witnesses[j].witness;
-                let distance = a
-                    .center
-                    .iter()
-                    .zip(&b.center)
-                    .map(|(x, y)| (x.to_rational() - y.to_rational()).abs())
-                    .fold(BigRational::zero(), |m, v| if v > m { v } else { m });
                 let needed = &eps / a.slope.to_rational() + &eps / b.slope.to_rational();
-                if distance <= needed {
+                if center_distance(a, b) <= needed {
                     return false;
                 }
             }
@@ -264,19 +242,13 @@ impl FirstOrderVerifier {
             return None;
         }
         let mut best: Option<BigRational> = None;
+        let one = BigRational::from_integer(1.into());
         for i in 0..n {
             for j in (i + 1)..n {
                 let a = &self.witnesses[i].witness;
                 let b = &self.witnesses[j].witness;
-                let distance = a
-                    .center
-                    .iter()
-                    .zip(&b.center)
-                    .map(|(x, y)| (x.to_rational() - y.to_rational()).abs())
-                    .fold(BigRational::zero(), |m, v| if v > m { v } else { m });
-                let one = BigRational::from_integer(1.into());
-                let value =
-                    distance / (&one / a.slope.to_rational() + &one / b.slope.to_rational());
+                let value = center_distance(a, b)
+                    / (&one / a.slope.to_rational() + &one / b.slope.to_rational());
                 best = Some(match best {
                     Some(m) if m < value => m,
                     _ => value,
@@ -288,18 +260,21 @@ impl FirstOrderVerifier {
     }
 }
 
+/// ||c_A - c_B||_inf, exact.
+fn center_distance(a: &FunctionWitness, b: &FunctionWitness) -> BigRational {
+    a.center
+        .iter()
+        .zip(&b.center)
+        .map(|(x, y)| (x.to_rational() - y.to_rational()).abs())
+        .fold(BigRational::zero(), |m, v| if v > m { v } else { m })
+}
+
 /// The largest `f64` at most `value` (saturating at -`f64::MAX`), exactly decided: a
 /// certified lower estimate must not round up.
 pub fn f64_at_most(value: &BigRational) -> f64 {
     let f = crate::exact::nearest_f64(value);
     if f.is_finite() && f64_to_rational(f) > *value {
-        let down = if f == 0.0 {
-            -f64::from_bits(1)
-        } else if f > 0.0 {
-            f64::from_bits(f.to_bits() - 1)
-        } else {
-            f64::from_bits(f.to_bits() + 1)
-        };
+        let down = crate::exact::next_down(f);
         if down.is_finite() {
             return down;
         }
@@ -320,7 +295,14 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
     }
     let r = f64_to_rational(class.half_width);
     for (i, c) in w.center.iter().enumerate() {
-        if c.to_rational().abs() > r {
+        let inside = match Interval::of_exact(c)
+            .abs()
+            .cmp(&Interval::point(class.half_width))
+        {
+            Some(order) => order != Ordering::Greater,
+            None => c.to_rational().abs() <= r,
+        };
+        if !inside {
             return Err(format!("the centre leaves the box in coordinate {i}"));
         }
     }
@@ -333,7 +315,8 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
     }
     let center_f64: Vec<f64> = w.center.iter().map(Exact::to_f64).collect();
     let center_exact = w.center.iter().all(Exact::is_f64);
-    let center_r: Vec<BigRational> = w.center.iter().map(Exact::to_rational).collect();
+    let center_r: OnceCenter<'_> = OnceCenter::new(&w.center);
+    let floor_iv = Interval::of_exact(&w.floor);
     for (k, piece) in w.pieces.iter().enumerate() {
         if piece.slope.len() != d {
             return Err(format!(
@@ -350,10 +333,10 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
             ));
         }
         let above = if center_exact {
-            FilteredPiece::new(piece.clone()).cmp_at(&center_f64, &w.floor)
-                == std::cmp::Ordering::Greater
+            FilteredPiece::new(piece.clone()).cmp_with(&center_f64, &w.floor, floor_iv)
+                == Ordering::Greater
         } else {
-            piece.value_at(&center_r) > w.floor.to_rational()
+            piece.value_at(center_r.get()) > w.floor.to_rational()
         };
         if above {
             return Err(format!(
@@ -363,6 +346,26 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
         }
     }
     Ok(())
+}
+
+/// The centre in rationals, converted on first use.
+struct OnceCenter<'a> {
+    center: &'a [Exact],
+    cell: std::cell::OnceCell<Vec<BigRational>>,
+}
+
+impl<'a> OnceCenter<'a> {
+    fn new(center: &'a [Exact]) -> OnceCenter<'a> {
+        OnceCenter {
+            center,
+            cell: std::cell::OnceCell::new(),
+        }
+    }
+
+    fn get(&self) -> &[BigRational] {
+        self.cell
+            .get_or_init(|| self.center.iter().map(Exact::to_rational).collect())
+    }
 }
 
 impl ClassVerifier for FirstOrderVerifier {
@@ -388,34 +391,31 @@ impl ClassVerifier for FirstOrderVerifier {
                 record.index, self.class.lipschitz
             )));
         }
-        if !in_prefix {
+        if !in_prefix || self.witnesses.is_empty() {
             return Ok(());
         }
         let own = AffinePiece::through(&record.point, &answer.value, &answer.subgradient);
-        let key = piece_key(&own);
+        let key = PieceKey::of(&own);
         let x = &record.point;
+        let value = &answer.value;
+        let value_iv = Interval::of_exact(value);
         for (k, prepared) in self.witnesses.iter().enumerate() {
             let label = format!("answer {}: witness #{}", record.index, k + 1);
-            if !prepared.keys.contains_key(&key) {
+            if !prepared.pieces.contains(&key) {
                 return Err(error(format!(
                     "{label} lacks the answer's affine piece, so the answered subgradient is \
                      not shown to be one of the witness"
                 )));
             }
-            for (p, piece) in prepared.pieces.iter().enumerate() {
-                if piece.cmp_at(x, &answer.value) == std::cmp::Ordering::Greater {
-                    return Err(error(format!(
-                        "{label}: its piece {} exceeds the answered value at the query, so the \
-                         witness does not reproduce the answer (or the transcript is not \
-                         consistent with any convex function)",
-                        p + 1
-                    )));
-                }
+            if let Some(p) = prepared.pieces.exceeding(x, value, value_iv) {
+                return Err(error(format!(
+                    "{label}: its piece {} exceeds the answered value at the query, so the \
+                     witness does not reproduce the answer (or the transcript is not \
+                     consistent with any convex function)",
+                    p + 1
+                )));
             }
-            let w = &prepared.witness;
-            let xr: Vec<BigRational> = x.iter().map(|v| f64_to_rational(*v)).collect();
-            let cone = w.floor.to_rational() + w.slope.to_rational() * w.center_distance(&xr);
-            if cone > answer.value.to_rational() {
+            if prepared.cone_cmp(x, value, value_iv) == Ordering::Greater {
                 return Err(error(format!(
                     "{label}: its cone exceeds the answered value at the query"
                 )));
@@ -453,5 +453,9 @@ impl ClassVerifier for FirstOrderVerifier {
         } else {
             None
         }
+    }
+
+    fn bound_certified(&self) -> bool {
+        self.certified && self.separated
     }
 }

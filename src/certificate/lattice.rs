@@ -12,14 +12,15 @@
 //!   < b`), and an `inside` answer's query is a generating point or lies in the fibre
 //!   ball;
 //! - every cut excludes its query (`a.x >= b`);
-//! - the claim: the witnesses' correct outputs are pairwise disjoint, or the method's
-//!   output is wrong for one of them at full length. A point output is correct for a
+//! - the claim: the witnesses' correct outputs are pairwise disjoint (this certifies the
+//!   lower bound), or the method's output is wrong for one of them at full length (this
+//!   refutes the output and certifies no bound). A point output is correct for a
 //!   witness only when it is mixed-integer (first n coordinates exactly integral) and
 //!   lies in the witness's fibre ball.
 
 use num_rational::BigRational;
 
-use crate::certificate::{ClassVerifier, Outcome};
+use crate::certificate::{ClassVerifier, Outcome, MAX_CHECK_WORK};
 use crate::class::lattice::{is_mixed_integer, LatticeClass};
 use crate::error::Error;
 use crate::exact::f64_to_rational;
@@ -42,6 +43,7 @@ pub struct LatticeVerifier {
     labels: Vec<&'static str>,
     /// `None` is the empty set.
     hulls: Vec<Option<ExactHull>>,
+    disjoint: bool,
 }
 
 impl LatticeVerifier {
@@ -59,6 +61,21 @@ impl LatticeVerifier {
             None => (0, Vec::new()),
             Some(w) => (w.prefix, w.instances.clone()),
         };
+        let points: u64 = witnesses
+            .iter()
+            .map(|w| match w {
+                Witness::LatticeHull(h) => h.points.len() as u64,
+                _ => 0,
+            })
+            .sum();
+        let work = points.saturating_mul(class.query_dim() as u64);
+        if work.saturating_mul(prefix) > MAX_CHECK_WORK {
+            return Err(final_error(format!(
+                "checking the certificate needs {prefix} answers x {points} generating points \
+                 x {} coordinates, more than the limit of {MAX_CHECK_WORK} evaluations",
+                class.query_dim()
+            )));
+        }
         let lattice = class.lattice_points(CROSS_CHECK_LIMIT);
         let mut hulls = Vec::with_capacity(witnesses.len());
         let mut labels = Vec::with_capacity(witnesses.len());
@@ -87,7 +104,7 @@ impl LatticeVerifier {
                 }
             }
         }
-        let verifier = LatticeVerifier {
+        let mut verifier = LatticeVerifier {
             class,
             ending: final_record.ending.clone(),
             queries_used: final_record.queries_used,
@@ -95,7 +112,9 @@ impl LatticeVerifier {
             prefix,
             labels,
             hulls,
+            disjoint: false,
         };
+        verifier.disjoint = verifier.disjoint_solution_sets();
         if verifier.certified {
             verifier.check_claim(final_line)?;
         }
@@ -123,7 +142,7 @@ impl LatticeVerifier {
     }
 
     fn check_claim(&self, final_line: u64) -> Result<(), Error> {
-        if self.disjoint_solution_sets() {
+        if self.disjoint {
             return Ok(());
         }
         let full = self.prefix == self.queries_used;
@@ -168,7 +187,6 @@ impl LatticeVerifier {
     ) -> Result<(), Error> {
         let error = |reason: String| Error::Transcript { line, reason };
         let dim = self.class.query_dim();
-        let x: Vec<BigRational> = query.point.iter().map(|v| f64_to_rational(*v)).collect();
         if let Answer::FirstOrder(_) = &query.answer {
             return Err(error(format!(
                 "answer {}: a first-order answer in a separation-oracle transcript",
@@ -182,16 +200,17 @@ impl LatticeVerifier {
                     query.index
                 )));
             }
-            if cut.normal.dot_exact(&x) < cut.offset.to_rational() {
+            if !excludes(cut, &query.point) {
                 return Err(error(format!(
                     "answer {}: the query lies on the kept side of its own cut (a.x < b)",
                     query.index
                 )));
             }
         }
-        if !in_prefix {
+        if !in_prefix || self.hulls.is_empty() {
             return Ok(());
         }
+        let x: Vec<BigRational> = query.point.iter().map(|v| f64_to_rational(*v)).collect();
         for (k, hull) in self.hulls.iter().enumerate() {
             let consistent = match (&query.answer, hull) {
                 (Answer::Inside, None) => false,
@@ -239,6 +258,26 @@ impl LatticeVerifier {
     }
 }
 
+/// a.x >= b, exactly (f64 intervals first, rationals when they cannot decide).
+fn excludes(cut: &crate::oracle::Cut, x: &[f64]) -> bool {
+    use crate::certificate::filter::{dot, Interval};
+    let ax = dot((0..x.len())
+        .map(|i| (cut.normal.get(i), x[i]))
+        .filter(|(a, _)| *a != 0.0)
+        .map(|(a, xi)| (Interval::point(a), Interval::point(xi))));
+    match ax.cmp(&Interval::of_exact(&cut.offset)) {
+        Some(order) => order != std::cmp::Ordering::Less,
+        None => {
+            let exact: BigRational = (0..x.len())
+                .map(|i| (cut.normal.get(i), x[i]))
+                .filter(|(a, _)| *a != 0.0)
+                .map(|(a, xi)| f64_to_rational(a) * f64_to_rational(xi))
+                .sum();
+            exact >= cut.offset.to_rational()
+        }
+    }
+}
+
 impl ClassVerifier for LatticeVerifier {
     fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error> {
         self.query_checks(line, record, in_prefix)
@@ -246,5 +285,9 @@ impl ClassVerifier for LatticeVerifier {
 
     fn finish(&mut self, _final_line: u64) -> Result<Outcome, Error> {
         Ok(self.judge())
+    }
+
+    fn bound_certified(&self) -> bool {
+        self.certified && self.disjoint
     }
 }

@@ -8,22 +8,49 @@
 //! ball B(c, r) lies strictly inside the cut `{a.y < b}` iff `s = b - a.c > 0` and
 //! `r^2 ||a||^2 < s^2`.
 //!
-//! What a valid certificate with prefix T* proves: every witness agrees with the first
-//! T* answers, every witness belongs to the class, and either the witnesses' solution
-//! sets are pairwise disjoint (so no output is correct for all of them: no method that
-//! saw only these answers could stop), or T* covers the whole game and the method's
-//! output is wrong for one witness. The certified lower bound is then T* + 1 queries.
+//! What a valid certificate with prefix T* proves (docs/theory.md §7): every witness
+//! agrees with the first T* answers and belongs to the class, and
+//! - when there are at least two witnesses and their solution sets (their correct
+//!   outputs) are pairwise disjoint, no output is correct for all of them, so no method
+//!   that saw only these T* answers could have stopped: the **certified lower bound** is
+//!   T* + 1 queries ([`Verdict::certified_lower_bound`]);
+//! - when T* covers the whole game and the method's output is wrong for one witness, the
+//!   output is **refuted** by that witness ([`Outcome::OutputRefuted`],
+//!   [`Outcome::EmptyRefuted`]). A refutation is an outcome only: it shows that this one
+//!   output was wrong, not that no method could have stopped, so it never gives or
+//!   raises a lower bound. A certificate whose witnesses are not pairwise disjoint is
+//!   valid only when it refutes the output, and then certifies no lower bound.
+//!
+//! Limits (with [`crate::transcript::limits`] and [`crate::exact`], they keep the work
+//! roughly linear in the size of the input; `tools/check_certificate.py` applies the same
+//! ones): at most [`MAX_WITNESSES`] witnesses per certificate, and at most
+//! [`MAX_CHECK_WORK`] term evaluations for the witness parts that cannot be checked in
+//! time independent of their size (dense function pieces, lattice generating points).
 
 pub mod feasibility;
+pub mod filter;
 pub mod first_order;
 pub mod lattice;
+pub mod pieces;
 pub mod universal;
+
+/// Most witnesses one certificate may hold (the adversaries write two; pairwise
+/// disjointness is checked over all pairs).
+pub const MAX_WITNESSES: usize = 16;
+
+/// Most term evaluations the checks of a certified prefix may need for dense function
+/// pieces and lattice generating points: T* times the sum, over witnesses, of the
+/// nonzero slope entries of the function pieces with two or more of them, and of the
+/// number of generating points times the query dimension. Beyond it the certificate is
+/// refused, with a message saying so.
+pub const MAX_CHECK_WORK: u64 = 50_000_000;
 
 use serde::{Deserialize, Serialize};
 
 use crate::class::Class;
 use crate::error::Error;
 use crate::oracle::Output;
+use crate::transcript::reader::last_line;
 use crate::transcript::{parse_line, QueryRecord, Record, TranscriptReader, FORMAT_VERSION};
 use crate::transcript::{Ending, FinalRecord, Header};
 
@@ -65,8 +92,13 @@ pub struct Verdict {
     pub censored: bool,
     /// How the game ended, as recorded.
     pub ending: Ending,
-    /// The longest prefix T* with a verified certificate; `None` when there is none.
+    /// The prefix T* of a verified certificate whose witnesses have pairwise disjoint
+    /// solution sets, so that no method could have stopped after T* answers; `None`
+    /// when there is none (no certificate, or one that only refutes the output).
     pub certified_prefix: Option<u64>,
+    /// The prefix the certificate's witnesses were verified to agree with, whether or
+    /// not they certify a lower bound (`None` without a certificate).
+    pub witness_prefix: Option<u64>,
     /// How the game ended, judged by the verified witnesses.
     pub outcome: Outcome,
     /// First-order classes: the certified uncertainty eps_cert of docs/theory.md §2.2, a lower
@@ -75,7 +107,8 @@ pub struct Verdict {
 }
 
 impl Verdict {
-    /// Certified lower bound = T* + 1 (docs/theory.md §0).
+    /// Certified lower bound = T* + 1 (docs/theory.md §0), only from witnesses with
+    /// pairwise disjoint solution sets; never from a refuted output.
     pub fn certified_lower_bound(&self) -> Option<u64> {
         self.certified_prefix.map(|t| t + 1)
     }
@@ -84,46 +117,23 @@ impl Verdict {
 /// Verifies the transcript file at `path` (two streaming passes: the first finds the
 /// final record, the second checks every record against its witnesses).
 pub fn verify_file(path: &std::path::Path) -> Result<Verdict, Error> {
-    // Pass 1: the last line, to learn the witnesses before checking the answers.
-    let mut last: Option<(u64, String)> = None;
-    {
-        use std::io::BufRead;
-        let file = std::fs::File::open(path).map_err(|source| Error::Io {
-            action: "cannot read transcript",
-            path: path.to_path_buf(),
-            source,
-        })?;
-        let mut reader = std::io::BufReader::with_capacity(1 << 16, file);
-        let mut buffer = Vec::new();
-        let mut line = 0u64;
-        loop {
-            buffer.clear();
-            let n = reader
-                .read_until(b'\n', &mut buffer)
-                .map_err(|source| Error::Io {
-                    action: "cannot read transcript",
-                    path: path.to_path_buf(),
-                    source,
-                })?;
-            if n == 0 {
-                break;
-            }
-            line += 1;
-            let text = String::from_utf8_lossy(&buffer).trim_end().to_string();
-            last = Some((line, text));
-        }
-    }
-    let (last_line, last_text) = last.ok_or(Error::Transcript {
+    // Pass 1: the last line, to learn the witnesses before checking the answers (a
+    // streaming pass that keeps no line in memory and refuses an overlong line early).
+    let (last_line, last_bytes) = last_line(path)?.ok_or(Error::Transcript {
         line: 1,
         reason: "the file is empty".into(),
     })?;
-    let final_record = match parse_line(&last_text, last_line) {
+    let last_text = std::str::from_utf8(&last_bytes).map_err(|_| Error::Transcript {
+        line: last_line,
+        reason: "not valid UTF-8".into(),
+    })?;
+    let final_record = match parse_line(last_text, last_line) {
         Ok(Record::Final(f)) => Some(f),
         Ok(_) => None,
         Err(e) => {
             // A complete JSON line that is not a valid record (for example an unknown
             // certificate schema) is reported as it is, not as a truncation.
-            let complete = serde_json::from_str::<serde_json::Value>(&last_text).is_ok();
+            let complete = serde_json::from_str::<serde_json::Value>(last_text).is_ok();
             if last_line > 1 && !complete {
                 return Err(Error::Transcript {
                     line: last_line,
@@ -204,6 +214,10 @@ pub trait ClassVerifier {
     fn certified_uncertainty(&self) -> Option<f64> {
         None
     }
+    /// True when the certificate holds at least two witnesses whose solution sets are
+    /// pairwise disjoint, so that it certifies the lower bound T* + 1 (a certificate that
+    /// only refutes the method's output does not).
+    fn bound_certified(&self) -> bool;
 }
 
 /// Builds the verifier for the header's class.
@@ -300,6 +314,15 @@ impl Checker {
                 )));
             }
         }
+        if let Some(certificate) = &final_record.certificate {
+            if certificate.instances.len() > MAX_WITNESSES {
+                return Err(final_error(format!(
+                    "the certificate holds {} witnesses, more than the limit of \
+                     {MAX_WITNESSES}",
+                    certificate.instances.len()
+                )));
+            }
+        }
         let prefix = final_record.certificate.as_ref().map_or(0, |w| w.prefix);
         if prefix > final_record.queries_used {
             return Err(final_error(format!(
@@ -384,7 +407,13 @@ impl Checker {
         Ok(Verdict {
             censored: matches!(ending, Ending::BudgetExhausted),
             queries_used: self.final_record.queries_used,
-            certified_prefix: self.final_record.certificate.as_ref().map(|w| w.prefix),
+            certified_prefix: self
+                .final_record
+                .certificate
+                .as_ref()
+                .map(|w| w.prefix)
+                .filter(|_| self.inner.bound_certified()),
+            witness_prefix: self.final_record.certificate.as_ref().map(|w| w.prefix),
             ending: ending.clone(),
             outcome,
             certified_uncertainty: self.inner.certified_uncertainty(),

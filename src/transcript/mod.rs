@@ -41,6 +41,7 @@
 //! and at the end; [`Flush::EveryRecord`] flushes after every record (for external
 //! methods, which may not be replayable).
 
+pub mod limits;
 pub mod reader;
 pub mod records;
 pub mod writer;

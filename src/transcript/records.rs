@@ -64,8 +64,18 @@ pub struct FinalRecord {
     pub queries_used: u64,
     /// How the game ended.
     pub ending: Ending,
-    /// Witnesses and the prefix they certify; `None` when no prefix is certifiable.
+    /// Witnesses and the prefix they certify; `None` when no prefix is certifiable. The
+    /// key is required on disk (`null` when there is no certificate).
+    #[serde(deserialize_with = "required_certificate")]
     pub certificate: Option<Witnesses>,
+}
+
+/// Reads the `certificate` key, which must be present (`null` or a certificate): a
+/// final record without it is refused, as `tools/check_certificate.py` refuses it.
+fn required_certificate<'de, D: serde::Deserializer<'de>>(
+    deserializer: D,
+) -> Result<Option<Witnesses>, D::Error> {
+    Option::<Witnesses>::deserialize(deserializer)
 }
 
 /// One query record.
