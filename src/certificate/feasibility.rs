@@ -186,47 +186,28 @@ pub struct FeasibilityVerifier {
 }
 
 impl FeasibilityVerifier {
+    /// A verifier for `class`, before the final record is known.
+    pub fn for_class(class: FeasibilityClass) -> FeasibilityVerifier {
+        FeasibilityVerifier {
+            class,
+            ending: Ending::BudgetExhausted,
+            queries_used: 0,
+            certified: false,
+            prefix: 0,
+            labels: Vec::new(),
+            balls: Vec::new(),
+            disjoint: false,
+        }
+    }
+
     /// Checks the witnesses' membership in the class and the certificate's claim.
     pub fn new(
         class: FeasibilityClass,
         final_record: &FinalRecord,
         final_line: u64,
     ) -> Result<FeasibilityVerifier, Error> {
-        let final_error = |reason: String| Error::Transcript {
-            line: final_line,
-            reason,
-        };
-        let (prefix, witnesses) = match &final_record.certificate {
-            None => (0, &[][..]),
-            Some(w) => (w.prefix, &w.instances[..]),
-        };
-        let mut balls = Vec::with_capacity(witnesses.len());
-        for (k, witness) in witnesses.iter().enumerate() {
-            let label = format!("witness #{} ({})", k + 1, witness.label());
-            balls.push(
-                check_membership(&class, witness)
-                    .map_err(|r| final_error(format!("{label}: {r}")))?,
-            );
-        }
-        let mut verifier = FeasibilityVerifier {
-            class,
-            ending: final_record.ending.clone(),
-            queries_used: final_record.queries_used,
-            certified: final_record.certificate.is_some(),
-            prefix,
-            labels: witnesses.iter().map(Witness::label).collect(),
-            balls,
-            disjoint: false,
-        };
-        verifier.disjoint = verifier.disjoint_solution_sets();
-        if verifier.certified && !verifier.disjoint && !verifier.refutes_at_full_length() {
-            return Err(final_error(
-                "the witnesses' solution sets are not pairwise disjoint, so they do not show \
-                 that the method could not have stopped, and they do not refute the method's \
-                 output on the whole game either"
-                    .into(),
-            ));
-        }
+        let mut verifier = FeasibilityVerifier::for_class(class);
+        verifier.attach(final_record, final_line)?;
         Ok(verifier)
     }
 
@@ -275,47 +256,51 @@ impl FeasibilityVerifier {
         }
     }
 
-    fn query_checks(
-        &mut self,
+    /// The checks of one answer that need no witness; returns its prepared cut.
+    fn answer_checks<'a>(
+        &self,
         line: u64,
-        query: &QueryRecord,
-        in_prefix: bool,
-    ) -> Result<(), Error> {
+        index: u64,
+        point: &[f64],
+        answer: &'a Answer,
+    ) -> Result<Option<PreparedCut<'a>>, Error> {
         let error = |reason: String| Error::Transcript { line, reason };
-        let d = self.class.dim;
-        let cut = match &query.answer {
-            Answer::FirstOrder(_) => {
-                return Err(error(format!(
-                    "answer {}: a first-order answer in a separation-oracle transcript",
-                    query.index
-                )))
-            }
-            Answer::Inside => None,
+        match answer {
+            Answer::FirstOrder(_) => Err(error(format!(
+                "answer {index}: a first-order answer in a separation-oracle transcript"
+            ))),
+            Answer::Inside => Ok(None),
             Answer::Cut(cut) => {
-                if !cut.normal.is_well_formed(d) {
+                if !cut.normal.is_well_formed(self.class.dim) {
                     return Err(error(format!(
-                        "answer {}: the cut normal is malformed (wrong length, zero, or bad axis)",
-                        query.index
+                        "answer {index}: the cut normal is malformed (wrong length, zero, or bad \
+                         axis)"
                     )));
                 }
                 let prepared = PreparedCut::new(cut);
-                if !prepared.excludes(&query.point) {
+                if !prepared.excludes(point) {
                     return Err(error(format!(
-                        "answer {}: the query lies on the kept side of its own cut \
-                         (a.x < b), so the cut does not separate it",
-                        query.index
+                        "answer {index}: the query lies on the kept side of its own cut \
+                         (a.x < b), so the cut does not separate it"
                     )));
                 }
-                Some(prepared)
+                Ok(Some(prepared))
             }
-        };
-        if !in_prefix {
-            return Ok(());
         }
+    }
+
+    /// Every witness agrees with the answer (`cut` is `None` for `inside`).
+    fn agree_with(
+        &self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        cut: Option<&PreparedCut<'_>>,
+    ) -> Result<(), Error> {
         for (k, ball) in self.balls.iter().enumerate() {
-            let consistent = match (&cut, ball) {
+            let consistent = match (cut, ball) {
                 (None, None) => false,
-                (None, Some(ball)) => ball.contains(&query.point),
+                (None, Some(ball)) => ball.contains(point),
                 (Some(_), None) => true,
                 (Some(cut), Some(ball)) => ball.strictly_inside(cut),
             };
@@ -324,12 +309,14 @@ impl FeasibilityVerifier {
                     None => "the answer `inside` but the query is not in it",
                     Some(_) => "the cut but does not lie strictly inside it",
                 };
-                return Err(error(format!(
-                    "answer {}: witness #{} ({}) contradicts {what}",
-                    query.index,
-                    k + 1,
-                    self.labels[k]
-                )));
+                return Err(Error::Transcript {
+                    line,
+                    reason: format!(
+                        "answer {index}: witness #{} ({}) contradicts {what}",
+                        k + 1,
+                        self.labels[k]
+                    ),
+                });
             }
         }
         Ok(())
@@ -384,8 +371,75 @@ fn balls_apart(a: &Ball, b: &Ball) -> bool {
 }
 
 impl ClassVerifier for FeasibilityVerifier {
+    fn attach(&mut self, final_record: &FinalRecord, final_line: u64) -> Result<(), Error> {
+        let final_error = |reason: String| Error::Transcript {
+            line: final_line,
+            reason,
+        };
+        let (prefix, witnesses) = match &final_record.certificate {
+            None => (0, &[][..]),
+            Some(w) => (w.prefix, &w.instances[..]),
+        };
+        let mut balls = Vec::with_capacity(witnesses.len());
+        for (k, witness) in witnesses.iter().enumerate() {
+            let label = format!("witness #{} ({})", k + 1, witness.label());
+            balls.push(
+                check_membership(&self.class, witness)
+                    .map_err(|r| final_error(format!("{label}: {r}")))?,
+            );
+        }
+        self.ending = final_record.ending.clone();
+        self.queries_used = final_record.queries_used;
+        self.certified = final_record.certificate.is_some();
+        self.prefix = prefix;
+        self.labels = witnesses.iter().map(Witness::label).collect();
+        self.balls = balls;
+        self.disjoint = self.disjoint_solution_sets();
+        if self.certified && !self.disjoint && !self.refutes_at_full_length() {
+            return Err(final_error(
+                "the witnesses' solution sets are not pairwise disjoint, so they do not show \
+                 that the method could not have stopped, and they do not refute the method's \
+                 output on the whole game either"
+                    .into(),
+            ));
+        }
+        Ok(())
+    }
+
+    fn answer(
+        &mut self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        self.answer_checks(line, index, point, answer).map(|_| ())
+    }
+
+    fn agree(
+        &mut self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        let cut = match answer {
+            Answer::Cut(cut) => Some(PreparedCut::new(cut)),
+            _ => None,
+        };
+        self.agree_with(line, index, point, cut.as_ref())
+    }
+
+    fn agree_reads_point(&self, answer: &Answer) -> bool {
+        matches!(answer, Answer::Inside)
+    }
+
     fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error> {
-        self.query_checks(line, record, in_prefix)
+        let cut = self.answer_checks(line, record.index, &record.point, &record.answer)?;
+        if in_prefix {
+            self.agree_with(line, record.index, &record.point, cut.as_ref())?;
+        }
+        Ok(())
     }
 
     fn finish(&mut self, _final_line: u64) -> Result<Outcome, Error> {

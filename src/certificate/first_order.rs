@@ -35,7 +35,6 @@ use crate::error::Error;
 use crate::exact::{f64_to_rational, Exact};
 use crate::instance::{AffinePiece, FunctionWitness, Witness};
 use crate::oracle::{Answer, Output};
-use crate::transcript::QueryRecord;
 use crate::transcript::{Ending, FinalRecord};
 
 /// The exact dual norm of `g` compared with `bound`: true when ||g||_* <= bound.
@@ -133,74 +132,27 @@ pub struct FirstOrderVerifier {
 }
 
 impl FirstOrderVerifier {
+    /// A verifier for `class`, before the final record is known.
+    pub fn for_class(class: FirstOrderClass) -> FirstOrderVerifier {
+        FirstOrderVerifier {
+            class,
+            ending: Ending::BudgetExhausted,
+            queries_used: 0,
+            certified: false,
+            prefix: 0,
+            witnesses: Vec::new(),
+            separated: false,
+        }
+    }
+
     /// Checks the witnesses' membership in the class and the certificate's claim.
     pub fn new(
         class: FirstOrderClass,
         final_record: &FinalRecord,
         final_line: u64,
     ) -> Result<FirstOrderVerifier, Error> {
-        let error = |reason: String| Error::Transcript {
-            line: final_line,
-            reason,
-        };
-        let (prefix, instances) = match &final_record.certificate {
-            None => (0, &[][..]),
-            Some(w) => (w.prefix, &w.instances[..]),
-        };
-        let mut witnesses = Vec::new();
-        for (k, instance) in instances.iter().enumerate() {
-            let label = format!("witness #{}", k + 1);
-            let Witness::Function(w) = instance else {
-                return Err(error(format!(
-                    "{label} is a {}, not a function",
-                    instance.label()
-                )));
-            };
-            check_function(&class, w).map_err(|r| error(format!("{label}: {r}")))?;
-            witnesses.push(Prepared {
-                pieces: PieceSet::new(w.pieces.clone()),
-                center: w.center.iter().map(Interval::of_exact).collect(),
-                floor: Interval::of_exact(&w.floor),
-                slope: Interval::of_exact(&w.slope),
-                witness: w.clone(),
-            });
-        }
-        let dense: u64 = witnesses.iter().map(|w| w.pieces.dense_work()).sum();
-        if dense.saturating_mul(prefix) > MAX_CHECK_WORK {
-            return Err(error(format!(
-                "checking the certificate needs {prefix} answers x {dense} dense piece \
-                 entries, more than the limit of {MAX_CHECK_WORK} evaluations"
-            )));
-        }
-        let mut verifier = FirstOrderVerifier {
-            class,
-            ending: final_record.ending.clone(),
-            queries_used: final_record.queries_used,
-            certified: final_record.certificate.is_some(),
-            prefix,
-            witnesses,
-            separated: false,
-        };
-        verifier.separated = verifier.pairwise_separated();
-        if verifier.certified && !verifier.separated {
-            let full = verifier.prefix == verifier.queries_used;
-            let refuted = match (&verifier.ending, full) {
-                (
-                    Ending::Output {
-                        output: Output::Point { point },
-                    },
-                    true,
-                ) => verifier.refuting_witness(point).is_some(),
-                _ => false,
-            };
-            if !refuted {
-                return Err(error(
-                    "the witnesses' eps-solution sets are not pairwise disjoint (centres too \
-                     close for their cone slopes) and no witness refutes the output"
-                        .into(),
-                ));
-            }
-        }
+        let mut verifier = FirstOrderVerifier::for_class(class);
+        verifier.attach(final_record, final_line)?;
         Ok(verifier)
     }
 
@@ -369,38 +321,111 @@ impl<'a> OnceCenter<'a> {
 }
 
 impl ClassVerifier for FirstOrderVerifier {
-    fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error> {
-        let error = |reason: String| Error::Transcript { line, reason };
-        let Answer::FirstOrder(answer) = &record.answer else {
+    fn attach(&mut self, final_record: &FinalRecord, final_line: u64) -> Result<(), Error> {
+        let error = |reason: String| Error::Transcript {
+            line: final_line,
+            reason,
+        };
+        let (prefix, instances) = match &final_record.certificate {
+            None => (0, &[][..]),
+            Some(w) => (w.prefix, &w.instances[..]),
+        };
+        let mut witnesses = Vec::new();
+        for (k, instance) in instances.iter().enumerate() {
+            let label = format!("witness #{}", k + 1);
+            let Witness::Function(w) = instance else {
+                return Err(error(format!(
+                    "{label} is a {}, not a function",
+                    instance.label()
+                )));
+            };
+            check_function(&self.class, w).map_err(|r| error(format!("{label}: {r}")))?;
+            witnesses.push(Prepared {
+                pieces: PieceSet::new(w.pieces.clone()),
+                center: w.center.iter().map(Interval::of_exact).collect(),
+                floor: Interval::of_exact(&w.floor),
+                slope: Interval::of_exact(&w.slope),
+                witness: w.clone(),
+            });
+        }
+        let dense: u64 = witnesses.iter().map(|w| w.pieces.dense_work()).sum();
+        if dense.saturating_mul(prefix) > MAX_CHECK_WORK {
             return Err(error(format!(
-                "answer {}: a separation answer in a first-order transcript",
-                record.index
+                "checking the certificate needs {prefix} answers x {dense} dense piece \
+                 entries, more than the limit of {MAX_CHECK_WORK} evaluations"
+            )));
+        }
+        self.ending = final_record.ending.clone();
+        self.queries_used = final_record.queries_used;
+        self.certified = final_record.certificate.is_some();
+        self.prefix = prefix;
+        self.witnesses = witnesses;
+        self.separated = self.pairwise_separated();
+        if self.certified && !self.separated {
+            let full = self.prefix == self.queries_used;
+            let refuted = match (&self.ending, full) {
+                (
+                    Ending::Output {
+                        output: Output::Point { point },
+                    },
+                    true,
+                ) => self.refuting_witness(point).is_some(),
+                _ => false,
+            };
+            if !refuted {
+                return Err(error(
+                    "the witnesses' eps-solution sets are not pairwise disjoint (centres too \
+                     close for their cone slopes) and no witness refutes the output"
+                        .into(),
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    fn answer(
+        &mut self,
+        line: u64,
+        index: u64,
+        _point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        let error = |reason: String| Error::Transcript { line, reason };
+        let Answer::FirstOrder(answer) = answer else {
+            return Err(error(format!(
+                "answer {index}: a separation answer in a first-order transcript"
             )));
         };
         if answer.subgradient.len() != self.class.dim {
             return Err(error(format!(
-                "answer {}: the subgradient has {} entries, expected {}",
-                record.index,
+                "answer {index}: the subgradient has {} entries, expected {}",
                 answer.subgradient.len(),
                 self.class.dim
             )));
         }
         if !dual_norm_at_most(&answer.subgradient, self.class.norm, self.class.lipschitz) {
             return Err(error(format!(
-                "answer {}: the subgradient is longer than L = {} in the dual norm",
-                record.index, self.class.lipschitz
+                "answer {index}: the subgradient is longer than L = {} in the dual norm",
+                self.class.lipschitz
             )));
         }
-        if !in_prefix || self.witnesses.is_empty() {
+        Ok(())
+    }
+
+    fn agree(&mut self, line: u64, index: u64, x: &[f64], answer: &Answer) -> Result<(), Error> {
+        let error = |reason: String| Error::Transcript { line, reason };
+        let Answer::FirstOrder(answer) = answer else {
+            return Ok(());
+        };
+        if self.witnesses.is_empty() {
             return Ok(());
         }
-        let own = AffinePiece::through(&record.point, &answer.value, &answer.subgradient);
+        let own = AffinePiece::through(x, &answer.value, &answer.subgradient);
         let key = PieceKey::of(&own);
-        let x = &record.point;
         let value = &answer.value;
         let value_iv = Interval::of_exact(value);
         for (k, prepared) in self.witnesses.iter().enumerate() {
-            let label = format!("answer {}: witness #{}", record.index, k + 1);
+            let label = format!("answer {index}: witness #{}", k + 1);
             if !prepared.pieces.contains(&key) {
                 return Err(error(format!(
                     "{label} lacks the answer's affine piece, so the answered subgradient is \

@@ -27,12 +27,16 @@
 //! [`MAX_CHECK_WORK`] term evaluations for the witness parts that cannot be checked in
 //! time independent of their size (dense function pieces, lattice generating points).
 
+mod driver;
 pub mod feasibility;
 pub mod filter;
 pub mod first_order;
 pub mod lattice;
 pub mod pieces;
+pub mod stream;
 pub mod universal;
+
+pub use stream::StreamingVerifier;
 
 /// Most witnesses one certificate may hold (the adversaries write two; pairwise
 /// disjointness is checked over all pairs).
@@ -47,11 +51,11 @@ pub const MAX_CHECK_WORK: u64 = 50_000_000;
 
 use serde::{Deserialize, Serialize};
 
-use crate::class::Class;
+use crate::certificate::driver::{out_of_order, Checker};
 use crate::error::Error;
-use crate::oracle::Output;
+use crate::oracle::Answer;
 use crate::transcript::reader::last_line;
-use crate::transcript::{parse_line, QueryRecord, Record, TranscriptReader, FORMAT_VERSION};
+use crate::transcript::{parse_line, QueryRecord, Record, TranscriptReader};
 use crate::transcript::{Ending, FinalRecord, Header};
 
 /// What the verifier concluded about a game whose certificate checks out.
@@ -160,7 +164,7 @@ pub fn verify_file(path: &std::path::Path) -> Result<Verdict, Error> {
                 };
                 checker = Some(Checker::new(header, final_record, last_line)?);
             }
-            Some(c) => c.record(line, record)?,
+            Some(c) => c.record(line, &record)?,
         }
     }
     checker
@@ -185,29 +189,53 @@ pub fn verify_records(records: &[Record]) -> Result<Verdict, Error> {
     };
     let mut checker = Checker::new(header.clone(), final_record.clone(), n)?;
     for (i, record) in records.iter().enumerate().skip(1) {
-        checker.record(i as u64 + 1, record.clone())?;
+        checker.record(i as u64 + 1, record)?;
     }
     checker.finish(n)
 }
 
-fn out_of_order(line: u64, reason: &str) -> Error {
-    Error::Transcript {
-        line,
-        reason: format!("record out of order: {reason}"),
-    }
-}
-
-/// The class-specific half of the verifier: built from the validated class and the
-/// final record, fed every query record in order, then asked for the outcome.
+/// The class-specific half of the verifier: built from the validated class, given the
+/// final record ([`ClassVerifier::attach`]: witnesses and claim), fed every query in
+/// order, then asked for the outcome.
 ///
-/// The driver ([`verify_file`], [`verify_records`]) checks everything that does not
-/// depend on the class: the header, the order of records, query indices, the budget,
-/// and the final record's counts.
+/// The driver checks everything that does not depend on the class: the header, the
+/// order of records, query indices, the budget, and the final record's counts. Each
+/// answer has checks that need no witness ([`ClassVerifier::answer`]) and, in the
+/// certified prefix, checks that every witness agrees with it
+/// ([`ClassVerifier::agree`]); a streaming run ([`StreamingVerifier`]) makes the first
+/// as the game goes and the second once the witnesses are known.
 pub trait ClassVerifier {
-    /// Checks one query record (its index is already checked). `in_prefix` says whether
-    /// the certificate's witnesses must agree with it.
-    fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error>;
-    /// Checks the certificate's claim (if any) and judges the ending.
+    /// Takes the final record: checks the witnesses' membership in the class and the
+    /// certificate's claim (pairwise disjoint solution sets, or a refutation of the
+    /// output at full length).
+    fn attach(&mut self, final_record: &FinalRecord, final_line: u64) -> Result<(), Error>;
+    /// Checks one answer without the witnesses (its index and length are checked).
+    fn answer(
+        &mut self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error>;
+    /// Checks that every witness agrees with one answer of the certified prefix.
+    fn agree(&mut self, line: u64, index: u64, point: &[f64], answer: &Answer)
+        -> Result<(), Error>;
+    /// Whether [`ClassVerifier::agree`] reads the query point for this answer (a
+    /// streaming run keeps the point only then).
+    fn agree_reads_point(&self, answer: &Answer) -> bool {
+        let _ = answer;
+        true
+    }
+    /// Checks one query record: [`ClassVerifier::answer`], then, when `in_prefix`,
+    /// [`ClassVerifier::agree`].
+    fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error> {
+        self.answer(line, record.index, &record.point, &record.answer)?;
+        if in_prefix {
+            self.agree(line, record.index, &record.point, &record.answer)?;
+        }
+        Ok(())
+    }
+    /// Judges the ending (after [`ClassVerifier::attach`] and every query).
     fn finish(&mut self, final_line: u64) -> Result<Outcome, Error>;
     /// For accuracy classes: the largest accuracy the verified witnesses certify as
     /// unreachable from these answers (docs/theory.md §2.2); `None` elsewhere.
@@ -218,206 +246,4 @@ pub trait ClassVerifier {
     /// pairwise disjoint, so that it certifies the lower bound T* + 1 (a certificate that
     /// only refutes the method's output does not).
     fn bound_certified(&self) -> bool;
-}
-
-/// Builds the verifier for the header's class.
-fn class_verifier(
-    header: &Header,
-    final_record: &FinalRecord,
-    final_line: u64,
-) -> Result<Box<dyn ClassVerifier>, Error> {
-    let header_error = |reason: String| Error::Transcript { line: 1, reason };
-    match &header.class {
-        Class::Feasibility(c) => {
-            let class = crate::class::FeasibilityClass::new(c.dim, c.half_width, c.rho, c.promise)
-                .map_err(|e| header_error(e.to_string()))?;
-            Ok(Box::new(feasibility::FeasibilityVerifier::new(
-                class,
-                final_record,
-                final_line,
-            )?))
-        }
-        Class::FirstOrder(c) => {
-            let class =
-                crate::class::FirstOrderClass::new(c.dim, c.half_width, c.eps, c.lipschitz, c.norm)
-                    .map_err(|e| header_error(e.to_string()))?;
-            Ok(Box::new(first_order::FirstOrderVerifier::new(
-                class,
-                final_record,
-                final_line,
-            )?))
-        }
-        Class::Lattice(c) => {
-            let class = crate::class::LatticeClass::new(
-                c.lower.clone(),
-                c.upper.clone(),
-                c.cont_dim,
-                c.half_width,
-                c.rho,
-            )
-            .map_err(|e| header_error(e.to_string()))?;
-            Ok(Box::new(lattice::LatticeVerifier::new(
-                class,
-                final_record,
-                final_line,
-            )?))
-        }
-    }
-}
-
-/// Streaming driver: built from the header and the final record, fed the records in
-/// order.
-struct Checker {
-    header: Header,
-    final_record: FinalRecord,
-    final_line: u64,
-    prefix: u64,
-    dim: usize,
-    inner: Box<dyn ClassVerifier>,
-    next_index: u64,
-    finished: bool,
-}
-
-impl Checker {
-    fn new(header: Header, final_record: FinalRecord, final_line: u64) -> Result<Checker, Error> {
-        if header.format != FORMAT_VERSION {
-            return Err(Error::Transcript {
-                line: 1,
-                reason: format!(
-                    "transcript format {} is not supported (this build reads format \
-                     {FORMAT_VERSION})",
-                    header.format
-                ),
-            });
-        }
-        let final_error = |reason: String| Error::Transcript {
-            line: final_line,
-            reason,
-        };
-        if matches!(final_record.ending, Ending::BudgetExhausted)
-            && final_record.queries_used != header.budget
-        {
-            return Err(final_error(format!(
-                "the budget ended the game after {} queries, but the budget is {}",
-                final_record.queries_used, header.budget
-            )));
-        }
-        let dim = header.class.query_dim();
-        if let Ending::Output {
-            output: Output::Point { point },
-        } = &final_record.ending
-        {
-            if point.len() != dim {
-                return Err(final_error(format!(
-                    "output point has {} coordinates, expected {dim}",
-                    point.len(),
-                )));
-            }
-        }
-        if let Some(certificate) = &final_record.certificate {
-            if certificate.instances.len() > MAX_WITNESSES {
-                return Err(final_error(format!(
-                    "the certificate holds {} witnesses, more than the limit of \
-                     {MAX_WITNESSES}",
-                    certificate.instances.len()
-                )));
-            }
-        }
-        let prefix = final_record.certificate.as_ref().map_or(0, |w| w.prefix);
-        if prefix > final_record.queries_used {
-            return Err(final_error(format!(
-                "the certificate claims prefix {prefix}, longer than the {} queries used",
-                final_record.queries_used
-            )));
-        }
-        let inner = class_verifier(&header, &final_record, final_line)?;
-        Ok(Checker {
-            header,
-            final_record,
-            final_line,
-            prefix,
-            dim,
-            inner,
-            next_index: 1,
-            finished: false,
-        })
-    }
-
-    fn record(&mut self, line: u64, record: Record) -> Result<(), Error> {
-        if self.finished {
-            return Err(out_of_order(line, "a record follows the final record"));
-        }
-        match record {
-            Record::Header(_) => Err(out_of_order(line, "a second header")),
-            Record::Final(_) => {
-                if line != self.final_line {
-                    return Err(out_of_order(line, "a final record before the end"));
-                }
-                if self.next_index != self.final_record.queries_used + 1 {
-                    return Err(Error::Transcript {
-                        line,
-                        reason: format!(
-                            "the final record says {} queries were used, but the transcript \
-                             holds {}",
-                            self.final_record.queries_used,
-                            self.next_index - 1
-                        ),
-                    });
-                }
-                self.finished = true;
-                Ok(())
-            }
-            Record::Query(query) => {
-                if query.index != self.next_index {
-                    return Err(out_of_order(
-                        line,
-                        &format!(
-                            "expected query {}, found query {}",
-                            self.next_index, query.index
-                        ),
-                    ));
-                }
-                self.next_index += 1;
-                if query.point.len() != self.dim {
-                    return Err(Error::Transcript {
-                        line,
-                        reason: format!(
-                            "query {} has {} coordinates, expected {}",
-                            query.index,
-                            query.point.len(),
-                            self.dim
-                        ),
-                    });
-                }
-                let in_prefix = query.index <= self.prefix;
-                self.inner.query(line, &query, in_prefix)
-            }
-        }
-    }
-
-    fn finish(mut self, last_line: u64) -> Result<Verdict, Error> {
-        if !self.finished {
-            return Err(Error::Transcript {
-                line: last_line,
-                reason: "the transcript ends without a final record (truncated?)".into(),
-            });
-        }
-        let outcome = self.inner.finish(self.final_line)?;
-        let ending = &self.final_record.ending;
-        Ok(Verdict {
-            censored: matches!(ending, Ending::BudgetExhausted),
-            queries_used: self.final_record.queries_used,
-            certified_prefix: self
-                .final_record
-                .certificate
-                .as_ref()
-                .map(|w| w.prefix)
-                .filter(|_| self.inner.bound_certified()),
-            witness_prefix: self.final_record.certificate.as_ref().map(|w| w.prefix),
-            ending: ending.clone(),
-            outcome,
-            certified_uncertainty: self.inner.certified_uncertainty(),
-            header: self.header,
-        })
-    }
 }
