@@ -197,7 +197,7 @@ fn a_one_gibibyte_line_is_refused_early() {
         };
         assert!(reason.contains(&MAX_LINE_BYTES.to_string()), "{reason}");
         if python_present() {
-            let verdict = python_verdicts(&[path.clone()]).remove(0);
+            let verdict = python_verdicts(std::slice::from_ref(&path)).remove(0);
             assert!(
                 verdict.contains(&format!("REJECTED {}: line {line}: ", path.display()))
                     && verdict.contains("longer than"),
@@ -227,7 +227,7 @@ fn a_long_line_in_the_middle_is_refused_at_its_number() {
     };
     assert!(reason.contains("longer than"), "{reason}");
     if python_present() {
-        let verdict = python_verdicts(&[path.clone()]).remove(0);
+        let verdict = python_verdicts(std::slice::from_ref(&path)).remove(0);
         assert!(verdict.contains(": line 2: "), "{verdict}");
     }
 }

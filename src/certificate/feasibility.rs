@@ -47,12 +47,12 @@ impl Ball {
         let r2 = Interval::point(self.radius).square();
         let mut dist2 = Interval::point(0.0);
         for (xi, ci) in x.iter().zip(&self.approx) {
-            dist2 = dist2.add(Interval::point(*xi).sub(*ci).square());
+            dist2 = dist2.plus(Interval::point(*xi).minus(*ci).square());
             if dist2.lo > r2.hi {
                 return false;
             }
         }
-        if let Some(order) = dist2.cmp(&r2) {
+        if let Some(order) = dist2.compare(&r2) {
             return order != Ordering::Greater;
         }
         let r2 = self.radius2();
@@ -76,9 +76,9 @@ impl Ball {
                 let c = if *sign > 0 {
                     self.approx[*axis]
                 } else {
-                    self.approx[*axis].neg()
+                    self.approx[*axis].negated()
                 };
-                match cut.offset.sub(c).cmp(&Interval::point(r)) {
+                match cut.offset.minus(c).compare(&Interval::point(r)) {
                     Some(order) => order == Ordering::Greater,
                     None => {
                         let c = self.center[*axis].to_rational();
@@ -93,12 +93,12 @@ impl Ball {
                     .zip(&self.approx)
                     .filter(|(ai, _)| **ai != 0.0)
                     .map(|(ai, ci)| (Interval::point(*ai), *ci)));
-                let s = cut.offset.sub(ac);
+                let s = cut.offset.minus(ac);
                 match s.sign() {
                     Some(Ordering::Less | Ordering::Equal) => return false,
                     Some(Ordering::Greater) => {
-                        let lhs = Interval::point(r).square().mul(cut.norm2);
-                        if let Some(order) = lhs.cmp(&s.square()) {
+                        let lhs = Interval::point(r).square().times(cut.norm2);
+                        if let Some(order) = lhs.compare(&s.square()) {
                             return order == Ordering::Less;
                         }
                     }
@@ -131,7 +131,7 @@ impl<'a> PreparedCut<'a> {
                 .iter()
                 .filter(|v| **v != 0.0)
                 .fold(Interval::point(0.0), |acc, v| {
-                    acc.add(Interval::point(*v).square())
+                    acc.plus(Interval::point(*v).square())
                 }),
         };
         PreparedCut {
@@ -151,7 +151,7 @@ impl<'a> PreparedCut<'a> {
                 .filter(|(ai, _)| **ai != 0.0)
                 .map(|(ai, xi)| (Interval::point(*ai), Interval::point(*xi)))),
         };
-        match ax.cmp(&self.offset) {
+        match ax.compare(&self.offset) {
             Some(order) => order != Ordering::Less,
             None => exact_dot(&self.cut.normal, x) >= self.cut.offset.to_rational(),
         }
@@ -353,9 +353,9 @@ fn balls_apart(a: &Ball, b: &Ball) -> bool {
         .iter()
         .zip(&b.approx)
         .fold(Interval::point(0.0), |acc, (x, y)| {
-            acc.add(x.sub(*y).square())
+            acc.plus(x.minus(*y).square())
         });
-    if let Some(order) = dist2.cmp(&four_r2) {
+    if let Some(order) = dist2.compare(&four_r2) {
         return order == Ordering::Greater;
     }
     let exact: BigRational = a
@@ -483,8 +483,8 @@ fn check_membership(class: &FeasibilityClass, witness: &Witness) -> Result<Optio
             let big_r = Interval::point(class.half_width);
             for (i, (c, iv)) in center.iter().zip(&approx).enumerate() {
                 // -R <= c - r and c + r <= R.
-                let low = iv.sub(r).cmp(&big_r.neg());
-                let high = iv.add(r).cmp(&big_r);
+                let low = iv.minus(r).compare(&big_r.negated());
+                let high = iv.plus(r).compare(&big_r);
                 let inside = match (low, high) {
                     (Some(l), Some(h)) => l != Ordering::Less && h != Ordering::Greater,
                     _ => {

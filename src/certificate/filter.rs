@@ -55,7 +55,7 @@ impl Interval {
     }
 
     /// The sum.
-    pub fn add(self, other: Interval) -> Interval {
+    pub fn plus(self, other: Interval) -> Interval {
         if self.is_point() && other.is_point() {
             // TwoSum: s + e = a + b exactly.
             let (a, b) = (self.lo, other.lo);
@@ -74,7 +74,7 @@ impl Interval {
     }
 
     /// The negation (exact).
-    pub fn neg(self) -> Interval {
+    pub fn negated(self) -> Interval {
         Interval {
             lo: -self.hi,
             hi: -self.lo,
@@ -82,12 +82,12 @@ impl Interval {
     }
 
     /// The difference.
-    pub fn sub(self, other: Interval) -> Interval {
-        self.add(other.neg())
+    pub fn minus(self, other: Interval) -> Interval {
+        self.plus(other.negated())
     }
 
     /// The product.
-    pub fn mul(self, other: Interval) -> Interval {
+    pub fn times(self, other: Interval) -> Interval {
         if self.is_point() && other.is_point() {
             if self.lo == 0.0 || other.lo == 0.0 {
                 return Interval::point(0.0);
@@ -116,7 +116,7 @@ impl Interval {
 
     /// The square (non-negative).
     pub fn square(self) -> Interval {
-        let m = self.mul(self);
+        let m = self.times(self);
         if self.lo <= 0.0 && self.hi >= 0.0 {
             Interval { lo: 0.0, hi: m.hi }
         } else {
@@ -135,7 +135,7 @@ impl Interval {
         if self.lo >= 0.0 {
             self
         } else if self.hi <= 0.0 {
-            self.neg()
+            self.negated()
         } else {
             Interval {
                 lo: 0.0,
@@ -161,7 +161,7 @@ impl Interval {
     /// The quotient by a value known to be positive (`other.lo > 0`); undecided (NaN
     /// ends) otherwise.
     pub fn div_positive(self, other: Interval) -> Interval {
-        if !(other.lo > 0.0) {
+        if other.lo.is_nan() || other.lo <= 0.0 {
             return Interval {
                 lo: f64::NAN,
                 hi: f64::NAN,
@@ -185,7 +185,7 @@ impl Interval {
 
     /// The comparison of the exact values when the intervals decide it; `None` when they
     /// overlap (or an end is NaN).
-    pub fn cmp(&self, other: &Interval) -> Option<Ordering> {
+    pub fn compare(&self, other: &Interval) -> Option<Ordering> {
         if self.hi < other.lo {
             Some(Ordering::Less)
         } else if self.lo > other.hi {
@@ -199,13 +199,13 @@ impl Interval {
 
     /// The sign of the exact value when the interval decides it.
     pub fn sign(&self) -> Option<Ordering> {
-        self.cmp(&Interval::point(0.0))
+        self.compare(&Interval::point(0.0))
     }
 }
 
 /// `sum_i a_i x_i` over the listed coordinates, as an interval.
 pub fn dot(terms: impl Iterator<Item = (Interval, Interval)>) -> Interval {
-    terms.fold(Interval::point(0.0), |acc, (a, x)| acc.add(a.mul(x)))
+    terms.fold(Interval::point(0.0), |acc, (a, x)| acc.plus(a.times(x)))
 }
 
 #[cfg(test)]
@@ -230,33 +230,33 @@ mod tests {
             let b = b * 2f64.powi(s);
             let (ra, rb) = (f64_to_rational(a), f64_to_rational(b));
             let (ia, ib) = (Interval::point(a), Interval::point(b));
-            prop_assert!(contains(&ia.add(ib), &(&ra + &rb)));
-            prop_assert!(contains(&ia.sub(ib), &(&ra - &rb)));
-            prop_assert!(contains(&ia.mul(ib), &(&ra * &rb)));
-            prop_assert!(contains(&ia.add(ib).mul(ia.sub(ib)), &((&ra + &rb) * (&ra - &rb))));
-            prop_assert!(contains(&ia.sub(ib).square(), &((&ra - &rb) * (&ra - &rb))));
+            prop_assert!(contains(&ia.plus(ib), &(&ra + &rb)));
+            prop_assert!(contains(&ia.minus(ib), &(&ra - &rb)));
+            prop_assert!(contains(&ia.times(ib), &(&ra * &rb)));
+            prop_assert!(contains(&ia.plus(ib).times(ia.minus(ib)), &((&ra + &rb) * (&ra - &rb))));
+            prop_assert!(contains(&ia.minus(ib).square(), &((&ra - &rb) * (&ra - &rb))));
         }
     }
 
     #[test]
     fn tiny_products_and_exact_sums() {
         let tiny = f64::from_bits(1);
-        let p = Interval::point(tiny).mul(Interval::point(0.5));
+        let p = Interval::point(tiny).times(Interval::point(0.5));
         assert!(
             p.lo < 0.0 && p.hi > 0.0,
             "an underflowed product is not zero"
         );
-        let s = Interval::point(0.5).add(Interval::point(0.25));
+        let s = Interval::point(0.5).plus(Interval::point(0.25));
         assert_eq!(s, Interval::point(0.75));
         assert_eq!(
-            Interval::point(1.0).cmp(&Interval::point(1.0)),
+            Interval::point(1.0).compare(&Interval::point(1.0)),
             Some(Ordering::Equal)
         );
-        let big = Interval::point(f64::MAX).add(Interval::point(f64::MAX));
-        assert_eq!(big.cmp(&Interval::point(0.0)), Some(Ordering::Greater));
+        let big = Interval::point(f64::MAX).plus(Interval::point(f64::MAX));
+        assert_eq!(big.compare(&Interval::point(0.0)), Some(Ordering::Greater));
         let nan = Interval::point(f64::MAX)
-            .add(Interval::point(f64::MAX))
-            .sub(Interval::point(f64::MAX).add(Interval::point(f64::MAX)));
-        assert_eq!(nan.cmp(&Interval::point(0.0)), None);
+            .plus(Interval::point(f64::MAX))
+            .minus(Interval::point(f64::MAX).plus(Interval::point(f64::MAX)));
+        assert_eq!(nan.compare(&Interval::point(0.0)), None);
     }
 }

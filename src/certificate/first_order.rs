@@ -45,7 +45,7 @@ pub fn dual_norm_at_most(g: &[Exact], norm: LipschitzNorm, bound: f64) -> bool {
         LipschitzNorm::L1 => {
             let mut all = Some(Ordering::Less);
             for x in nonzero() {
-                match Interval::of_exact(x).abs().cmp(&limit) {
+                match Interval::of_exact(x).abs().compare(&limit) {
                     Some(Ordering::Greater) => return false,
                     Some(_) => {}
                     None => all = None,
@@ -55,14 +55,14 @@ pub fn dual_norm_at_most(g: &[Exact], norm: LipschitzNorm, bound: f64) -> bool {
         }
         LipschitzNorm::L2 => nonzero()
             .fold(Interval::point(0.0), |acc, x| {
-                acc.add(Interval::of_exact(x).square())
+                acc.plus(Interval::of_exact(x).square())
             })
-            .cmp(&limit.square()),
+            .compare(&limit.square()),
         LipschitzNorm::Linf => nonzero()
             .fold(Interval::point(0.0), |acc, x| {
-                acc.add(Interval::of_exact(x).abs())
+                acc.plus(Interval::of_exact(x).abs())
             })
-            .cmp(&limit),
+            .compare(&limit),
     };
     if let Some(order) = filtered {
         return order != Ordering::Greater;
@@ -107,10 +107,10 @@ impl Prepared {
             .iter()
             .zip(&self.center)
             .fold(Interval::point(0.0), |m, (xi, ci)| {
-                m.max(Interval::point(*xi).sub(*ci).abs())
+                m.max(Interval::point(*xi).minus(*ci).abs())
             });
-        let cone = self.floor.add(self.slope.mul(dist));
-        if let Some(order) = cone.cmp(&value_iv) {
+        let cone = self.floor.plus(self.slope.times(dist));
+        if let Some(order) = cone.compare(&value_iv) {
             return order;
         }
         let xr: Vec<BigRational> = x.iter().map(|v| f64_to_rational(*v)).collect();
@@ -249,7 +249,7 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
     for (i, c) in w.center.iter().enumerate() {
         let inside = match Interval::of_exact(c)
             .abs()
-            .cmp(&Interval::point(class.half_width))
+            .compare(&Interval::point(class.half_width))
         {
             Some(order) => order != Ordering::Greater,
             None => c.to_rational().abs() <= r,

@@ -230,7 +230,7 @@ fn excludes(cut: &crate::oracle::Cut, x: &[f64]) -> bool {
         .map(|i| (cut.normal.get(i), x[i]))
         .filter(|(a, _)| *a != 0.0)
         .map(|(a, xi)| (Interval::point(a), Interval::point(xi))));
-    match ax.cmp(&Interval::of_exact(&cut.offset)) {
+    match ax.compare(&Interval::of_exact(&cut.offset)) {
         Some(order) => order != std::cmp::Ordering::Less,
         None => {
             let exact: BigRational = (0..x.len())

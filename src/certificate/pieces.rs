@@ -106,7 +106,7 @@ impl FilteredPiece {
     /// An interval containing the piece's value at `x`.
     pub fn interval_at(&self, x: &[f64]) -> Interval {
         self.terms.iter().fold(self.intercept, |acc, (i, a)| {
-            acc.add(a.mul(Interval::point(x[*i])))
+            acc.plus(a.times(Interval::point(x[*i])))
         })
     }
 
@@ -138,7 +138,7 @@ impl FilteredPiece {
     /// Compares the piece's value at `x` with `value`, exactly, given an interval
     /// `value_iv` that contains `value` (computed once by the caller).
     pub fn cmp_with(&self, x: &[f64], value: &Exact, value_iv: Interval) -> Ordering {
-        if let Some(order) = self.interval_at(x).cmp(&value_iv) {
+        if let Some(order) = self.interval_at(x).compare(&value_iv) {
             return order;
         }
         self.exact_at(x).cmp(&value.to_rational())
@@ -256,7 +256,7 @@ impl PieceSet {
         // The first breakpoint at or right of y: the line left of it is the top.
         let point = Interval::point(y);
         let at = envelope.breakpoints.partition_point(|b| {
-            let order = match point.cmp(&b.approx) {
+            let order = match point.compare(&b.approx) {
                 Some(order) => order,
                 None => f64_to_rational(y).cmp(b.exact.get_or_init(|| {
                     crossing(
@@ -288,7 +288,7 @@ fn crossing(left: &FilteredPiece, right: &FilteredPiece, i: usize) -> BigRationa
 
 /// Compares two exact numbers with their intervals.
 fn cmp_exact(a: &Exact, a_iv: Interval, b: &Exact, b_iv: Interval) -> Ordering {
-    a_iv.cmp(&b_iv).unwrap_or_else(|| a.cmp_exact(b))
+    a_iv.compare(&b_iv).unwrap_or_else(|| a.cmp_exact(b))
 }
 
 /// The upper envelope of the lines y -> a_p y + b_p (pieces `members`, all with their
@@ -334,8 +334,8 @@ fn envelope(pieces: &[FilteredPiece], i: usize, mut members: Vec<usize>) -> Enve
             let (l, r) = (&pieces[w[0]], &pieces[w[1]]);
             let approx = l
                 .intercept
-                .sub(r.intercept)
-                .div_positive(r.terms[0].1.sub(l.terms[0].1));
+                .minus(r.intercept)
+                .div_positive(r.terms[0].1.minus(l.terms[0].1));
             Breakpoint {
                 approx,
                 exact: OnceCell::new(),
@@ -355,9 +355,9 @@ fn envelope(pieces: &[FilteredPiece], i: usize, mut members: Vec<usize>) -> Enve
 fn redundant(pieces: &[FilteredPiece], i: usize, l1: usize, l2: usize, l3: usize) -> bool {
     let (p1, p2, p3) = (&pieces[l1], &pieces[l2], &pieces[l3]);
     let (a1, a2, a3) = (p1.terms[0].1, p2.terms[0].1, p3.terms[0].1);
-    let lhs = p1.intercept.sub(p2.intercept).mul(a3.sub(a2));
-    let rhs = p2.intercept.sub(p3.intercept).mul(a2.sub(a1));
-    if let Some(order) = lhs.cmp(&rhs) {
+    let lhs = p1.intercept.minus(p2.intercept).times(a3.minus(a2));
+    let rhs = p2.intercept.minus(p3.intercept).times(a2.minus(a1));
+    if let Some(order) = lhs.compare(&rhs) {
         return order != Ordering::Less;
     }
     let a = |p: &FilteredPiece| p.exact.slope[i].to_rational();
