@@ -11,14 +11,22 @@
 //!   per answer is the cut's nonzeros plus the witnesses it touches (O(1) for these axis
 //!   cuts), so it should not grow with d beyond copying the records;
 //! - `check_first_order`: `naysayer check` (verifier and first-order audit) on a
-//!   20 000-query `subgradient-decaying` transcript against `orthant` (d = 2): < 10 s.
+//!   20 000-query `subgradient-decaying` transcript against `orthant` (d = 2): < 10 s;
+//! - `piece_set`: the first-order witness check "max_p p(x) <= v" for the shape of the
+//!   slab-funnel witnesses (a few hundred pieces with one nonzero slope entry each,
+//!   d = 10), over 5000 points: the per-coordinate envelopes against evaluating every
+//!   piece (both exact).
 
 use std::path::PathBuf;
 use std::process::Command;
 
 use criterion::{black_box, criterion_group, criterion_main, Criterion, Throughput};
 use naysayer::adversary::Halving;
+use naysayer::certificate::filter::Interval;
+use naysayer::certificate::pieces::{FilteredPiece, PieceSet};
 use naysayer::certificate::verify_records;
+use naysayer::exact::Exact;
+use naysayer::instance::AffinePiece;
 use naysayer::class::{Class, FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
 use naysayer::game::{self, GameSettings};
 use naysayer::method::midpoint::Midpoint;
@@ -136,5 +144,63 @@ fn check_first_order(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, play_vs_game, verify_in_memory, check_first_order);
+/// 300 pieces a (y_i - m) + b, i = k mod 10, with dyadic slopes and exact intercepts
+/// (as the funnel levels have), and 5000 points.
+fn piece_set(c: &mut Criterion) {
+    let d = 10;
+    let pieces: Vec<AffinePiece> = (0..300)
+        .map(|k| {
+            let mut slope = vec![Exact::ZERO; d];
+            let level = (k / 20) as i32;
+            let a = 0.5f64.powi(level) * if k % 2 == 0 { 1.0 } else { -1.0 };
+            slope[k % d] = Exact::Float(a);
+            let intercept = Exact::from_rational(
+                num_rational::BigRational::new((k as i64 - 150).into(), 7.into()),
+            );
+            AffinePiece { slope, intercept }
+        })
+        .collect();
+    let points: Vec<Vec<f64>> = (0..5000)
+        .map(|t| {
+            (0..d)
+                .map(|i| ((t * 7919 + i * 104_729) % 2001) as f64 / 1000.0 - 1.0)
+                .collect()
+        })
+        .collect();
+    let value = Exact::Float(1e6);
+    let value_iv = Interval::of_exact(&value);
+    let set = PieceSet::new(pieces.clone());
+    let filtered: Vec<FilteredPiece> = pieces.into_iter().map(FilteredPiece::new).collect();
+    let mut group = c.benchmark_group("piece_set_300_pieces_d10");
+    group.throughput(Throughput::Elements(points.len() as u64));
+    group.bench_function("envelopes", |b| {
+        b.iter(|| {
+            points
+                .iter()
+                .filter(|x| set.exceeding(x, &value, value_iv).is_some())
+                .count()
+        })
+    });
+    group.bench_function("every piece", |b| {
+        b.iter(|| {
+            points
+                .iter()
+                .filter(|x| {
+                    filtered.iter().any(|p| {
+                        p.cmp_with(x, &value, value_iv) == std::cmp::Ordering::Greater
+                    })
+                })
+                .count()
+        })
+    });
+    group.finish();
+}
+
+criterion_group!(
+    benches,
+    play_vs_game,
+    verify_in_memory,
+    check_first_order,
+    piece_set
+);
 criterion_main!(benches);
