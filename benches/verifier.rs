@@ -25,10 +25,10 @@ use naysayer::adversary::Halving;
 use naysayer::certificate::filter::Interval;
 use naysayer::certificate::pieces::{FilteredPiece, PieceSet};
 use naysayer::certificate::verify_records;
-use naysayer::exact::Exact;
-use naysayer::instance::AffinePiece;
 use naysayer::class::{Class, FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
+use naysayer::exact::Exact;
 use naysayer::game::{self, GameSettings};
+use naysayer::instance::AffinePiece;
 use naysayer::method::midpoint::Midpoint;
 use naysayer::runner::{self, GameSpec};
 use naysayer::transcript::{Header, MemoryTranscript, FORMAT_VERSION};
@@ -154,9 +154,10 @@ fn piece_set(c: &mut Criterion) {
             let level = (k / 20) as i32;
             let a = 0.5f64.powi(level) * if k % 2 == 0 { 1.0 } else { -1.0 };
             slope[k % d] = Exact::Float(a);
-            let intercept = Exact::from_rational(
-                num_rational::BigRational::new((k as i64 - 150).into(), 7.into()),
-            );
+            let intercept = Exact::from_rational(num_rational::BigRational::new(
+                (k as i64 - 150).into(),
+                7.into(),
+            ));
             AffinePiece { slope, intercept }
         })
         .collect();
@@ -186,9 +187,9 @@ fn piece_set(c: &mut Criterion) {
             points
                 .iter()
                 .filter(|x| {
-                    filtered.iter().any(|p| {
-                        p.cmp_with(x, &value, value_iv) == std::cmp::Ordering::Greater
-                    })
+                    filtered
+                        .iter()
+                        .any(|p| p.cmp_with(x, &value, value_iv) == std::cmp::Ordering::Greater)
                 })
                 .count()
         })

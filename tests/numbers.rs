@@ -296,6 +296,24 @@ fn optional_keys_must_be_written() {
         r#""budget-exhausted"},"certificate":null"#,
     );
     files.valid(&lines);
+    // A lattice hull without `fibre` (rather than `"fibre":null`).
+    let class =
+        r#"{"kind":"lattice","lower":[0],"upper":[1],"cont_dim":0,"half_width":1.0,"rho":0.5}"#;
+    let lattice = |hull: &str| {
+        vec![
+            format!(
+                r#"{{"type":"header","data":{{"format":1,"tool":"test","class":{class},"adversary":"hand","method":"hand","seed":0,"budget":0}}}}"#
+            ),
+            format!(
+                r#"{{"type":"final","data":{{"queries_used":0,"ending":{{"kind":"budget-exhausted"}},"certificate":{{"schema":1,"prefix":0,"instances":[{hull},{{"kind":"lattice-hull","points":[],"fibre":{{"integer":[1],"center":[],"radius":0.5}}}}]}}}}}}"#
+            ),
+        ]
+    };
+    files.valid(&lattice(
+        r#"{"kind":"lattice-hull","points":[],"fibre":null}"#,
+    ));
+    let reason = files.rejected(&lattice(r#"{"kind":"lattice-hull","points":[]}"#));
+    assert!(reason.contains("fibre"), "{reason}");
 }
 
 #[test]
