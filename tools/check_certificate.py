@@ -76,9 +76,6 @@ AT = [1]  # the line being checked, for messages
 class Reject(Exception):  # (line, reason)
     pass
 
-class Unreadable(Exception):
-    pass
-
 def fail(reason, line=None):
     raise Reject(line or AT[0], reason)
 
@@ -119,7 +116,8 @@ def exact(v, what):
     p, q = m.groups()
     if q is not None and int(q) == 0:
         fail(f"{what}: the denominator of {v['exact'][:40]!r} is zero")
-    value = F(int(v["exact"].partition("/")[0]), int(q) if q is not None else 1)
+    numerator = -int(p) if v["exact"].startswith("-") else int(p)
+    value = F(numerator, int(q) if q is not None else 1)
     if abs(value) >= TOO_BIG:
         fail(f"{what}: an exact number must be smaller than 2^1024 - 2^970 in magnitude")
     if real(v["approx"], what) != F(float(value)):  # float(Fraction) rounds correctly
