@@ -7,6 +7,18 @@
 //! as a big rational. On disk an exactly representable value is a plain JSON number;
 //! any other value is an object `{"exact": "p/q", "approx": f}` whose `approx` is the
 //! nearest `f64` (ties to even), checked on reading.
+//!
+//! Reading numbers (one reading, the same in `tools/check_certificate.py`):
+//! - a plain JSON number is exactly the `f64` it parses to (round to nearest, ties to
+//!   even), whatever its spelling: the integer token `9007199254740993` is the `f64`
+//!   9007199254740992, here as everywhere else;
+//! - `exact` follows one grammar, [`parse_exact_text`]: ASCII, an optional `-`, 1 to
+//!   [`MAX_EXACT_DIGITS`] decimal digits, optionally `/` and 1 to [`MAX_EXACT_DIGITS`]
+//!   digits of a nonzero denominator; nothing else (no `+`, spaces, `_`, exponents,
+//!   decimal points or other scripts' digits). The fraction need not be in lowest terms;
+//! - `approx` must be the `f64` nearest to `exact` (ties to even), and the value must
+//!   have a finite nearest `f64`: |value| < 2^1024 - 2^970;
+//! - the object has exactly the keys `exact` and `approx`, each once.
 
 use std::cmp::Ordering;
 use std::fmt;
@@ -149,6 +161,9 @@ pub fn nearest_f64(value: &BigRational) -> f64 {
     } else {
         f64::MIN
     };
+    if is_nearest(value, guess) {
+        return guess;
+    }
     // Walk to the best neighbour: the library guess is within one ulp in practice.
     let mut best = guess;
     let mut best_err = (f64_to_rational(best) - value).abs();
@@ -172,7 +187,59 @@ pub fn nearest_f64(value: &BigRational) -> f64 {
     best
 }
 
-fn next_up(x: f64) -> f64 {
+/// A finite `f64` as m 2^e with an integer m (its sign included).
+fn decode(x: f64) -> (i64, i64) {
+    let bits = x.to_bits();
+    let exponent = ((bits >> 52) & 0x7ff) as i64;
+    let fraction = (bits & ((1u64 << 52) - 1)) as i64;
+    let (m, e) = if exponent == 0 {
+        (fraction, -1074)
+    } else {
+        (fraction | (1i64 << 52), exponent - 1075)
+    };
+    (if x < 0.0 { -m } else { m }, e)
+}
+
+/// The midpoint of two finite `f64` values as M 2^E.
+fn midpoint_dyadic(a: f64, b: f64) -> (BigInt, i64) {
+    let ((ma, ea), (mb, eb)) = (decode(a), decode(b));
+    let e = ea.min(eb);
+    let m = (BigInt::from(ma) << (ea - e) as u32) + (BigInt::from(mb) << (eb - e) as u32);
+    (m, e - 1)
+}
+
+/// The comparison of `value` with M 2^E, exactly, without reducing fractions.
+fn cmp_dyadic(value: &BigRational, (m, e): &(BigInt, i64)) -> Ordering {
+    // value = p / q with q > 0: compare p with M q 2^E.
+    let (p, q) = (value.numer(), value.denom());
+    let mq = m * q;
+    if *e >= 0 {
+        p.cmp(&(mq << *e as u32))
+    } else {
+        (p << (-*e) as u32).cmp(&mq)
+    }
+}
+
+/// True when the finite `f64` `g` is the nearest to `value` (ties to even; the largest
+/// finite `f64` also for every larger value), decided by comparing `value` with the two
+/// midpoints around `g` in integer arithmetic.
+fn is_nearest(value: &BigRational, g: f64) -> bool {
+    let even = g.to_bits() & 1 == 0;
+    let ok =
+        |order: Ordering, strict: Ordering| order == strict || (order == Ordering::Equal && even);
+    let (down, up) = (next_down(g), next_up(g));
+    let above_low = !down.is_finite()
+        || ok(
+            cmp_dyadic(value, &midpoint_dyadic(down, g)),
+            Ordering::Greater,
+        );
+    let below_high =
+        !up.is_finite() || ok(cmp_dyadic(value, &midpoint_dyadic(g, up)), Ordering::Less);
+    above_low && below_high
+}
+
+/// The smallest `f64` above `x` (`x` itself for NaN and +infinity).
+pub fn next_up(x: f64) -> f64 {
     if x.is_nan() || x == f64::INFINITY {
         return x;
     }
@@ -187,7 +254,8 @@ fn next_up(x: f64) -> f64 {
     }
 }
 
-fn next_down(x: f64) -> f64 {
+/// The largest `f64` below `x`.
+pub fn next_down(x: f64) -> f64 {
     -next_up(-x)
 }
 
@@ -200,7 +268,72 @@ pub fn rational_to_string(value: &BigRational) -> String {
     }
 }
 
-/// Parses `p/q`, `p`, or a decimal such as `-1.25e-3` into an exact rational.
+/// Most decimal digits in the numerator, and in the denominator, of an exact number's
+/// `exact` text (the limit keeps reading linear in the input; the largest values the
+/// adversaries write have well under a thousand digits).
+pub const MAX_EXACT_DIGITS: usize = 4096;
+
+/// Parses the `exact` text of an exact number: `-?D(/D)?`, where each `D` is 1 to
+/// [`MAX_EXACT_DIGITS`] ASCII decimal digits and the denominator is not zero. `Err`
+/// says what is wrong. This is the only grammar the transcript reader accepts.
+pub fn parse_exact_text(text: &str) -> Result<BigRational, String> {
+    let unsigned = text.strip_prefix('-').unwrap_or(text);
+    let (numer, denom) = match unsigned.split_once('/') {
+        Some((p, q)) => (p, Some(q)),
+        None => (unsigned, None),
+    };
+    let digits = |part: &str, what: &str| -> Result<BigInt, String> {
+        if part.is_empty() || !part.bytes().all(|b| b.is_ascii_digit()) {
+            return Err(format!(
+                "the {what} of {:?} is not 1 or more ASCII decimal digits (the exact form \
+                 is -?digits or -?digits/digits)",
+                shorten(text)
+            ));
+        }
+        if part.len() > MAX_EXACT_DIGITS {
+            return Err(format!(
+                "the {what} of an exact number has {} digits, more than the limit of \
+                 {MAX_EXACT_DIGITS}",
+                part.len()
+            ));
+        }
+        Ok(part.parse().expect("ASCII digits parse"))
+    };
+    let mut p = digits(numer, "numerator")?;
+    if text.starts_with('-') {
+        p = -p;
+    }
+    let q = match denom {
+        Some(q) => digits(q, "denominator")?,
+        None => BigInt::one(),
+    };
+    if q.is_zero() {
+        return Err(format!("the denominator of {:?} is zero", shorten(text)));
+    }
+    Ok(BigRational::new(p, q))
+}
+
+/// The first characters of a long text, for messages.
+fn shorten(text: &str) -> String {
+    match text.char_indices().nth(40) {
+        Some((end, _)) => format!("{}...", &text[..end]),
+        None => text.to_string(),
+    }
+}
+
+/// True when `value` has a finite nearest `f64`: |value| < 2^1024 - 2^970 (at and
+/// beyond that bound, round to nearest gives infinity).
+pub fn has_finite_nearest_f64(value: &BigRational) -> bool {
+    // |p/q| < 2^(bits(p) - bits(q) + 1): below 2^1023 needs no big comparison.
+    if value.numer().bits() <= value.denom().bits() + 1022 {
+        return true;
+    }
+    let bound = (BigInt::one() << 1024u32) - (BigInt::one() << 970u32);
+    value.abs() < BigRational::from_integer(bound)
+}
+
+/// Parses `p/q`, `p`, or a decimal such as `-1.25e-3` into an exact rational (a helper
+/// for tests and tools; the transcript reader accepts [`parse_exact_text`] only).
 pub fn parse_rational(text: &str) -> Option<BigRational> {
     let text = text.trim();
     if let Some((p, q)) = text.split_once('/') {
@@ -289,12 +422,14 @@ impl<'de> Visitor<'de> for ExactVisitor {
         Exact::from_f64(v).ok_or_else(|| E::custom("non-finite number"))
     }
 
+    // A plain integer token is the f64 it parses to, like any other plain number
+    // (`as` rounds to nearest, ties to even).
     fn visit_i64<E: de::Error>(self, v: i64) -> Result<Exact, E> {
-        Ok(Exact::from_rational(BigRational::from_integer(v.into())))
+        Ok(Exact::Float(v as f64))
     }
 
     fn visit_u64<E: de::Error>(self, v: u64) -> Result<Exact, E> {
-        Ok(Exact::from_rational(BigRational::from_integer(v.into())))
+        Ok(Exact::Float(v as f64))
     }
 
     fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<Exact, A::Error> {
@@ -302,6 +437,8 @@ impl<'de> Visitor<'de> for ExactVisitor {
         let mut approx: Option<f64> = None;
         while let Some(key) = map.next_key::<String>()? {
             match key.as_str() {
+                "exact" if exact.is_some() => return Err(de::Error::duplicate_field("exact")),
+                "approx" if approx.is_some() => return Err(de::Error::duplicate_field("approx")),
                 "exact" => exact = Some(map.next_value()?),
                 "approx" => approx = Some(map.next_value()?),
                 other => return Err(de::Error::unknown_field(other, &["exact", "approx"])),
@@ -309,14 +446,24 @@ impl<'de> Visitor<'de> for ExactVisitor {
         }
         let exact = exact.ok_or_else(|| de::Error::missing_field("exact"))?;
         let approx = approx.ok_or_else(|| de::Error::missing_field("approx"))?;
-        let value = parse_rational(&exact)
-            .ok_or_else(|| de::Error::custom(format!("not a rational: {exact:?}")))?;
-        if nearest_f64(&value) != approx {
+        let value = parse_exact_text(&exact).map_err(de::Error::custom)?;
+        if !has_finite_nearest_f64(&value) {
+            return Err(de::Error::custom(
+                "an exact number must be smaller than 2^1024 - 2^970 in magnitude (its \
+                 nearest f64 must be finite)",
+            ));
+        }
+        let near = nearest_f64(&value);
+        if near != approx {
             return Err(de::Error::custom(format!(
                 "approx {approx} is not the nearest f64 to {exact}"
             )));
         }
-        Ok(Exact::from_rational(value))
+        Ok(if f64_to_rational(near) == value {
+            Exact::Float(near)
+        } else {
+            Exact::Ratio(Box::new(value))
+        })
     }
 }
 
@@ -377,6 +524,40 @@ mod tests {
         );
         assert!(parse_rational("1/0").is_none());
         assert!(parse_rational("abc").is_none());
+    }
+
+    proptest::proptest! {
+        // The fast check agrees with the exhaustive neighbour walk on random rationals
+        // near and far from f64 values, midpoints (ties) included.
+        #[test]
+        fn nearest_f64_is_the_nearest(p in -(1i128 << 70)..(1i128 << 70), q in 1i128..(1i128 << 70),
+                                      shift in -1100i32..1100) {
+            let two = BigInt::from(2);
+            let scale = num_traits::pow(two.clone(), shift.unsigned_abs() as usize);
+            let value = if shift >= 0 {
+                BigRational::new(BigInt::from(p) * scale, BigInt::from(q))
+            } else {
+                BigRational::new(BigInt::from(p), BigInt::from(q) * scale)
+            };
+            let fast = nearest_f64(&value);
+            let mut best = fast;
+            let err = |f: f64| (f64_to_rational(f) - &value).abs();
+            for c in [next_down(fast), next_up(fast)] {
+                if c.is_finite() {
+                    let (ec, eb) = (err(c), err(best));
+                    proptest::prop_assert!(ec > eb || (ec == eb && best.to_bits() & 1 == 0),
+                        "{} is nearer to {} than {}", c, value, fast);
+                }
+            }
+            best = fast;
+            // A midpoint between two neighbours goes to the even one.
+            let up = next_up(best);
+            if up.is_finite() && best.is_finite() {
+                let mid = (f64_to_rational(best) + f64_to_rational(up)) / BigRational::from_integer(two.clone());
+                let m = nearest_f64(&mid);
+                proptest::prop_assert!(m.to_bits() & 1 == 0 && (m == best || m == up));
+            }
+        }
     }
 
     #[test]

@@ -1,13 +1,14 @@
 //! One game from a specification to a verified report: builds the adversary and the
-//! method, plays, writes the transcript (to a file or to memory), and runs the
-//! independent verifier over what was written ([`run`] and its variants), or, for the
-//! large-scale demonstrations, the demonstration judge ([`demonstrate`]).
+//! method, plays, and runs the independent verifier: over the transcript file when one
+//! is written, else as the game is played ([`StreamingVerifier`]) ([`run`] and its
+//! variants); for the large-scale demonstrations, the demonstration judge
+//! ([`demonstrate`]).
 
 use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 use crate::adversary;
-use crate::certificate::{self, Verdict};
+use crate::certificate::{self, StreamingVerifier, Verdict};
 use crate::class::Class;
 use crate::demonstration::{self, DemoVerdict};
 use crate::error::Error;
@@ -15,7 +16,7 @@ use crate::game::{self, GameSettings, Observer};
 use crate::method::external::{ExternalMethod, ExternalSettings};
 use crate::method::{self, Method};
 use crate::transcript::{FinalRecord, Header};
-use crate::transcript::{Flush, MemoryTranscript, TranscriptWriter, FORMAT_VERSION};
+use crate::transcript::{Flush, TranscriptWriter, FORMAT_VERSION};
 
 /// Everything that defines one game.
 #[derive(Clone, Debug, PartialEq)]
@@ -125,9 +126,10 @@ pub fn run_with_flush(
             (record, certificate::verify_file(path))
         }
         None => {
-            let mut memory = MemoryTranscript::default();
+            // Verified as it is played; memory stays flat (certificate::stream).
+            let mut verifier = StreamingVerifier::new();
             let record = {
-                let mut observers: Vec<&mut dyn Observer> = vec![&mut memory];
+                let mut observers: Vec<&mut dyn Observer> = vec![&mut verifier];
                 observers.extend(extra.iter_mut().map(|o| &mut **o as &mut dyn Observer));
                 game::play(
                     &header,
@@ -137,7 +139,7 @@ pub fn run_with_flush(
                     &mut observers,
                 )?
             };
-            (record, certificate::verify_records(&memory.records))
+            (record, verifier.verdict())
         }
     };
     Ok(Report {

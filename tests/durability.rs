@@ -113,13 +113,53 @@ seeds = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 2
 budget = 100000
 "#;
 
+/// A scenario whose sweep takes a few seconds: a Python method that thinks 20 ms a
+/// query (the midpoint of its box, like `examples/python/bisection.py`, without the
+/// exact arithmetic), 30 seeded games.
+const SLOW_SWEEP: &str = r#"name = "slow"
+description = "A slow external method."
+[class]
+family = "feasibility"
+dims = [1]
+half_width = 1.0
+rho = [1e-3]
+[adversary]
+name = "halving"
+[play]
+methods = ["thinker"]
+seeds = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19, 20, 21, 22, 23, 24, 25, 26, 27, 28, 29]
+budget = 1000
+[external.thinker]
+command = ["python3", "thinker.py"]
+deterministic = false
+"#;
+
+const THINKER: &str = r#"import json, sys, time
+header = json.loads(sys.stdin.readline())
+print(json.dumps({"msg": "ready", "protocol": 1}), flush=True)
+lo, hi = -1.0, 1.0
+for _ in range(12):
+    time.sleep(0.02)
+    x = 0.5 * (lo + hi)
+    print(json.dumps({"msg": "query", "point": [x]}), flush=True)
+    reply = json.loads(sys.stdin.readline())
+    cut = reply["answer"]
+    sign = cut["normal"]["sign"] if isinstance(cut["normal"], dict) else (1 if cut["normal"][0] > 0 else -1)
+    if sign > 0:
+        hi = x
+    else:
+        lo = x
+print(json.dumps({"msg": "empty"}), flush=True)
+"#;
+
 #[test]
 fn two_sweeps_into_one_folder_never_interleave() {
     let dir = TempDir::new().unwrap();
-    std::fs::write(dir.path().join("busy.toml"), BUSY).unwrap();
+    std::fs::write(dir.path().join("slow.toml"), SLOW_SWEEP).unwrap();
+    std::fs::write(dir.path().join("thinker.py"), THINKER).unwrap();
     let start = || {
         Command::new(BIN)
-            .args(["sweep", "busy.toml", "--jobs", "1", "--no-charts"])
+            .args(["sweep", "slow.toml", "--jobs", "1", "--no-charts"])
             .current_dir(dir.path())
             .stdout(Stdio::piped())
             .stderr(Stdio::piped())
@@ -127,7 +167,15 @@ fn two_sweeps_into_one_folder_never_interleave() {
             .unwrap()
     };
     let first = start();
-    std::thread::sleep(Duration::from_millis(300));
+    // Start the second once the first holds the folder (its lock file exists).
+    let lock = dir.path().join("results/slow/.naysayer-lock");
+    for _ in 0..200 {
+        if lock.exists() {
+            break;
+        }
+        std::thread::sleep(Duration::from_millis(10));
+    }
+    assert!(lock.exists(), "the first sweep took the folder's lock");
     let second = start();
     let (a, b) = (
         first.wait_with_output().unwrap(),
@@ -135,31 +183,33 @@ fn two_sweeps_into_one_folder_never_interleave() {
     );
     // Exactly one wrote; the other refused, naming the owner.
     let codes = [a.status.code(), b.status.code()];
-    assert!(
-        codes.contains(&Some(0)) && codes.contains(&Some(2)),
-        "{codes:?}"
+    assert_eq!(
+        codes,
+        [Some(0), Some(2)],
+        "{}{}",
+        text(&a.stderr),
+        text(&b.stderr)
     );
-    let refused = if a.status.code() == Some(2) { &a } else { &b };
     assert!(
-        text(&refused.stderr).contains("another naysayer (pid"),
+        text(&b.stderr).contains("another naysayer (pid"),
         "{}",
-        text(&refused.stderr)
+        text(&b.stderr)
     );
     // The table is whole: one row per game, in order, no duplicates; a rerun resumes it.
-    let csv = std::fs::read_to_string(dir.path().join("results/busy/games.csv")).unwrap();
+    let csv = std::fs::read_to_string(dir.path().join("results/slow/games.csv")).unwrap();
     let games: Vec<u64> = csv
         .lines()
         .skip(1)
         .map(|l| l.split(',').next().unwrap().parse().unwrap())
         .collect();
-    assert_eq!(games, (0..games.len() as u64).collect::<Vec<_>>());
-    let again = naysayer(dir.path(), &["sweep", "busy.toml", "--no-charts"]);
+    assert_eq!(games, (0..30).collect::<Vec<u64>>());
+    let again = naysayer(dir.path(), &["sweep", "slow.toml", "--no-charts"]);
     assert!(
         text(&again.stdout).contains("0 played"),
         "{}",
         text(&again.stdout)
     );
-    assert!(!dir.path().join("results/busy/.naysayer-lock").exists());
+    assert!(!lock.exists());
 }
 
 #[test]

@@ -4,135 +4,24 @@
 //! outcome and eps_cert, and both reject the same tampered transcripts.
 //!
 //! When `python3` is not installed the tests print a notice and pass without checking:
-//! the Python checker is an extra line of defence, not a build dependency.
+//! the Python checker is an extra line of defence, not a build dependency. The cases of
+//! issue 15 (refutations, number reading, limits) are in `tests/refutation.rs`,
+//! `tests/numbers.rs` and `tests/limits.rs`, with the same helpers (`tests/common`).
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-use naysayer::certificate::{verify_file, Verdict};
+use naysayer::certificate::verify_file;
 use naysayer::class::lattice::LatticeClass;
 use naysayer::class::{Class, FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
 use naysayer::error::Error;
-use naysayer::family::boxes::outcome_name;
 use naysayer::method::METHODS;
 use naysayer::runner::{self, GameSpec};
 use serde_json::Value;
 use tempfile::TempDir;
 
-const CHECKER: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tools/check_certificate.py");
-const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
-
-fn python_present() -> bool {
-    let found = Command::new("python3")
-        .arg("--version")
-        .output()
-        .is_ok_and(|o| o.status.success());
-    if !found {
-        eprintln!(
-            "SKIPPED: python3 is not installed, so tools/check_certificate.py cannot be run; \
-             install Python 3 to run the independent-checker tests"
-        );
-    }
-    found
-}
-
-/// Runs the Python checker once over `paths`: each file's verdict line, in order.
-fn python_verdicts(paths: &[PathBuf]) -> Vec<String> {
-    let out = Command::new("python3")
-        .arg(CHECKER)
-        .args(paths)
-        .output()
-        .expect("python3 runs");
-    let text = String::from_utf8_lossy(&out.stdout).into_owned();
-    let lines: Vec<String> = text.lines().map(String::from).collect();
-    assert_eq!(
-        lines.len(),
-        paths.len(),
-        "one verdict line per file expected, got {text:?} (stderr {})",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    // The exit code is the largest of the files' codes: 0 valid, 1 rejected.
-    let worst = if lines.iter().all(|l| l.starts_with("VALID ")) {
-        0
-    } else {
-        1
-    };
-    assert_eq!(out.status.code(), Some(worst), "{text}");
-    lines
-}
-
-/// `key=value` fields of a verdict line.
-fn verdict_field<'a>(line: &'a str, key: &str) -> &'a str {
-    line.split_whitespace()
-        .find_map(|t| t.strip_prefix(key).and_then(|r| r.strip_prefix('=')))
-        .unwrap_or_else(|| panic!("no {key} in {line}"))
-}
-
-/// Both checkers on every file; panics when they disagree. Returns which are valid.
-fn agree_all(paths: &[PathBuf]) -> Vec<bool> {
-    let lines = python_verdicts(paths);
-    paths
-        .iter()
-        .zip(&lines)
-        .map(|(path, line)| {
-            eprintln!("{line}");
-            match verify_file(path) {
-                Ok(v) => {
-                    assert!(
-                        line.starts_with(&format!("VALID {}: ", path.display())),
-                        "Rust accepts {}, Python: {line}",
-                        path.display()
-                    );
-                    compare(&v, line, path);
-                    true
-                }
-                Err(e) => {
-                    assert!(
-                        line.starts_with(&format!("REJECTED {}: ", path.display())),
-                        "Rust rejects {} ({e}), Python: {line}",
-                        path.display()
-                    );
-                    false
-                }
-            }
-        })
-        .collect()
-}
-
-fn agree(path: &Path) -> bool {
-    agree_all(&[path.to_path_buf()])[0]
-}
-
-fn compare(v: &Verdict, line: &str, path: &Path) {
-    let ctx = format!("{}: {line}", path.display());
-    assert_eq!(
-        verdict_field(line, "queries_used"),
-        v.queries_used.to_string(),
-        "{ctx}"
-    );
-    assert_eq!(
-        verdict_field(line, "censored"),
-        if v.censored { "yes" } else { "no" },
-        "{ctx}"
-    );
-    let bound = v
-        .certified_lower_bound()
-        .map_or("none".to_string(), |b| b.to_string());
-    assert_eq!(verdict_field(line, "certified_lower_bound"), bound, "{ctx}");
-    assert_eq!(
-        verdict_field(line, "outcome"),
-        outcome_name(&v.outcome),
-        "{ctx}"
-    );
-    let eps = verdict_field(line, "certified_uncertainty");
-    match v.certified_uncertainty {
-        None => assert_eq!(eps, "none", "{ctx}"),
-        Some(u) => {
-            let p: f64 = eps.parse().unwrap_or_else(|_| panic!("{ctx}"));
-            assert_eq!(p.to_bits(), u.to_bits(), "eps_cert differs: {ctx}");
-        }
-    }
-}
+mod common;
+use common::{agree, agree_all, python_present, BIN};
 
 /// Plays one game into `dir`; `None` when the method or adversary does not play the class.
 fn play(dir: &Path, class: &Class, adversary: &str, method: &str, budget: u64) -> Option<PathBuf> {
@@ -290,8 +179,15 @@ fn both_checkers_accept_every_family_and_agree_on_every_number() {
         assert!(names.contains(&required), "no {required} game in {names:?}");
     }
     let paths: Vec<PathBuf> = made.iter().map(|(_, p)| p.clone()).collect();
-    for ((name, _), valid) in made.iter().zip(agree_all(&paths)) {
+    for ((name, path), valid) in made.iter().zip(agree_all(&paths)) {
         assert!(valid, "{name}: both checkers should accept it");
+        // Every adversary's witnesses have pairwise disjoint solution sets, so each of
+        // its certificates certifies a lower bound (not only a refutation).
+        let verdict = verify_file(path).unwrap();
+        assert_eq!(
+            verdict.certified_prefix, verdict.witness_prefix,
+            "{name}: the certificate certifies no lower bound"
+        );
     }
 }
 

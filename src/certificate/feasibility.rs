@@ -1,9 +1,19 @@
 //! Exact verification of separation-oracle feasibility certificates (docs/theory.md §1):
 //! witnesses are the empty set and closed Euclidean balls of radius rho.
+//!
+//! Cost per answer: the cut's nonzeros for the cut's own check, plus per witness O(1)
+//! for an axis cut and O(d) for a dense cut or an `inside` answer. Every comparison is
+//! first tried on f64 intervals that contain the exact values ([`super::filter`]); only
+//! an undecided one is redone in rational arithmetic, and then only over the
+//! coordinates it needs (one for an axis cut), so the outcome is always the exact one.
+
+use std::cell::OnceCell;
+use std::cmp::Ordering;
 
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
 
+use crate::certificate::filter::{dot, Interval};
 use crate::certificate::{ClassVerifier, Outcome};
 use crate::class::{FeasibilityClass, Promise};
 use crate::error::Error;
@@ -13,10 +23,152 @@ use crate::oracle::{Answer, Cut, Normal, Output};
 use crate::transcript::QueryRecord;
 use crate::transcript::{Ending, FinalRecord};
 
-/// A ball witness prepared for exact checks.
-struct ExactBall {
-    center: Vec<BigRational>,
-    radius2: BigRational,
+/// A ball witness prepared for filtered and exact checks.
+struct Ball {
+    center: Vec<Exact>,
+    approx: Vec<Interval>,
+    exact: OnceCell<Vec<BigRational>>,
+    radius: f64,
+}
+
+impl Ball {
+    fn exact_center(&self) -> &[BigRational] {
+        self.exact
+            .get_or_init(|| self.center.iter().map(Exact::to_rational).collect())
+    }
+
+    fn radius2(&self) -> BigRational {
+        let r = f64_to_rational(self.radius);
+        &r * &r
+    }
+
+    /// ||x - c||^2 <= r^2, exactly.
+    fn contains(&self, x: &[f64]) -> bool {
+        let r2 = Interval::point(self.radius).square();
+        let mut dist2 = Interval::point(0.0);
+        for (xi, ci) in x.iter().zip(&self.approx) {
+            dist2 = dist2.plus(Interval::point(*xi).minus(*ci).square());
+            if dist2.lo > r2.hi {
+                return false;
+            }
+        }
+        if let Some(order) = dist2.compare(&r2) {
+            return order != Ordering::Greater;
+        }
+        let r2 = self.radius2();
+        let mut exact = BigRational::zero();
+        for (xi, ci) in x.iter().zip(self.exact_center()) {
+            let d = f64_to_rational(*xi) - ci;
+            exact += &d * &d;
+            if exact > r2 {
+                return false;
+            }
+        }
+        true
+    }
+
+    /// The ball lies strictly inside the cut `{a.y < b}`: s = b - a.c > 0 and
+    /// r^2 ||a||^2 < s^2 (for an axis normal: s > r).
+    fn strictly_inside(&self, cut: &PreparedCut<'_>) -> bool {
+        let r = self.radius;
+        match &cut.cut.normal {
+            Normal::Axis { axis, sign } => {
+                let c = if *sign > 0 {
+                    self.approx[*axis]
+                } else {
+                    self.approx[*axis].negated()
+                };
+                match cut.offset.minus(c).compare(&Interval::point(r)) {
+                    Some(order) => order == Ordering::Greater,
+                    None => {
+                        let c = self.center[*axis].to_rational();
+                        let c = if *sign > 0 { c } else { -c };
+                        cut.cut.offset.to_rational() - c > f64_to_rational(r)
+                    }
+                }
+            }
+            Normal::Dense(a) => {
+                let ac = dot(a
+                    .iter()
+                    .zip(&self.approx)
+                    .filter(|(ai, _)| **ai != 0.0)
+                    .map(|(ai, ci)| (Interval::point(*ai), *ci)));
+                let s = cut.offset.minus(ac);
+                match s.sign() {
+                    Some(Ordering::Less | Ordering::Equal) => return false,
+                    Some(Ordering::Greater) => {
+                        let lhs = Interval::point(r).square().times(cut.norm2);
+                        if let Some(order) = lhs.compare(&s.square()) {
+                            return order == Ordering::Less;
+                        }
+                    }
+                    None => {}
+                }
+                let s =
+                    cut.cut.offset.to_rational() - cut.cut.normal.dot_exact(self.exact_center());
+                if !s.is_positive() {
+                    return false;
+                }
+                self.radius2() * cut.cut.normal.norm_squared_exact() < &s * &s
+            }
+        }
+    }
+}
+
+/// A cut with its filter data, built once per answer.
+struct PreparedCut<'a> {
+    cut: &'a Cut,
+    offset: Interval,
+    /// ||a||^2 as an interval (1 for an axis normal).
+    norm2: Interval,
+}
+
+impl<'a> PreparedCut<'a> {
+    fn new(cut: &'a Cut) -> PreparedCut<'a> {
+        let norm2 = match &cut.normal {
+            Normal::Axis { .. } => Interval::point(1.0),
+            Normal::Dense(a) => a
+                .iter()
+                .filter(|v| **v != 0.0)
+                .fold(Interval::point(0.0), |acc, v| {
+                    acc.plus(Interval::point(*v).square())
+                }),
+        };
+        PreparedCut {
+            cut,
+            offset: Interval::of_exact(&cut.offset),
+            norm2,
+        }
+    }
+
+    /// a.x >= b, exactly: the cut excludes its query.
+    fn excludes(&self, x: &[f64]) -> bool {
+        let ax = match &self.cut.normal {
+            Normal::Axis { axis, sign } => Interval::point(f64::from(*sign) * x[*axis]),
+            Normal::Dense(a) => dot(a
+                .iter()
+                .zip(x)
+                .filter(|(ai, _)| **ai != 0.0)
+                .map(|(ai, xi)| (Interval::point(*ai), Interval::point(*xi)))),
+        };
+        match ax.compare(&self.offset) {
+            Some(order) => order != Ordering::Less,
+            None => exact_dot(&self.cut.normal, x) >= self.cut.offset.to_rational(),
+        }
+    }
+}
+
+/// a.x exactly, converting only the coordinates the normal uses.
+fn exact_dot(normal: &Normal, x: &[f64]) -> BigRational {
+    match normal {
+        Normal::Axis { axis, sign } => f64_to_rational(f64::from(*sign) * x[*axis]),
+        Normal::Dense(a) => a
+            .iter()
+            .zip(x)
+            .filter(|(ai, _)| **ai != 0.0)
+            .map(|(ai, xi)| f64_to_rational(*ai) * f64_to_rational(*xi))
+            .sum(),
+    }
 }
 
 /// Verifies separation-oracle feasibility transcripts (balls and the empty set as
@@ -27,98 +179,62 @@ pub struct FeasibilityVerifier {
     queries_used: u64,
     certified: bool,
     prefix: u64,
-    witnesses: Vec<Witness>,
-    balls: Vec<Option<ExactBall>>,
+    labels: Vec<&'static str>,
+    /// `None` is the empty set.
+    balls: Vec<Option<Ball>>,
+    disjoint: bool,
 }
 
 impl FeasibilityVerifier {
+    /// A verifier for `class`, before the final record is known.
+    pub fn for_class(class: FeasibilityClass) -> FeasibilityVerifier {
+        FeasibilityVerifier {
+            class,
+            ending: Ending::BudgetExhausted,
+            queries_used: 0,
+            certified: false,
+            prefix: 0,
+            labels: Vec::new(),
+            balls: Vec::new(),
+            disjoint: false,
+        }
+    }
+
     /// Checks the witnesses' membership in the class and the certificate's claim.
     pub fn new(
         class: FeasibilityClass,
         final_record: &FinalRecord,
         final_line: u64,
     ) -> Result<FeasibilityVerifier, Error> {
-        let final_error = |reason: String| Error::Transcript {
-            line: final_line,
-            reason,
-        };
-        let (prefix, witnesses) = match &final_record.certificate {
-            None => (0, Vec::new()),
-            Some(w) => (w.prefix, w.instances.clone()),
-        };
-        let mut balls = Vec::with_capacity(witnesses.len());
-        for (k, witness) in witnesses.iter().enumerate() {
-            let label = format!("witness #{} ({})", k + 1, witness.label());
-            balls.push(
-                check_membership(&class, witness)
-                    .map_err(|r| final_error(format!("{label}: {r}")))?,
-            );
-        }
-        let verifier = FeasibilityVerifier {
-            class,
-            ending: final_record.ending.clone(),
-            queries_used: final_record.queries_used,
-            certified: final_record.certificate.is_some(),
-            prefix,
-            witnesses,
-            balls,
-        };
-        if verifier.certified {
-            verifier.check_claim(final_line)?;
-        }
+        let mut verifier = FeasibilityVerifier::for_class(class);
+        verifier.attach(final_record, final_line)?;
         Ok(verifier)
     }
 
-    /// The claim: pairwise disjoint solution sets, or the output refuted at full length.
-    fn check_claim(&self, final_line: u64) -> Result<(), Error> {
-        let error = |reason: String| Error::Transcript {
-            line: final_line,
-            reason,
-        };
-        if self.disjoint_solution_sets() {
-            return Ok(());
-        }
-        let full = self.prefix == self.queries_used;
-        if let (true, Ending::Output { output }) = (full, &self.ending) {
-            if self.refuting_witness(output).is_some() {
-                return Ok(());
+    /// True when the certificate covers the whole game and a witness refutes the output.
+    fn refutes_at_full_length(&self) -> bool {
+        match &self.ending {
+            Ending::Output { output } => {
+                self.certified
+                    && self.prefix == self.queries_used
+                    && self.refuting_witness(output).is_some()
             }
-            return Err(error(
-                "no witness refutes the method's output and the witnesses' solution sets \
-                 are not pairwise disjoint"
-                    .into(),
-            ));
+            _ => false,
         }
-        Err(error(
-            "the witnesses' solution sets are not pairwise disjoint, so they do not show that \
-             the method could not have stopped"
-                .into(),
-        ))
     }
 
+    /// At least two witnesses, pairwise disjoint: closed balls of radius r are disjoint
+    /// iff |c_a - c_b|^2 > (2r)^2; the empty set's only correct output is "empty", a
+    /// ball's are its points.
     fn disjoint_solution_sets(&self) -> bool {
-        let n = self.witnesses.len();
+        let n = self.balls.len();
         if n < 2 {
             return false;
         }
         for i in 0..n {
             for j in (i + 1)..n {
                 let disjoint = match (&self.balls[i], &self.balls[j]) {
-                    (Some(a), Some(b)) => {
-                        // Closed balls of radii r are disjoint iff |ca - cb|^2 > (2r)^2.
-                        let dist2: BigRational = a
-                            .center
-                            .iter()
-                            .zip(&b.center)
-                            .map(|(x, y)| {
-                                let d = x - y;
-                                &d * &d
-                            })
-                            .sum();
-                        let four = BigRational::from_integer(4.into());
-                        dist2 > &a.radius2 * four
-                    }
-                    // The empty set's only correct output is "empty"; a ball's are points.
+                    (Some(a), Some(b)) => balls_apart(a, b),
                     (None, Some(_)) | (Some(_), None) => true,
                     (None, None) => false,
                 };
@@ -132,75 +248,75 @@ impl FeasibilityVerifier {
 
     fn refuting_witness(&self, output: &Output) -> Option<usize> {
         match output {
-            Output::Empty => self
-                .witnesses
-                .iter()
-                .position(|w| !matches!(w, Witness::Empty)),
-            Output::Point { point } => {
-                let x: Vec<BigRational> = point.iter().map(|v| f64_to_rational(*v)).collect();
-                (0..self.witnesses.len()).find(|&k| match &self.balls[k] {
-                    None => true,
-                    Some(ball) => !in_ball(ball, &x),
-                })
+            Output::Empty => self.balls.iter().position(Option::is_some),
+            Output::Point { point } => self.balls.iter().position(|ball| match ball {
+                None => true,
+                Some(ball) => !ball.contains(point),
+            }),
+        }
+    }
+
+    /// The checks of one answer that need no witness; returns its prepared cut.
+    fn answer_checks<'a>(
+        &self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &'a Answer,
+    ) -> Result<Option<PreparedCut<'a>>, Error> {
+        let error = |reason: String| Error::Transcript { line, reason };
+        match answer {
+            Answer::FirstOrder(_) => Err(error(format!(
+                "answer {index}: a first-order answer in a separation-oracle transcript"
+            ))),
+            Answer::Inside => Ok(None),
+            Answer::Cut(cut) => {
+                if !cut.normal.is_well_formed(self.class.dim) {
+                    return Err(error(format!(
+                        "answer {index}: the cut normal is malformed (wrong length, zero, or bad \
+                         axis)"
+                    )));
+                }
+                let prepared = PreparedCut::new(cut);
+                if !prepared.excludes(point) {
+                    return Err(error(format!(
+                        "answer {index}: the query lies on the kept side of its own cut \
+                         (a.x < b), so the cut does not separate it"
+                    )));
+                }
+                Ok(Some(prepared))
             }
         }
     }
 
-    fn query_checks(
-        &mut self,
+    /// Every witness agrees with the answer (`cut` is `None` for `inside`).
+    fn agree_with(
+        &self,
         line: u64,
-        query: &QueryRecord,
-        in_prefix: bool,
+        index: u64,
+        point: &[f64],
+        cut: Option<&PreparedCut<'_>>,
     ) -> Result<(), Error> {
-        let error = |reason: String| Error::Transcript { line, reason };
-        let d = self.class.dim;
-        let x: Vec<BigRational> = query.point.iter().map(|v| f64_to_rational(*v)).collect();
-        match &query.answer {
-            Answer::FirstOrder(_) => {
-                return Err(error(format!(
-                    "answer {}: a first-order answer in a separation-oracle transcript",
-                    query.index
-                )))
-            }
-            Answer::Inside => {}
-            Answer::Cut(cut) => {
-                if !cut.normal.is_well_formed(d) {
-                    return Err(error(format!(
-                        "answer {}: the cut normal is malformed (wrong length, zero, or bad axis)",
-                        query.index
-                    )));
-                }
-                if !excludes(cut, &query.point, &x) {
-                    return Err(error(format!(
-                        "answer {}: the query lies on the kept side of its own cut \
-                         (a.x < b), so the cut does not separate it",
-                        query.index
-                    )));
-                }
-            }
-        }
-        if !in_prefix {
-            return Ok(());
-        }
-        for (k, witness) in self.witnesses.iter().enumerate() {
-            let consistent = match (&query.answer, &self.balls[k]) {
-                (Answer::Inside, None) => false,
-                (Answer::Inside, Some(ball)) => in_ball(ball, &x),
-                (Answer::Cut(_), None) => true,
-                (Answer::Cut(cut), Some(ball)) => ball_strictly_inside(ball, cut),
-                (Answer::FirstOrder(_), _) => false,
+        for (k, ball) in self.balls.iter().enumerate() {
+            let consistent = match (cut, ball) {
+                (None, None) => false,
+                (None, Some(ball)) => ball.contains(point),
+                (Some(_), None) => true,
+                (Some(cut), Some(ball)) => ball.strictly_inside(cut),
             };
             if !consistent {
-                let what = match &query.answer {
-                    Answer::Inside => "the answer `inside` but the query is not in it",
-                    _ => "the cut but does not lie strictly inside it",
+                let what = match cut {
+                    None => "the answer `inside` but the query is not in it",
+                    Some(_) => "the cut but does not lie strictly inside it",
                 };
-                return Err(error(format!(
-                    "answer {}: witness #{} ({}) contradicts {what}",
-                    query.index,
-                    k + 1,
-                    witness.label()
-                )));
+                return Err(Error::Transcript {
+                    line,
+                    reason: format!(
+                        "answer {index}: witness #{} ({}) contradicts {what}",
+                        k + 1,
+                        self.labels[k]
+                    ),
+                });
             }
         }
         Ok(())
@@ -229,21 +345,115 @@ impl FeasibilityVerifier {
     }
 }
 
+/// |c_a - c_b|^2 > 4 r^2, exactly.
+fn balls_apart(a: &Ball, b: &Ball) -> bool {
+    let four_r2 = Interval::point(2.0 * a.radius).square();
+    let dist2 = a
+        .approx
+        .iter()
+        .zip(&b.approx)
+        .fold(Interval::point(0.0), |acc, (x, y)| {
+            acc.plus(x.minus(*y).square())
+        });
+    if let Some(order) = dist2.compare(&four_r2) {
+        return order == Ordering::Greater;
+    }
+    let exact: BigRational = a
+        .exact_center()
+        .iter()
+        .zip(b.exact_center())
+        .map(|(x, y)| {
+            let d = x - y;
+            &d * &d
+        })
+        .sum();
+    exact > a.radius2() * BigRational::from_integer(4.into())
+}
+
 impl ClassVerifier for FeasibilityVerifier {
+    fn attach(&mut self, final_record: &FinalRecord, final_line: u64) -> Result<(), Error> {
+        let final_error = |reason: String| Error::Transcript {
+            line: final_line,
+            reason,
+        };
+        let (prefix, witnesses) = match &final_record.certificate {
+            None => (0, &[][..]),
+            Some(w) => (w.prefix, &w.instances[..]),
+        };
+        let mut balls = Vec::with_capacity(witnesses.len());
+        for (k, witness) in witnesses.iter().enumerate() {
+            let label = format!("witness #{} ({})", k + 1, witness.label());
+            balls.push(
+                check_membership(&self.class, witness)
+                    .map_err(|r| final_error(format!("{label}: {r}")))?,
+            );
+        }
+        self.ending = final_record.ending.clone();
+        self.queries_used = final_record.queries_used;
+        self.certified = final_record.certificate.is_some();
+        self.prefix = prefix;
+        self.labels = witnesses.iter().map(Witness::label).collect();
+        self.balls = balls;
+        self.disjoint = self.disjoint_solution_sets();
+        if self.certified && !self.disjoint && !self.refutes_at_full_length() {
+            return Err(final_error(
+                "the witnesses' solution sets are not pairwise disjoint, so they do not show \
+                 that the method could not have stopped, and they do not refute the method's \
+                 output on the whole game either"
+                    .into(),
+            ));
+        }
+        Ok(())
+    }
+
+    fn answer(
+        &mut self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        self.answer_checks(line, index, point, answer).map(|_| ())
+    }
+
+    fn agree(
+        &mut self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        let cut = match answer {
+            Answer::Cut(cut) => Some(PreparedCut::new(cut)),
+            _ => None,
+        };
+        self.agree_with(line, index, point, cut.as_ref())
+    }
+
+    fn agree_reads_point(&self, answer: &Answer) -> bool {
+        matches!(answer, Answer::Inside)
+    }
+
     fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error> {
-        self.query_checks(line, record, in_prefix)
+        let cut = self.answer_checks(line, record.index, &record.point, &record.answer)?;
+        if in_prefix {
+            self.agree_with(line, record.index, &record.point, cut.as_ref())?;
+        }
+        Ok(())
     }
 
     fn finish(&mut self, _final_line: u64) -> Result<Outcome, Error> {
         Ok(self.judge())
     }
+
+    fn bound_certified(&self) -> bool {
+        self.certified && self.disjoint
+    }
 }
 
-/// Checks that a witness belongs to the class; returns its exact ball form.
-fn check_membership(
-    class: &FeasibilityClass,
-    witness: &Witness,
-) -> Result<Option<ExactBall>, String> {
+/// Checks that a witness belongs to the class; returns its prepared ball form (`None`
+/// for the empty set).
+fn check_membership(class: &FeasibilityClass, witness: &Witness) -> Result<Option<Ball>, String> {
     match witness {
         Witness::Empty => {
             if class.promise == Promise::Nonempty {
@@ -268,51 +478,34 @@ fn check_membership(
                     class.rho
                 ));
             }
-            let r = f64_to_rational(*radius);
-            let big_r = f64_to_rational(class.half_width);
-            let center: Vec<BigRational> = center.iter().map(Exact::to_rational).collect();
-            for (i, c) in center.iter().enumerate() {
-                if c - &r < -big_r.clone() || c + &r > big_r {
+            let approx: Vec<Interval> = center.iter().map(Interval::of_exact).collect();
+            let r = Interval::point(*radius);
+            let big_r = Interval::point(class.half_width);
+            for (i, (c, iv)) in center.iter().zip(&approx).enumerate() {
+                // -R <= c - r and c + r <= R.
+                let low = iv.minus(r).compare(&big_r.negated());
+                let high = iv.plus(r).compare(&big_r);
+                let inside = match (low, high) {
+                    (Some(l), Some(h)) => l != Ordering::Less && h != Ordering::Greater,
+                    _ => {
+                        let c = c.to_rational();
+                        let (r, big_r) =
+                            (f64_to_rational(*radius), f64_to_rational(class.half_width));
+                        &c - &r >= -big_r.clone() && &c + &r <= big_r
+                    }
+                };
+                if !inside {
                     return Err(format!(
                         "the ball leaves the box [-R, R]^d in coordinate {i}"
                     ));
                 }
             }
-            Ok(Some(ExactBall {
-                center,
-                radius2: &r * &r,
+            Ok(Some(Ball {
+                center: center.clone(),
+                approx,
+                exact: OnceCell::new(),
+                radius: *radius,
             }))
         }
     }
-}
-
-/// a.x >= b, exactly (`point` and `x` are the same point, as `f64` and as rationals).
-fn excludes(cut: &Cut, point: &[f64], x: &[BigRational]) -> bool {
-    if let (Normal::Axis { axis, sign }, Exact::Float(b)) = (&cut.normal, &cut.offset) {
-        // Negation is exact in f64, so this comparison is exact.
-        return f64::from(*sign) * point[*axis] >= *b;
-    }
-    cut.normal.dot_exact(x) >= cut.offset.to_rational()
-}
-
-/// B(c, r) strictly inside {a.y < b}: s = b - a.c > 0 and r^2 ||a||^2 < s^2.
-fn ball_strictly_inside(ball: &ExactBall, cut: &Cut) -> bool {
-    let s = cut.offset.to_rational() - cut.normal.dot_exact(&ball.center);
-    if !s.is_positive() {
-        return false;
-    }
-    &ball.radius2 * cut.normal.norm_squared_exact() < &s * &s
-}
-
-/// ||x - c||^2 <= r^2, exactly.
-fn in_ball(ball: &ExactBall, x: &[BigRational]) -> bool {
-    let mut dist2 = BigRational::zero();
-    for (xi, ci) in x.iter().zip(&ball.center) {
-        let d = xi - ci;
-        dist2 += &d * &d;
-        if dist2 > ball.radius2 {
-            return false;
-        }
-    }
-    true
 }

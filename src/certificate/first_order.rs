@@ -10,108 +10,65 @@
 //!   subgradient of W at x_t once W(x_t) = v_t), and W(x_t) <= v_t (every piece and the
 //!   cone at x_t);
 //! - the claim: the witnesses' eps-solution sets, which lie in c_W + (eps / sigma_W)
-//!   B_inf, are pairwise disjoint (||c_A - c_B||_inf > eps/sigma_A + eps/sigma_B), or the
-//!   certificate covers the whole game and the method's output x has W(x) > floor + eps
-//!   for some witness.
+//!   B_inf, are pairwise disjoint (||c_A - c_B||_inf > eps/sigma_A + eps/sigma_B), which
+//!   certifies the lower bound; or the certificate covers the whole game and the
+//!   method's output x has W(x) > floor + eps for some witness, which refutes the output
+//!   and certifies no bound.
 //!
-//! Evaluations first run in `f64` with a rigorous rounding-error bound; only when the
-//! bound cannot decide does the check fall back to exact rational arithmetic, so the
-//! outcome is always the exact one.
+//! Cost per certified answer and witness: a hash look-up of the answer's piece, O(log P)
+//! per coordinate for the pieces with one nonzero slope entry ([`PieceSet`]), the
+//! nonzeros of the dense pieces, and O(d) for the cone. Evaluations run on f64
+//! intervals first and fall back to exact rational arithmetic only when those cannot
+//! decide, so the outcome is always the exact one.
 
-use std::collections::HashMap;
+use std::cmp::Ordering;
 
 use num_rational::BigRational;
 use num_traits::{Signed, Zero};
 
-use crate::certificate::{ClassVerifier, Outcome};
+use crate::certificate::filter::Interval;
+use crate::certificate::pieces::PieceSet;
+pub use crate::certificate::pieces::{FilteredPiece, PieceKey};
+use crate::certificate::{ClassVerifier, Outcome, MAX_CHECK_WORK};
 use crate::class::{FirstOrderClass, LipschitzNorm};
 use crate::error::Error;
 use crate::exact::{f64_to_rational, Exact};
 use crate::instance::{AffinePiece, FunctionWitness, Witness};
 use crate::oracle::{Answer, Output};
-use crate::transcript::QueryRecord;
 use crate::transcript::{Ending, FinalRecord};
-
-/// A piece prepared for filtered evaluation.
-#[derive(Clone, Debug)]
-pub struct FilteredPiece {
-    exact: AffinePiece,
-    terms: Vec<(usize, f64)>,
-    intercept: f64,
-}
-
-impl FilteredPiece {
-    /// Prepares a piece.
-    pub fn new(piece: AffinePiece) -> FilteredPiece {
-        let terms = piece
-            .slope
-            .iter()
-            .enumerate()
-            .filter(|(_, a)| **a != Exact::ZERO)
-            .map(|(i, a)| (i, a.to_f64()))
-            .collect();
-        FilteredPiece {
-            intercept: piece.intercept.to_f64(),
-            terms,
-            exact: piece,
-        }
-    }
-
-    /// The exact piece.
-    pub fn exact(&self) -> &AffinePiece {
-        &self.exact
-    }
-
-    /// The piece's value at `x` in `f64` and a rigorous bound on its error; `None` when
-    /// the sum overflows.
-    pub fn approx_at(&self, x: &[f64]) -> Option<(f64, f64)> {
-        let mut approx = self.intercept;
-        let mut magnitude = self.intercept.abs();
-        for (i, a) in &self.terms {
-            let t = a * x[*i];
-            approx += t;
-            magnitude += t.abs();
-        }
-        let n = self.terms.len() as f64;
-        let err = (n + 4.0) * f64::EPSILON * magnitude + (n + 2.0) * 1e-300;
-        (approx.is_finite() && err.is_finite()).then_some((approx, err))
-    }
-
-    /// Compares the piece's value at `x` with `value`, exactly (`x` as f64 and, lazily,
-    /// as rationals).
-    pub fn cmp_at(&self, x: &[f64], value: &Exact) -> std::cmp::Ordering {
-        let mut approx = self.intercept;
-        let mut magnitude = self.intercept.abs();
-        for (i, a) in &self.terms {
-            let t = a * x[*i];
-            approx += t;
-            magnitude += t.abs();
-        }
-        let v = value.to_f64();
-        let n = self.terms.len() as f64;
-        let err = (n + 4.0) * f64::EPSILON * magnitude + (n + 2.0) * 1e-300;
-        let err_v = f64::EPSILON * v.abs() + 1e-300;
-        if approx.is_finite() && magnitude.is_finite() {
-            if approx + err < v - err_v {
-                return std::cmp::Ordering::Less;
-            }
-            if approx - err > v + err_v {
-                return std::cmp::Ordering::Greater;
-            }
-        }
-        let xr: Vec<BigRational> = x.iter().map(|xi| f64_to_rational(*xi)).collect();
-        self.exact.value_at(&xr).cmp(&value.to_rational())
-    }
-}
 
 /// The exact dual norm of `g` compared with `bound`: true when ||g||_* <= bound.
 pub fn dual_norm_at_most(g: &[Exact], norm: LipschitzNorm, bound: f64) -> bool {
+    let nonzero = || g.iter().filter(|x| **x != Exact::ZERO);
+    let limit = Interval::point(bound);
+    let filtered = match norm {
+        LipschitzNorm::L1 => {
+            let mut all = Some(Ordering::Less);
+            for x in nonzero() {
+                match Interval::of_exact(x).abs().compare(&limit) {
+                    Some(Ordering::Greater) => return false,
+                    Some(_) => {}
+                    None => all = None,
+                }
+            }
+            all
+        }
+        LipschitzNorm::L2 => nonzero()
+            .fold(Interval::point(0.0), |acc, x| {
+                acc.plus(Interval::of_exact(x).square())
+            })
+            .compare(&limit.square()),
+        LipschitzNorm::Linf => nonzero()
+            .fold(Interval::point(0.0), |acc, x| {
+                acc.plus(Interval::of_exact(x).abs())
+            })
+            .compare(&limit),
+    };
+    if let Some(order) = filtered {
+        return order != Ordering::Greater;
+    }
     let bound = f64_to_rational(bound);
-    let abs: Vec<BigRational> = g
-        .iter()
-        .filter(|x| **x != Exact::ZERO)
-        .map(|x| x.to_rational().abs())
-        .collect();
+    let abs: Vec<BigRational> = nonzero().map(|x| x.to_rational().abs()).collect();
     match norm {
         // Lipschitz in l1: subgradients bounded in l_inf.
         LipschitzNorm::L1 => abs.iter().all(|a| *a <= bound),
@@ -124,14 +81,7 @@ pub fn dual_norm_at_most(g: &[Exact], norm: LipschitzNorm, bound: f64) -> bool {
     }
 }
 
-/// A function witness prepared for checks.
-struct Prepared {
-    witness: FunctionWitness,
-    pieces: Vec<FilteredPiece>,
-    keys: HashMap<String, usize>,
-}
-
-/// A canonical text key of a piece (exact values).
+/// A canonical text key of a piece (exact values); [`PieceKey`] is the fast form.
 pub fn piece_key(piece: &AffinePiece) -> String {
     let mut key = piece.intercept.to_exact_string();
     for a in &piece.slope {
@@ -139,6 +89,35 @@ pub fn piece_key(piece: &AffinePiece) -> String {
         key.push_str(&a.to_exact_string());
     }
     key
+}
+
+/// A function witness prepared for checks.
+struct Prepared {
+    witness: FunctionWitness,
+    pieces: PieceSet,
+    center: Vec<Interval>,
+    floor: Interval,
+    slope: Interval,
+}
+
+impl Prepared {
+    /// floor + sigma ||x - c||_inf compared with `value`, exactly.
+    fn cone_cmp(&self, x: &[f64], value: &Exact, value_iv: Interval) -> Ordering {
+        let dist = x
+            .iter()
+            .zip(&self.center)
+            .fold(Interval::point(0.0), |m, (xi, ci)| {
+                m.max(Interval::point(*xi).minus(*ci).abs())
+            });
+        let cone = self.floor.plus(self.slope.times(dist));
+        if let Some(order) = cone.compare(&value_iv) {
+            return order;
+        }
+        let xr: Vec<BigRational> = x.iter().map(|v| f64_to_rational(*v)).collect();
+        let w = &self.witness;
+        let cone = w.floor.to_rational() + w.slope.to_rational() * w.center_distance(&xr);
+        cone.cmp(&value.to_rational())
+    }
 }
 
 /// Verifies first-order transcripts.
@@ -149,79 +128,36 @@ pub struct FirstOrderVerifier {
     certified: bool,
     prefix: u64,
     witnesses: Vec<Prepared>,
+    separated: bool,
 }
 
 impl FirstOrderVerifier {
+    /// A verifier for `class`, before the final record is known.
+    pub fn for_class(class: FirstOrderClass) -> FirstOrderVerifier {
+        FirstOrderVerifier {
+            class,
+            ending: Ending::BudgetExhausted,
+            queries_used: 0,
+            certified: false,
+            prefix: 0,
+            witnesses: Vec::new(),
+            separated: false,
+        }
+    }
+
     /// Checks the witnesses' membership in the class and the certificate's claim.
     pub fn new(
         class: FirstOrderClass,
         final_record: &FinalRecord,
         final_line: u64,
     ) -> Result<FirstOrderVerifier, Error> {
-        let error = |reason: String| Error::Transcript {
-            line: final_line,
-            reason,
-        };
-        let (prefix, instances) = match &final_record.certificate {
-            None => (0, Vec::new()),
-            Some(w) => (w.prefix, w.instances.clone()),
-        };
-        let mut witnesses = Vec::new();
-        for (k, instance) in instances.into_iter().enumerate() {
-            let label = format!("witness #{}", k + 1);
-            let Witness::Function(w) = instance else {
-                return Err(error(format!(
-                    "{label} is a {}, not a function",
-                    instance.label()
-                )));
-            };
-            check_function(&class, &w).map_err(|r| error(format!("{label}: {r}")))?;
-            let pieces: Vec<FilteredPiece> =
-                w.pieces.iter().cloned().map(FilteredPiece::new).collect();
-            let keys = w
-                .pieces
-                .iter()
-                .enumerate()
-                .map(|(i, p)| (piece_key(p), i))
-                .collect();
-            witnesses.push(Prepared {
-                witness: w,
-                pieces,
-                keys,
-            });
-        }
-        let verifier = FirstOrderVerifier {
-            class,
-            ending: final_record.ending.clone(),
-            queries_used: final_record.queries_used,
-            certified: final_record.certificate.is_some(),
-            prefix,
-            witnesses,
-        };
-        if verifier.certified && !verifier.separated() {
-            let full = verifier.prefix == verifier.queries_used;
-            let refuted = match (&verifier.ending, full) {
-                (
-                    Ending::Output {
-                        output: Output::Point { point },
-                    },
-                    true,
-                ) => verifier.refuting_witness(point).is_some(),
-                _ => false,
-            };
-            if !refuted {
-                return Err(error(
-                    "the witnesses' eps-solution sets are not pairwise disjoint (centres too \
-                     close for their cone slopes) and no witness refutes the output"
-                        .into(),
-                ));
-            }
-        }
+        let mut verifier = FirstOrderVerifier::for_class(class);
+        verifier.attach(final_record, final_line)?;
         Ok(verifier)
     }
 
     /// Pairwise ||c_A - c_B||_inf > eps/sigma_A + eps/sigma_B, with at least two witnesses.
-    fn separated(&self) -> bool {
+    fn pairwise_separated(&self) -> bool {
         let n = self.witnesses.len();
         if n < 2 {
             return false;
@@ -231,14 +167,8 @@ impl FirstOrderVerifier {
             for j in (i + 1)..n {
                 let a = &self.witnesses[i].witness;
                 let b = &self.witnesses[j].witness;
-                let distance = a
-                    .center
-                    .iter()
-                    .zip(&b.center)
-                    .map(|(x, y)| (x.to_rational() - y.to_rational()).abs())
-                    .fold(BigRational::zero(), |m, v| if v > m { v } else { m });
                 let needed = &eps / a.slope.to_rational() + &eps / b.slope.to_rational();
-                if distance <= needed {
+                if center_distance(a, b) <= needed {
                     return false;
                 }
             }
@@ -264,19 +194,13 @@ impl FirstOrderVerifier {
             return None;
         }
         let mut best: Option<BigRational> = None;
+        let one = BigRational::from_integer(1.into());
         for i in 0..n {
             for j in (i + 1)..n {
                 let a = &self.witnesses[i].witness;
                 let b = &self.witnesses[j].witness;
-                let distance = a
-                    .center
-                    .iter()
-                    .zip(&b.center)
-                    .map(|(x, y)| (x.to_rational() - y.to_rational()).abs())
-                    .fold(BigRational::zero(), |m, v| if v > m { v } else { m });
-                let one = BigRational::from_integer(1.into());
-                let value =
-                    distance / (&one / a.slope.to_rational() + &one / b.slope.to_rational());
+                let value = center_distance(a, b)
+                    / (&one / a.slope.to_rational() + &one / b.slope.to_rational());
                 best = Some(match best {
                     Some(m) if m < value => m,
                     _ => value,
@@ -288,18 +212,21 @@ impl FirstOrderVerifier {
     }
 }
 
+/// ||c_A - c_B||_inf, exact.
+fn center_distance(a: &FunctionWitness, b: &FunctionWitness) -> BigRational {
+    a.center
+        .iter()
+        .zip(&b.center)
+        .map(|(x, y)| (x.to_rational() - y.to_rational()).abs())
+        .fold(BigRational::zero(), |m, v| if v > m { v } else { m })
+}
+
 /// The largest `f64` at most `value` (saturating at -`f64::MAX`), exactly decided: a
 /// certified lower estimate must not round up.
 pub fn f64_at_most(value: &BigRational) -> f64 {
     let f = crate::exact::nearest_f64(value);
     if f.is_finite() && f64_to_rational(f) > *value {
-        let down = if f == 0.0 {
-            -f64::from_bits(1)
-        } else if f > 0.0 {
-            f64::from_bits(f.to_bits() - 1)
-        } else {
-            f64::from_bits(f.to_bits() + 1)
-        };
+        let down = crate::exact::next_down(f);
         if down.is_finite() {
             return down;
         }
@@ -320,7 +247,14 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
     }
     let r = f64_to_rational(class.half_width);
     for (i, c) in w.center.iter().enumerate() {
-        if c.to_rational().abs() > r {
+        let inside = match Interval::of_exact(c)
+            .abs()
+            .compare(&Interval::point(class.half_width))
+        {
+            Some(order) => order != Ordering::Greater,
+            None => c.to_rational().abs() <= r,
+        };
+        if !inside {
             return Err(format!("the centre leaves the box in coordinate {i}"));
         }
     }
@@ -333,7 +267,8 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
     }
     let center_f64: Vec<f64> = w.center.iter().map(Exact::to_f64).collect();
     let center_exact = w.center.iter().all(Exact::is_f64);
-    let center_r: Vec<BigRational> = w.center.iter().map(Exact::to_rational).collect();
+    let center_r: OnceCenter<'_> = OnceCenter::new(&w.center);
+    let floor_iv = Interval::of_exact(&w.floor);
     for (k, piece) in w.pieces.iter().enumerate() {
         if piece.slope.len() != d {
             return Err(format!(
@@ -350,10 +285,10 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
             ));
         }
         let above = if center_exact {
-            FilteredPiece::new(piece.clone()).cmp_at(&center_f64, &w.floor)
-                == std::cmp::Ordering::Greater
+            FilteredPiece::new(piece.clone()).cmp_with(&center_f64, &w.floor, floor_iv)
+                == Ordering::Greater
         } else {
-            piece.value_at(&center_r) > w.floor.to_rational()
+            piece.value_at(center_r.get()) > w.floor.to_rational()
         };
         if above {
             return Err(format!(
@@ -365,57 +300,147 @@ pub fn check_function(class: &FirstOrderClass, w: &FunctionWitness) -> Result<()
     Ok(())
 }
 
+/// The centre in rationals, converted on first use.
+struct OnceCenter<'a> {
+    center: &'a [Exact],
+    cell: std::cell::OnceCell<Vec<BigRational>>,
+}
+
+impl<'a> OnceCenter<'a> {
+    fn new(center: &'a [Exact]) -> OnceCenter<'a> {
+        OnceCenter {
+            center,
+            cell: std::cell::OnceCell::new(),
+        }
+    }
+
+    fn get(&self) -> &[BigRational] {
+        self.cell
+            .get_or_init(|| self.center.iter().map(Exact::to_rational).collect())
+    }
+}
+
 impl ClassVerifier for FirstOrderVerifier {
-    fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error> {
-        let error = |reason: String| Error::Transcript { line, reason };
-        let Answer::FirstOrder(answer) = &record.answer else {
+    fn attach(&mut self, final_record: &FinalRecord, final_line: u64) -> Result<(), Error> {
+        let error = |reason: String| Error::Transcript {
+            line: final_line,
+            reason,
+        };
+        let (prefix, instances) = match &final_record.certificate {
+            None => (0, &[][..]),
+            Some(w) => (w.prefix, &w.instances[..]),
+        };
+        let mut witnesses = Vec::new();
+        for (k, instance) in instances.iter().enumerate() {
+            let label = format!("witness #{}", k + 1);
+            let Witness::Function(w) = instance else {
+                return Err(error(format!(
+                    "{label} is a {}, not a function",
+                    instance.label()
+                )));
+            };
+            check_function(&self.class, w).map_err(|r| error(format!("{label}: {r}")))?;
+            witnesses.push(Prepared {
+                pieces: PieceSet::new(w.pieces.clone()),
+                center: w.center.iter().map(Interval::of_exact).collect(),
+                floor: Interval::of_exact(&w.floor),
+                slope: Interval::of_exact(&w.slope),
+                witness: w.clone(),
+            });
+        }
+        let dense: u64 = witnesses.iter().map(|w| w.pieces.dense_work()).sum();
+        if dense.saturating_mul(prefix) > MAX_CHECK_WORK {
             return Err(error(format!(
-                "answer {}: a separation answer in a first-order transcript",
-                record.index
+                "checking the certificate needs {prefix} answers x {dense} dense piece \
+                 entries, more than the limit of {MAX_CHECK_WORK} evaluations"
+            )));
+        }
+        self.ending = final_record.ending.clone();
+        self.queries_used = final_record.queries_used;
+        self.certified = final_record.certificate.is_some();
+        self.prefix = prefix;
+        self.witnesses = witnesses;
+        self.separated = self.pairwise_separated();
+        if self.certified && !self.separated {
+            let full = self.prefix == self.queries_used;
+            let refuted = match (&self.ending, full) {
+                (
+                    Ending::Output {
+                        output: Output::Point { point },
+                    },
+                    true,
+                ) => self.refuting_witness(point).is_some(),
+                _ => false,
+            };
+            if !refuted {
+                return Err(error(
+                    "the witnesses' eps-solution sets are not pairwise disjoint (centres too \
+                     close for their cone slopes) and no witness refutes the output"
+                        .into(),
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    fn answer(
+        &mut self,
+        line: u64,
+        index: u64,
+        _point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        let error = |reason: String| Error::Transcript { line, reason };
+        let Answer::FirstOrder(answer) = answer else {
+            return Err(error(format!(
+                "answer {index}: a separation answer in a first-order transcript"
             )));
         };
         if answer.subgradient.len() != self.class.dim {
             return Err(error(format!(
-                "answer {}: the subgradient has {} entries, expected {}",
-                record.index,
+                "answer {index}: the subgradient has {} entries, expected {}",
                 answer.subgradient.len(),
                 self.class.dim
             )));
         }
         if !dual_norm_at_most(&answer.subgradient, self.class.norm, self.class.lipschitz) {
             return Err(error(format!(
-                "answer {}: the subgradient is longer than L = {} in the dual norm",
-                record.index, self.class.lipschitz
+                "answer {index}: the subgradient is longer than L = {} in the dual norm",
+                self.class.lipschitz
             )));
         }
-        if !in_prefix {
+        Ok(())
+    }
+
+    fn agree(&mut self, line: u64, index: u64, x: &[f64], answer: &Answer) -> Result<(), Error> {
+        let error = |reason: String| Error::Transcript { line, reason };
+        let Answer::FirstOrder(answer) = answer else {
+            return Ok(());
+        };
+        if self.witnesses.is_empty() {
             return Ok(());
         }
-        let own = AffinePiece::through(&record.point, &answer.value, &answer.subgradient);
-        let key = piece_key(&own);
-        let x = &record.point;
+        let own = AffinePiece::through(x, &answer.value, &answer.subgradient);
+        let key = PieceKey::of(&own);
+        let value = &answer.value;
+        let value_iv = Interval::of_exact(value);
         for (k, prepared) in self.witnesses.iter().enumerate() {
-            let label = format!("answer {}: witness #{}", record.index, k + 1);
-            if !prepared.keys.contains_key(&key) {
+            let label = format!("answer {index}: witness #{}", k + 1);
+            if !prepared.pieces.contains(&key) {
                 return Err(error(format!(
                     "{label} lacks the answer's affine piece, so the answered subgradient is \
                      not shown to be one of the witness"
                 )));
             }
-            for (p, piece) in prepared.pieces.iter().enumerate() {
-                if piece.cmp_at(x, &answer.value) == std::cmp::Ordering::Greater {
-                    return Err(error(format!(
-                        "{label}: its piece {} exceeds the answered value at the query, so the \
-                         witness does not reproduce the answer (or the transcript is not \
-                         consistent with any convex function)",
-                        p + 1
-                    )));
-                }
+            if let Some(p) = prepared.pieces.exceeding(x, value, value_iv) {
+                return Err(error(format!(
+                    "{label}: its piece {} exceeds the answered value at the query, so the \
+                     witness does not reproduce the answer (or the transcript is not \
+                     consistent with any convex function)",
+                    p + 1
+                )));
             }
-            let w = &prepared.witness;
-            let xr: Vec<BigRational> = x.iter().map(|v| f64_to_rational(*v)).collect();
-            let cone = w.floor.to_rational() + w.slope.to_rational() * w.center_distance(&xr);
-            if cone > answer.value.to_rational() {
+            if prepared.cone_cmp(x, value, value_iv) == Ordering::Greater {
                 return Err(error(format!(
                     "{label}: its cone exceeds the answered value at the query"
                 )));
@@ -453,5 +478,9 @@ impl ClassVerifier for FirstOrderVerifier {
         } else {
             None
         }
+    }
+
+    fn bound_certified(&self) -> bool {
+        self.certified && self.separated
     }
 }

@@ -12,21 +12,21 @@
 //!   < b`), and an `inside` answer's query is a generating point or lies in the fibre
 //!   ball;
 //! - every cut excludes its query (`a.x >= b`);
-//! - the claim: the witnesses' correct outputs are pairwise disjoint, or the method's
-//!   output is wrong for one of them at full length. A point output is correct for a
+//! - the claim: the witnesses' correct outputs are pairwise disjoint (this certifies the
+//!   lower bound), or the method's output is wrong for one of them at full length (this
+//!   refutes the output and certifies no bound). A point output is correct for a
 //!   witness only when it is mixed-integer (first n coordinates exactly integral) and
 //!   lies in the witness's fibre ball.
 
 use num_rational::BigRational;
 
-use crate::certificate::{ClassVerifier, Outcome};
+use crate::certificate::{ClassVerifier, Outcome, MAX_CHECK_WORK};
 use crate::class::lattice::{is_mixed_integer, LatticeClass};
 use crate::error::Error;
 use crate::exact::f64_to_rational;
 use crate::instance::lattice::ExactHull;
 use crate::instance::Witness;
 use crate::oracle::{Answer, Output};
-use crate::transcript::QueryRecord;
 use crate::transcript::{Ending, FinalRecord};
 
 /// Most lattice points the enumeration cross-check visits.
@@ -42,63 +42,32 @@ pub struct LatticeVerifier {
     labels: Vec<&'static str>,
     /// `None` is the empty set.
     hulls: Vec<Option<ExactHull>>,
+    disjoint: bool,
 }
 
 impl LatticeVerifier {
+    /// A verifier for `class`, before the final record is known.
+    pub fn for_class(class: LatticeClass) -> LatticeVerifier {
+        LatticeVerifier {
+            class,
+            ending: Ending::BudgetExhausted,
+            queries_used: 0,
+            certified: false,
+            prefix: 0,
+            labels: Vec::new(),
+            hulls: Vec::new(),
+            disjoint: false,
+        }
+    }
+
     /// Checks the witnesses' membership in the class and the certificate's claim.
     pub fn new(
         class: LatticeClass,
         final_record: &FinalRecord,
         final_line: u64,
     ) -> Result<LatticeVerifier, Error> {
-        let final_error = |reason: String| Error::Transcript {
-            line: final_line,
-            reason,
-        };
-        let (prefix, witnesses) = match &final_record.certificate {
-            None => (0, Vec::new()),
-            Some(w) => (w.prefix, w.instances.clone()),
-        };
-        let lattice = class.lattice_points(CROSS_CHECK_LIMIT);
-        let mut hulls = Vec::with_capacity(witnesses.len());
-        let mut labels = Vec::with_capacity(witnesses.len());
-        for (k, witness) in witnesses.iter().enumerate() {
-            let label = format!("witness #{} ({})", k + 1, witness.label());
-            labels.push(witness.label());
-            match witness {
-                Witness::Empty => hulls.push(None),
-                Witness::LatticeHull(hull) => {
-                    let exact = ExactHull::new(&class, hull)
-                        .map_err(|r| final_error(format!("{label}: {r}")))?;
-                    if let Some(points) = &lattice {
-                        if let Some(z) = exact.cross_check(points) {
-                            return Err(final_error(format!(
-                                "{label}: the enumeration cross-check cannot separate the \
-                                 lattice point {z:?} from the hull"
-                            )));
-                        }
-                    }
-                    hulls.push(Some(exact));
-                }
-                _ => {
-                    return Err(final_error(format!(
-                        "{label}: not an instance of a lattice class"
-                    )))
-                }
-            }
-        }
-        let verifier = LatticeVerifier {
-            class,
-            ending: final_record.ending.clone(),
-            queries_used: final_record.queries_used,
-            certified: final_record.certificate.is_some(),
-            prefix,
-            labels,
-            hulls,
-        };
-        if verifier.certified {
-            verifier.check_claim(final_line)?;
-        }
+        let mut verifier = LatticeVerifier::for_class(class);
+        verifier.attach(final_record, final_line)?;
         Ok(verifier)
     }
 
@@ -123,7 +92,7 @@ impl LatticeVerifier {
     }
 
     fn check_claim(&self, final_line: u64) -> Result<(), Error> {
-        if self.disjoint_solution_sets() {
+        if self.disjoint {
             return Ok(());
         }
         let full = self.prefix == self.queries_used;
@@ -160,40 +129,53 @@ impl LatticeVerifier {
         }
     }
 
-    fn query_checks(
-        &mut self,
+    /// The checks of one answer that need no witness.
+    fn answer_checks(
+        &self,
         line: u64,
-        query: &QueryRecord,
-        in_prefix: bool,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
     ) -> Result<(), Error> {
         let error = |reason: String| Error::Transcript { line, reason };
         let dim = self.class.query_dim();
-        let x: Vec<BigRational> = query.point.iter().map(|v| f64_to_rational(*v)).collect();
-        if let Answer::FirstOrder(_) = &query.answer {
+        if let Answer::FirstOrder(_) = answer {
             return Err(error(format!(
-                "answer {}: a first-order answer in a separation-oracle transcript",
-                query.index
+                "answer {index}: a first-order answer in a separation-oracle transcript"
             )));
         }
-        if let Answer::Cut(cut) = &query.answer {
+        if let Answer::Cut(cut) = answer {
             if !cut.normal.is_well_formed(dim) {
                 return Err(error(format!(
-                    "answer {}: the cut normal is malformed (wrong length, zero, or bad axis)",
-                    query.index
+                    "answer {index}: the cut normal is malformed (wrong length, zero, or bad axis)"
                 )));
             }
-            if cut.normal.dot_exact(&x) < cut.offset.to_rational() {
+            if !excludes(cut, point) {
                 return Err(error(format!(
-                    "answer {}: the query lies on the kept side of its own cut (a.x < b)",
-                    query.index
+                    "answer {index}: the query lies on the kept side of its own cut (a.x < b)"
                 )));
             }
         }
-        if !in_prefix {
+        Ok(())
+    }
+
+    /// Every witness agrees with the answer.
+    fn agree_checks(
+        &self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        if self.hulls.is_empty() {
             return Ok(());
         }
+        let x: Vec<BigRational> = match answer {
+            Answer::Inside => point.iter().map(|v| f64_to_rational(*v)).collect(),
+            _ => Vec::new(),
+        };
         for (k, hull) in self.hulls.iter().enumerate() {
-            let consistent = match (&query.answer, hull) {
+            let consistent = match (answer, hull) {
                 (Answer::Inside, None) => false,
                 (Answer::Inside, Some(h)) => h.contains(&x),
                 (Answer::Cut(_), None) => true,
@@ -201,19 +183,21 @@ impl LatticeVerifier {
                 _ => false,
             };
             if !consistent {
-                let what = match &query.answer {
+                let what = match answer {
                     Answer::Inside => {
                         "the answer `inside`: the query is neither a generating point nor in \
                          the fibre ball"
                     }
                     _ => "the cut: a generating point or the fibre ball is not strictly inside it",
                 };
-                return Err(error(format!(
-                    "answer {}: witness #{} ({}) contradicts {what}",
-                    query.index,
-                    k + 1,
-                    self.labels[k]
-                )));
+                return Err(Error::Transcript {
+                    line,
+                    reason: format!(
+                        "answer {index}: witness #{} ({}) contradicts {what}",
+                        k + 1,
+                        self.labels[k]
+                    ),
+                });
             }
         }
         Ok(())
@@ -239,12 +223,121 @@ impl LatticeVerifier {
     }
 }
 
+/// a.x >= b, exactly (f64 intervals first, rationals when they cannot decide).
+fn excludes(cut: &crate::oracle::Cut, x: &[f64]) -> bool {
+    use crate::certificate::filter::{dot, Interval};
+    let ax = dot((0..x.len())
+        .map(|i| (cut.normal.get(i), x[i]))
+        .filter(|(a, _)| *a != 0.0)
+        .map(|(a, xi)| (Interval::point(a), Interval::point(xi))));
+    match ax.compare(&Interval::of_exact(&cut.offset)) {
+        Some(order) => order != std::cmp::Ordering::Less,
+        None => {
+            let exact: BigRational = (0..x.len())
+                .map(|i| (cut.normal.get(i), x[i]))
+                .filter(|(a, _)| *a != 0.0)
+                .map(|(a, xi)| f64_to_rational(a) * f64_to_rational(xi))
+                .sum();
+            exact >= cut.offset.to_rational()
+        }
+    }
+}
+
 impl ClassVerifier for LatticeVerifier {
-    fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error> {
-        self.query_checks(line, record, in_prefix)
+    fn attach(&mut self, final_record: &FinalRecord, final_line: u64) -> Result<(), Error> {
+        let final_error = |reason: String| Error::Transcript {
+            line: final_line,
+            reason,
+        };
+        let (prefix, witnesses) = match &final_record.certificate {
+            None => (0, &[][..]),
+            Some(w) => (w.prefix, &w.instances[..]),
+        };
+        let points: u64 = witnesses
+            .iter()
+            .map(|w| match w {
+                Witness::LatticeHull(h) => h.points.len() as u64,
+                _ => 0,
+            })
+            .sum();
+        let work = points.saturating_mul(self.class.query_dim() as u64);
+        if work.saturating_mul(prefix) > MAX_CHECK_WORK {
+            return Err(final_error(format!(
+                "checking the certificate needs {prefix} answers x {points} generating points \
+                 x {} coordinates, more than the limit of {MAX_CHECK_WORK} evaluations",
+                self.class.query_dim()
+            )));
+        }
+        let lattice = self.class.lattice_points(CROSS_CHECK_LIMIT);
+        let mut hulls = Vec::with_capacity(witnesses.len());
+        let mut labels = Vec::with_capacity(witnesses.len());
+        for (k, witness) in witnesses.iter().enumerate() {
+            let label = format!("witness #{} ({})", k + 1, witness.label());
+            labels.push(witness.label());
+            match witness {
+                Witness::Empty => hulls.push(None),
+                Witness::LatticeHull(hull) => {
+                    let exact = ExactHull::new(&self.class, hull)
+                        .map_err(|r| final_error(format!("{label}: {r}")))?;
+                    if let Some(points) = &lattice {
+                        if let Some(z) = exact.cross_check(points) {
+                            return Err(final_error(format!(
+                                "{label}: the enumeration cross-check cannot separate the \
+                                 lattice point {z:?} from the hull"
+                            )));
+                        }
+                    }
+                    hulls.push(Some(exact));
+                }
+                _ => {
+                    return Err(final_error(format!(
+                        "{label}: not an instance of a lattice class"
+                    )))
+                }
+            }
+        }
+        self.ending = final_record.ending.clone();
+        self.queries_used = final_record.queries_used;
+        self.certified = final_record.certificate.is_some();
+        self.prefix = prefix;
+        self.labels = labels;
+        self.hulls = hulls;
+        self.disjoint = self.disjoint_solution_sets();
+        if self.certified {
+            self.check_claim(final_line)?;
+        }
+        Ok(())
+    }
+
+    fn answer(
+        &mut self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        self.answer_checks(line, index, point, answer)
+    }
+
+    fn agree(
+        &mut self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error> {
+        self.agree_checks(line, index, point, answer)
+    }
+
+    fn agree_reads_point(&self, answer: &Answer) -> bool {
+        matches!(answer, Answer::Inside)
     }
 
     fn finish(&mut self, _final_line: u64) -> Result<Outcome, Error> {
         Ok(self.judge())
+    }
+
+    fn bound_certified(&self) -> bool {
+        self.certified && self.disjoint
     }
 }

@@ -8,23 +8,54 @@
 //! ball B(c, r) lies strictly inside the cut `{a.y < b}` iff `s = b - a.c > 0` and
 //! `r^2 ||a||^2 < s^2`.
 //!
-//! What a valid certificate with prefix T* proves: every witness agrees with the first
-//! T* answers, every witness belongs to the class, and either the witnesses' solution
-//! sets are pairwise disjoint (so no output is correct for all of them: no method that
-//! saw only these answers could stop), or T* covers the whole game and the method's
-//! output is wrong for one witness. The certified lower bound is then T* + 1 queries.
+//! What a valid certificate with prefix T* proves (docs/theory.md §7): every witness
+//! agrees with the first T* answers and belongs to the class, and
+//! - when there are at least two witnesses and their solution sets (their correct
+//!   outputs) are pairwise disjoint, no output is correct for all of them, so no method
+//!   that saw only these T* answers could have stopped: the **certified lower bound** is
+//!   T* + 1 queries ([`Verdict::certified_lower_bound`]);
+//! - when T* covers the whole game and the method's output is wrong for one witness, the
+//!   output is **refuted** by that witness ([`Outcome::OutputRefuted`],
+//!   [`Outcome::EmptyRefuted`]). A refutation is an outcome only: it shows that this one
+//!   output was wrong, not that no method could have stopped, so it never gives or
+//!   raises a lower bound. A certificate whose witnesses are not pairwise disjoint is
+//!   valid only when it refutes the output, and then certifies no lower bound.
+//!
+//! Limits (with [`crate::transcript::limits`] and [`crate::exact`], they keep the work
+//! roughly linear in the size of the input; `tools/check_certificate.py` applies the same
+//! ones): at most [`MAX_WITNESSES`] witnesses per certificate, and at most
+//! [`MAX_CHECK_WORK`] term evaluations for the witness parts that cannot be checked in
+//! time independent of their size (dense function pieces, lattice generating points).
 
+mod driver;
 pub mod feasibility;
+pub mod filter;
 pub mod first_order;
 pub mod lattice;
+pub mod pieces;
+pub mod stream;
 pub mod universal;
+
+pub use stream::StreamingVerifier;
+
+/// Most witnesses one certificate may hold (the adversaries write two; pairwise
+/// disjointness is checked over all pairs).
+pub const MAX_WITNESSES: usize = 16;
+
+/// Most term evaluations the checks of a certified prefix may need for dense function
+/// pieces and lattice generating points: T* times the sum, over witnesses, of the
+/// nonzero slope entries of the function pieces with two or more of them, and of the
+/// number of generating points times the query dimension. Beyond it the certificate is
+/// refused, with a message saying so.
+pub const MAX_CHECK_WORK: u64 = 50_000_000;
 
 use serde::{Deserialize, Serialize};
 
-use crate::class::Class;
+use crate::certificate::driver::{out_of_order, Checker};
 use crate::error::Error;
-use crate::oracle::Output;
-use crate::transcript::{parse_line, QueryRecord, Record, TranscriptReader, FORMAT_VERSION};
+use crate::oracle::Answer;
+use crate::transcript::reader::last_line;
+use crate::transcript::{parse_line, QueryRecord, Record, TranscriptReader};
 use crate::transcript::{Ending, FinalRecord, Header};
 
 /// What the verifier concluded about a game whose certificate checks out.
@@ -65,8 +96,13 @@ pub struct Verdict {
     pub censored: bool,
     /// How the game ended, as recorded.
     pub ending: Ending,
-    /// The longest prefix T* with a verified certificate; `None` when there is none.
+    /// The prefix T* of a verified certificate whose witnesses have pairwise disjoint
+    /// solution sets, so that no method could have stopped after T* answers; `None`
+    /// when there is none (no certificate, or one that only refutes the output).
     pub certified_prefix: Option<u64>,
+    /// The prefix the certificate's witnesses were verified to agree with, whether or
+    /// not they certify a lower bound (`None` without a certificate).
+    pub witness_prefix: Option<u64>,
     /// How the game ended, judged by the verified witnesses.
     pub outcome: Outcome,
     /// First-order classes: the certified uncertainty eps_cert of docs/theory.md §2.2, a lower
@@ -75,7 +111,8 @@ pub struct Verdict {
 }
 
 impl Verdict {
-    /// Certified lower bound = T* + 1 (docs/theory.md §0).
+    /// Certified lower bound = T* + 1 (docs/theory.md §0), only from witnesses with
+    /// pairwise disjoint solution sets; never from a refuted output.
     pub fn certified_lower_bound(&self) -> Option<u64> {
         self.certified_prefix.map(|t| t + 1)
     }
@@ -84,46 +121,23 @@ impl Verdict {
 /// Verifies the transcript file at `path` (two streaming passes: the first finds the
 /// final record, the second checks every record against its witnesses).
 pub fn verify_file(path: &std::path::Path) -> Result<Verdict, Error> {
-    // Pass 1: the last line, to learn the witnesses before checking the answers.
-    let mut last: Option<(u64, String)> = None;
-    {
-        use std::io::BufRead;
-        let file = std::fs::File::open(path).map_err(|source| Error::Io {
-            action: "cannot read transcript",
-            path: path.to_path_buf(),
-            source,
-        })?;
-        let mut reader = std::io::BufReader::with_capacity(1 << 16, file);
-        let mut buffer = Vec::new();
-        let mut line = 0u64;
-        loop {
-            buffer.clear();
-            let n = reader
-                .read_until(b'\n', &mut buffer)
-                .map_err(|source| Error::Io {
-                    action: "cannot read transcript",
-                    path: path.to_path_buf(),
-                    source,
-                })?;
-            if n == 0 {
-                break;
-            }
-            line += 1;
-            let text = String::from_utf8_lossy(&buffer).trim_end().to_string();
-            last = Some((line, text));
-        }
-    }
-    let (last_line, last_text) = last.ok_or(Error::Transcript {
+    // Pass 1: the last line, to learn the witnesses before checking the answers (a
+    // streaming pass that keeps no line in memory and refuses an overlong line early).
+    let (last_line, last_bytes) = last_line(path)?.ok_or(Error::Transcript {
         line: 1,
         reason: "the file is empty".into(),
     })?;
-    let final_record = match parse_line(&last_text, last_line) {
+    let last_text = std::str::from_utf8(&last_bytes).map_err(|_| Error::Transcript {
+        line: last_line,
+        reason: "not valid UTF-8".into(),
+    })?;
+    let final_record = match parse_line(last_text, last_line) {
         Ok(Record::Final(f)) => Some(f),
         Ok(_) => None,
         Err(e) => {
             // A complete JSON line that is not a valid record (for example an unknown
             // certificate schema) is reported as it is, not as a truncation.
-            let complete = serde_json::from_str::<serde_json::Value>(&last_text).is_ok();
+            let complete = serde_json::from_str::<serde_json::Value>(last_text).is_ok();
             if last_line > 1 && !complete {
                 return Err(Error::Transcript {
                     line: last_line,
@@ -150,7 +164,7 @@ pub fn verify_file(path: &std::path::Path) -> Result<Verdict, Error> {
                 };
                 checker = Some(Checker::new(header, final_record, last_line)?);
             }
-            Some(c) => c.record(line, record)?,
+            Some(c) => c.record(line, &record)?,
         }
     }
     checker
@@ -175,226 +189,61 @@ pub fn verify_records(records: &[Record]) -> Result<Verdict, Error> {
     };
     let mut checker = Checker::new(header.clone(), final_record.clone(), n)?;
     for (i, record) in records.iter().enumerate().skip(1) {
-        checker.record(i as u64 + 1, record.clone())?;
+        checker.record(i as u64 + 1, record)?;
     }
     checker.finish(n)
 }
 
-fn out_of_order(line: u64, reason: &str) -> Error {
-    Error::Transcript {
-        line,
-        reason: format!("record out of order: {reason}"),
-    }
-}
-
-/// The class-specific half of the verifier: built from the validated class and the
-/// final record, fed every query record in order, then asked for the outcome.
+/// The class-specific half of the verifier: built from the validated class, given the
+/// final record ([`ClassVerifier::attach`]: witnesses and claim), fed every query in
+/// order, then asked for the outcome.
 ///
-/// The driver ([`verify_file`], [`verify_records`]) checks everything that does not
-/// depend on the class: the header, the order of records, query indices, the budget,
-/// and the final record's counts.
+/// The driver checks everything that does not depend on the class: the header, the
+/// order of records, query indices, the budget, and the final record's counts. Each
+/// answer has checks that need no witness ([`ClassVerifier::answer`]) and, in the
+/// certified prefix, checks that every witness agrees with it
+/// ([`ClassVerifier::agree`]); a streaming run ([`StreamingVerifier`]) makes the first
+/// as the game goes and the second once the witnesses are known.
 pub trait ClassVerifier {
-    /// Checks one query record (its index is already checked). `in_prefix` says whether
-    /// the certificate's witnesses must agree with it.
-    fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error>;
-    /// Checks the certificate's claim (if any) and judges the ending.
+    /// Takes the final record: checks the witnesses' membership in the class and the
+    /// certificate's claim (pairwise disjoint solution sets, or a refutation of the
+    /// output at full length).
+    fn attach(&mut self, final_record: &FinalRecord, final_line: u64) -> Result<(), Error>;
+    /// Checks one answer without the witnesses (its index and length are checked).
+    fn answer(
+        &mut self,
+        line: u64,
+        index: u64,
+        point: &[f64],
+        answer: &Answer,
+    ) -> Result<(), Error>;
+    /// Checks that every witness agrees with one answer of the certified prefix.
+    fn agree(&mut self, line: u64, index: u64, point: &[f64], answer: &Answer)
+        -> Result<(), Error>;
+    /// Whether [`ClassVerifier::agree`] reads the query point for this answer (a
+    /// streaming run keeps the point only then).
+    fn agree_reads_point(&self, answer: &Answer) -> bool {
+        let _ = answer;
+        true
+    }
+    /// Checks one query record: [`ClassVerifier::answer`], then, when `in_prefix`,
+    /// [`ClassVerifier::agree`].
+    fn query(&mut self, line: u64, record: &QueryRecord, in_prefix: bool) -> Result<(), Error> {
+        self.answer(line, record.index, &record.point, &record.answer)?;
+        if in_prefix {
+            self.agree(line, record.index, &record.point, &record.answer)?;
+        }
+        Ok(())
+    }
+    /// Judges the ending (after [`ClassVerifier::attach`] and every query).
     fn finish(&mut self, final_line: u64) -> Result<Outcome, Error>;
     /// For accuracy classes: the largest accuracy the verified witnesses certify as
     /// unreachable from these answers (docs/theory.md §2.2); `None` elsewhere.
     fn certified_uncertainty(&self) -> Option<f64> {
         None
     }
-}
-
-/// Builds the verifier for the header's class.
-fn class_verifier(
-    header: &Header,
-    final_record: &FinalRecord,
-    final_line: u64,
-) -> Result<Box<dyn ClassVerifier>, Error> {
-    let header_error = |reason: String| Error::Transcript { line: 1, reason };
-    match &header.class {
-        Class::Feasibility(c) => {
-            let class = crate::class::FeasibilityClass::new(c.dim, c.half_width, c.rho, c.promise)
-                .map_err(|e| header_error(e.to_string()))?;
-            Ok(Box::new(feasibility::FeasibilityVerifier::new(
-                class,
-                final_record,
-                final_line,
-            )?))
-        }
-        Class::FirstOrder(c) => {
-            let class =
-                crate::class::FirstOrderClass::new(c.dim, c.half_width, c.eps, c.lipschitz, c.norm)
-                    .map_err(|e| header_error(e.to_string()))?;
-            Ok(Box::new(first_order::FirstOrderVerifier::new(
-                class,
-                final_record,
-                final_line,
-            )?))
-        }
-        Class::Lattice(c) => {
-            let class = crate::class::LatticeClass::new(
-                c.lower.clone(),
-                c.upper.clone(),
-                c.cont_dim,
-                c.half_width,
-                c.rho,
-            )
-            .map_err(|e| header_error(e.to_string()))?;
-            Ok(Box::new(lattice::LatticeVerifier::new(
-                class,
-                final_record,
-                final_line,
-            )?))
-        }
-        Class::LargeScale(_) => Err(header_error(
-            "a large-scale transcript is a demonstration, not a certificate (docs/theory.md \
-             §3): its numbers are checked to a stated tolerance, never exactly, so `check` \
-             refuses it"
-                .into(),
-        )),
-    }
-}
-
-/// Streaming driver: built from the header and the final record, fed the records in
-/// order.
-struct Checker {
-    header: Header,
-    final_record: FinalRecord,
-    final_line: u64,
-    prefix: u64,
-    dim: usize,
-    inner: Box<dyn ClassVerifier>,
-    next_index: u64,
-    finished: bool,
-}
-
-impl Checker {
-    fn new(header: Header, final_record: FinalRecord, final_line: u64) -> Result<Checker, Error> {
-        if header.format != FORMAT_VERSION {
-            return Err(Error::Transcript {
-                line: 1,
-                reason: format!(
-                    "transcript format {} is not supported (this build reads format \
-                     {FORMAT_VERSION})",
-                    header.format
-                ),
-            });
-        }
-        let final_error = |reason: String| Error::Transcript {
-            line: final_line,
-            reason,
-        };
-        if matches!(final_record.ending, Ending::BudgetExhausted)
-            && final_record.queries_used != header.budget
-        {
-            return Err(final_error(format!(
-                "the budget ended the game after {} queries, but the budget is {}",
-                final_record.queries_used, header.budget
-            )));
-        }
-        let dim = header.class.query_dim();
-        if let Ending::Output {
-            output: Output::Point { point },
-        } = &final_record.ending
-        {
-            if point.len() != dim {
-                return Err(final_error(format!(
-                    "output point has {} coordinates, expected {dim}",
-                    point.len(),
-                )));
-            }
-        }
-        let prefix = final_record.certificate.as_ref().map_or(0, |w| w.prefix);
-        if prefix > final_record.queries_used {
-            return Err(final_error(format!(
-                "the certificate claims prefix {prefix}, longer than the {} queries used",
-                final_record.queries_used
-            )));
-        }
-        let inner = class_verifier(&header, &final_record, final_line)?;
-        Ok(Checker {
-            header,
-            final_record,
-            final_line,
-            prefix,
-            dim,
-            inner,
-            next_index: 1,
-            finished: false,
-        })
-    }
-
-    fn record(&mut self, line: u64, record: Record) -> Result<(), Error> {
-        if self.finished {
-            return Err(out_of_order(line, "a record follows the final record"));
-        }
-        match record {
-            Record::Header(_) => Err(out_of_order(line, "a second header")),
-            Record::Final(_) => {
-                if line != self.final_line {
-                    return Err(out_of_order(line, "a final record before the end"));
-                }
-                if self.next_index != self.final_record.queries_used + 1 {
-                    return Err(Error::Transcript {
-                        line,
-                        reason: format!(
-                            "the final record says {} queries were used, but the transcript \
-                             holds {}",
-                            self.final_record.queries_used,
-                            self.next_index - 1
-                        ),
-                    });
-                }
-                self.finished = true;
-                Ok(())
-            }
-            Record::Query(query) => {
-                if query.index != self.next_index {
-                    return Err(out_of_order(
-                        line,
-                        &format!(
-                            "expected query {}, found query {}",
-                            self.next_index, query.index
-                        ),
-                    ));
-                }
-                self.next_index += 1;
-                if query.point.len() != self.dim {
-                    return Err(Error::Transcript {
-                        line,
-                        reason: format!(
-                            "query {} has {} coordinates, expected {}",
-                            query.index,
-                            query.point.len(),
-                            self.dim
-                        ),
-                    });
-                }
-                let in_prefix = query.index <= self.prefix;
-                self.inner.query(line, &query, in_prefix)
-            }
-        }
-    }
-
-    fn finish(mut self, last_line: u64) -> Result<Verdict, Error> {
-        if !self.finished {
-            return Err(Error::Transcript {
-                line: last_line,
-                reason: "the transcript ends without a final record (truncated?)".into(),
-            });
-        }
-        let outcome = self.inner.finish(self.final_line)?;
-        let ending = &self.final_record.ending;
-        Ok(Verdict {
-            censored: matches!(ending, Ending::BudgetExhausted),
-            queries_used: self.final_record.queries_used,
-            certified_prefix: self.final_record.certificate.as_ref().map(|w| w.prefix),
-            ending: ending.clone(),
-            outcome,
-            certified_uncertainty: self.inner.certified_uncertainty(),
-            header: self.header,
-        })
-    }
+    /// True when the certificate holds at least two witnesses whose solution sets are
+    /// pairwise disjoint, so that it certifies the lower bound T* + 1 (a certificate that
+    /// only refutes the method's output does not).
+    fn bound_certified(&self) -> bool;
 }

@@ -26,7 +26,8 @@ use std::collections::{HashMap, HashSet};
 use num_rational::BigRational;
 use num_traits::Signed;
 
-use crate::certificate::first_order::{piece_key, FilteredPiece};
+use crate::certificate::filter::Interval;
+use crate::certificate::pieces::{PieceKey, PieceSet};
 use crate::class::FirstOrderClass;
 use crate::error::Error;
 use crate::exact::{f64_to_rational, Exact};
@@ -81,7 +82,7 @@ struct Data {
     /// g.x_t - v_t, in f64.
     piece_rows: Vec<(Vec<(usize, f64)>, f64)>,
     /// The distinct pieces, exact (for the witnesses and the exact checks).
-    pieces: Vec<FilteredPiece>,
+    pieces: PieceSet,
     /// Loose bounds (upper, lower) on mu that every admissible point satisfies.
     mu_bounds: (f64, f64),
 }
@@ -101,13 +102,14 @@ impl Data {
         };
         for e in exchanges {
             let piece = AffinePiece::through(&e.point, &e.value, &e.gradient);
-            if seen.insert(piece_key(&piece)) {
+            if seen.insert(PieceKey::of(&piece)) {
                 let g = gradient_f64(e);
                 let gx: f64 = g.iter().map(|(i, v)| v * e.point[*i]).sum();
                 piece_rows.push((g, gx - e.value.to_f64()));
-                pieces.push(FilteredPiece::new(piece));
+                pieces.push(piece);
             }
         }
+        let pieces = PieceSet::new(pieces);
         let values: Vec<f64> = exchanges.iter().map(|e| e.value.to_f64()).collect();
         let mu_bounds = if values.is_empty() {
             (0.0, -1.0)
@@ -273,14 +275,15 @@ fn admissible_floor(
     // with a rigorous error bound) picks the candidates for the minimum.
     let approx: Vec<(f64, f64)> = exchanges
         .iter()
-        .map(|e| {
+        .zip(&data.values)
+        .map(|(e, v)| {
             let mut dist = 0.0f64;
             let mut size = 0.0f64;
             for (x, ci) in e.point.iter().zip(c) {
                 dist = dist.max((x - ci).abs());
                 size = size.max(x.abs() + ci.abs());
             }
-            let v = e.value.to_f64();
+            let v = *v;
             let value = v - sigma * dist;
             let err = 4.0 * f64::EPSILON * (v.abs() + sigma * size + value.abs()) + 1e-300;
             (value, err)
@@ -319,8 +322,8 @@ fn admissible_floor(
     // M(c) <= floor, exactly (filtered).
     let ok = data
         .pieces
-        .iter()
-        .all(|p| p.cmp_at(c, &floor_exact) != std::cmp::Ordering::Greater);
+        .exceeding(c, &floor_exact, Interval::of_exact(&floor_exact))
+        .is_none();
     ok.then_some(floor)
 }
 
@@ -448,7 +451,12 @@ fn try_sigma(
     let eps_cert = crate::certificate::first_order::f64_at_most(
         &(&distance * f64_to_rational(sigma) / BigRational::from_integer(2.into())),
     );
-    let pieces: Vec<AffinePiece> = data.pieces.iter().map(|p| p.exact().clone()).collect();
+    let pieces: Vec<AffinePiece> = data
+        .pieces
+        .pieces()
+        .iter()
+        .map(|p| p.exact().clone())
+        .collect();
     let make = |(c, floor): &(Vec<f64>, BigRational)| FunctionWitness {
         pieces: pieces.clone(),
         center: c.iter().map(|v| Exact::Float(*v)).collect(),
@@ -661,18 +669,39 @@ pub fn longest_certificate(
 
 /// Checks that a transcript is consistent with some convex L-Lipschitz function
 /// (docs/theory.md §2.1): every subgradient within L and v_s + g_s.(x_t - x_s) <= v_t for all
-/// s, t. Returns the first violating pair `(s, t)` (0-based), exactly decided.
+/// s, t. Returns the first violating pair `(s, t)` (0-based: the first t, then the first
+/// s), exactly decided.
+///
+/// Answers from the same affine piece are one piece of M(y) = max_s [v_s + g_s.(y -
+/// x_s)], so the check is M(x_t) <= v_t over the distinct pieces ([`PieceSet`]: a
+/// binary search per coordinate for pieces with one nonzero slope entry), not a loop
+/// over all pairs.
 pub fn first_inconsistent_pair(exchanges: &[Exchange]) -> Option<(usize, usize)> {
-    let pieces: Vec<FilteredPiece> = exchanges
-        .iter()
-        .map(|e| FilteredPiece::new(AffinePiece::through(&e.point, &e.value, &e.gradient)))
-        .collect();
-    for (t, e) in exchanges.iter().enumerate() {
-        for (s, p) in pieces.iter().enumerate() {
-            if s != t && p.cmp_at(&e.point, &e.value) == std::cmp::Ordering::Greater {
-                return Some((s, t));
-            }
+    let mut first_of: HashMap<PieceKey, usize> = HashMap::new();
+    let mut distinct: Vec<AffinePiece> = Vec::new();
+    let mut origin: Vec<usize> = Vec::new();
+    for (s, e) in exchanges.iter().enumerate() {
+        let piece = AffinePiece::through(&e.point, &e.value, &e.gradient);
+        if let std::collections::hash_map::Entry::Vacant(slot) =
+            first_of.entry(PieceKey::of(&piece))
+        {
+            slot.insert(s);
+            distinct.push(piece);
+            origin.push(s);
         }
+    }
+    let set = PieceSet::new(distinct);
+    for (t, e) in exchanges.iter().enumerate() {
+        let iv = Interval::of_exact(&e.value);
+        if set.exceeding(&e.point, &e.value, iv).is_none() {
+            continue;
+        }
+        // The answer's own piece equals v_t at x_t, so it never exceeds: s != t.
+        let u = set
+            .pieces()
+            .iter()
+            .position(|p| p.cmp_with(&e.point, &e.value, iv) == std::cmp::Ordering::Greater)?;
+        return Some((origin[u], t));
     }
     None
 }

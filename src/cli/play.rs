@@ -333,8 +333,13 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
 
 /// "T* + 1 (witnesses agree with the first T* answers)" or "none".
 pub fn lower_bound_text(verdict: &Verdict) -> String {
-    match verdict.certified_prefix {
-        Some(t) => format!("{} (witnesses agree with the first {t} answers)", t + 1),
-        None => "none (no certifiable prefix)".into(),
+    match (verdict.certified_prefix, verdict.witness_prefix) {
+        (Some(t), _) => format!("{} (witnesses agree with the first {t} answers)", t + 1),
+        // A refutation only (docs/theory.md §7): one wrong output, no bound.
+        (None, Some(t)) => format!(
+            "none (the witnesses agree with the first {t} answers and refute the output, but \
+             their solution sets are not pairwise disjoint)"
+        ),
+        (None, None) => "none (no certifiable prefix)".into(),
     }
 }

@@ -2,6 +2,7 @@
 //! measure.
 
 use crate::adversary::Adversary;
+use crate::certificate::StreamingVerifier;
 use crate::error::Error;
 use crate::game::Observer;
 use crate::oracle::Answer;
@@ -46,6 +47,31 @@ impl Observer for MemoryTranscript {
 
     fn on_finish(&mut self, record: &FinalRecord) -> Result<(), Error> {
         self.push_final(record);
+        Ok(())
+    }
+}
+
+/// Verification as the game goes: a failed check is kept for the verdict and never
+/// stops the game.
+impl Observer for StreamingVerifier {
+    fn on_start(&mut self, header: &Header) -> Result<(), Error> {
+        self.start(header);
+        Ok(())
+    }
+
+    fn on_query(
+        &mut self,
+        index: u64,
+        query: &[f64],
+        answer: &Answer,
+        _adversary: &dyn Adversary,
+    ) -> Result<(), Error> {
+        self.query(index, query, answer);
+        Ok(())
+    }
+
+    fn on_finish(&mut self, record: &FinalRecord) -> Result<(), Error> {
+        self.finish(record);
         Ok(())
     }
 }

@@ -42,8 +42,18 @@ pub struct FibreBall {
 pub struct LatticeHull {
     /// Generating points in R^(n+d) (points declared inside), none mixed-integer.
     pub points: Vec<Vec<f64>>,
-    /// The one fibre ball, if any.
+    /// The one fibre ball, if any (`null` on disk when there is none; the key is
+    /// required).
+    #[serde(deserialize_with = "required_fibre")]
     pub fibre: Option<FibreBall>,
+}
+
+/// Reads the `fibre` key, which must be present (`null` or a fibre ball), as
+/// `tools/check_certificate.py` requires it.
+fn required_fibre<'de, D: serde::Deserializer<'de>>(
+    deserializer: D,
+) -> Result<Option<FibreBall>, D::Error> {
+    Option::<FibreBall>::deserialize(deserializer)
 }
 
 /// A [`LatticeHull`] in exact form, built once for the verifier.

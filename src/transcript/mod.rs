@@ -31,16 +31,27 @@
 //! {v} x B(c, rho); `center` is empty when d = 0). Its claim: its mixed-integer points
 //! are exactly the fibre ball (none when `F` is `null`).
 //!
-//! Numbers: every JSON number is the exact value of the `f64` it parses to (writers use
-//! shortest round-trip formatting). Adversary-computed numbers that no `f64` holds
-//! (offsets, centres) are `{"exact":"p/q","approx":f}` with `approx` the nearest `f64`
-//! (see [`crate::exact::Exact`]). Non-finite numbers are never written: a non-finite
-//! coordinate is rejected before it reaches the file.
+//! Numbers, one reading: a plain JSON number is exactly the `f64` it parses to, however
+//! it is spelled (the integer token `9007199254740993` is the `f64` 9007199254740992;
+//! writers use shortest round-trip formatting). Adversary-computed numbers that no `f64`
+//! holds (offsets, centres) are `{"exact":"p/q","approx":f}`, with one grammar and size
+//! limits and `approx` the nearest `f64` ([`crate::exact`]). Integer fields (`format`,
+//! `schema`, `seed`, `budget`, `dim`, `cont_dim`, `index`, `queries_used`, `prefix`,
+//! `axis`, `sign`, `lower`, `upper`, a fibre's `integer`) take integer tokens only (no
+//! fraction, no exponent; `-0` is a float), read exactly within their types' ranges and
+//! the class's limits. Non-finite numbers are never written: a non-finite coordinate is
+//! rejected before it reaches the file.
+//!
+//! Keys: no object repeats a key; unknown keys are ignored; the final record's
+//! `certificate` and a lattice hull's `fibre` must be present (`null` when there is
+//! none). Every line is read within the limits of [`limits`] (length, nesting, number
+//! length), the same as `tools/check_certificate.py`.
 //!
 //! Durability: in-process games buffer and flush at least once a second
 //! and at the end; [`Flush::EveryRecord`] flushes after every record (for external
 //! methods, which may not be replayable).
 
+pub mod limits;
 pub mod reader;
 pub mod records;
 pub mod writer;

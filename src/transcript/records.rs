@@ -66,7 +66,9 @@ pub struct FinalRecord {
     /// How the game ended.
     pub ending: Ending,
     /// Witnesses and the prefix they certify; `None` when no prefix is certifiable (and
-    /// always for a demonstration).
+    /// always for a demonstration). The key is required on disk (`null` when there is no
+    /// certificate).
+    #[serde(deserialize_with = "required_certificate")]
     pub certificate: Option<Witnesses>,
     /// Large-scale games only: what the demonstration claims (docs/theory.md §3). Absent
     /// from certificate transcripts.
@@ -109,6 +111,14 @@ impl Demonstration {
 /// of an `f64`, far above the rounding of the O(T d) arithmetic involved and far below
 /// any effect the bounds describe).
 pub const DEMONSTRATION_TOLERANCE: f64 = 1e-12;
+
+/// Reads the `certificate` key, which must be present (`null` or a certificate): a
+/// final record without it is refused, as `tools/check_certificate.py` refuses it.
+fn required_certificate<'de, D: serde::Deserializer<'de>>(
+    deserializer: D,
+) -> Result<Option<Witnesses>, D::Error> {
+    Option::<Witnesses>::deserialize(deserializer)
+}
 
 /// One query record.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]

@@ -64,6 +64,11 @@ impl TranscriptWriter {
             path: path.to_path_buf(),
             source,
         })?;
+        Self::from_file(file, path, flush)
+    }
+
+    /// Writes to an open file (`path` names it in messages).
+    pub fn from_file(file: File, path: &Path, flush: Flush) -> Result<Self, Error> {
         let shared = Arc::new(Mutex::new(Shared {
             out: BufWriter::with_capacity(1 << 16, file),
             dirty: false,
