@@ -777,3 +777,28 @@ fn python_checker_on_ten_thousand_queries() {
         start.elapsed().as_secs_f64()
     );
 }
+
+#[test]
+fn both_checkers_refuse_a_demonstration() {
+    // A large-scale game is a demonstration checked to a tolerance (docs/theory.md §3,
+    // §7.4), never a certificate: both checkers refuse its transcript, saying so.
+    if !python_present() {
+        return;
+    }
+    let dir = TempDir::new().unwrap();
+    let path = dir.path().join("demo.jsonl");
+    let function = naysayer::class::LargeScaleClass::smooth(40, 1.0, 1.0).unwrap();
+    let spec = GameSpec {
+        class: Class::LargeScale(naysayer::class::LargeScale::new(function, 6).unwrap()),
+        adversary: "rotation-chain".into(),
+        method: "gradient".into(),
+        seed: 0,
+        budget: 6,
+        transcript: Some(path.clone()),
+    };
+    let report = runner::demonstrate(&spec).unwrap();
+    assert!(report.judgement.is_ok());
+    let (rust, python) = common::both_reject(&path);
+    assert!(rust.contains("not a certificate"), "{rust}");
+    assert!(python.contains("not a certificate"), "{python}");
+}

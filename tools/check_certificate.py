@@ -221,6 +221,12 @@ def record(raw, no):
 
 def parse_class(c):
     kind = get(c, "kind", "class")
+    if kind == "large-scale":
+        fail("class: a large-scale transcript is a demonstration, not a certificate "
+             "(docs/theory.md §3): its numbers are checked to a stated tolerance, never "
+             "exactly, so this checker refuses it")
+    if kind not in ("feasibility", "first-order", "lattice"):
+        fail(f"class: unknown kind {kind!r}")
 
     def positive(key, top=1e300, normal=False):
         x = real(get(c, key, "class"), key)
