@@ -395,3 +395,68 @@ fn first_order_play_and_bounds_print_the_slab_funnel_theorem() {
     assert!(orthant.contains("leaks"), "{list}");
     assert!(list.contains("slab-funnel"), "{list}");
 }
+
+/// Each message of issue 17 (item 5) with its documented exit code.
+#[test]
+fn bad_input_gets_a_sentence_and_the_documented_exit_code() {
+    let dir = TempDir::new().unwrap();
+    let d = dir.path();
+    // check of an empty or garbage file: bad input (2), not a rejected certificate (1).
+    std::fs::write(d.join("empty.jsonl"), "").unwrap();
+    std::fs::write(d.join("garbage.jsonl"), "hello\n").unwrap();
+    for file in ["empty.jsonl", "garbage.jsonl"] {
+        let out = run_in(d, &["check", file]);
+        assert_eq!(out.status.code(), Some(2), "{file}: {}", stderr(&out));
+        assert!(stderr(&out).contains("not a naysayer transcript"), "{}", stderr(&out));
+    }
+    // A zero budget is refused by play as by scenarios and hunt.
+    let out = run_in(d, &["play", "--budget", "0"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("--budget"), "{}", stderr(&out));
+    // Negative numbers reach validation (no hint to use `--`, which starts a program).
+    let out = run_in(d, &["play", "--rho", "-1e-4"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("rho = -0.0001"), "{}", stderr(&out));
+    assert!(!stderr(&out).contains("'--"), "{}", stderr(&out));
+    // A large-scale horizon of 0 is refused, not silently made 1.
+    let out = run_in(d, &["bounds", "--class", "large-scale", "--horizon", "0"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("horizon T = 0"), "{}", stderr(&out));
+    // An expectation of the wrong type says what was expected, where.
+    std::fs::write(d.join("e.toml"), "[[game]]\nqueries_used = \"many\"\n").unwrap();
+    let out = run_in(d, &["play", "--expect", "e.toml"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains("e.toml:2:16") && stderr(&out).contains("expected a number"),
+        "{}",
+        stderr(&out)
+    );
+    // A scenario whose adversary plays another family: line and column, no folder made.
+    let scenario = "name = \"mixed\"\ndescription = \"x\"\n[class]\nfamily = \"feasibility\"\n\
+                    dims = [2]\nhalf_width = 1.0\nrho = [1e-2]\n[adversary]\nname = \"corner\"\n\
+                    [play]\nmethods = [\"midpoint\"]\nseeds = [0]\nbudget = 100\n";
+    std::fs::write(d.join("mixed.toml"), scenario).unwrap();
+    let out = run_in(d, &["sweep", "mixed.toml"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains("mixed.toml:9:8") && stderr(&out).contains("lattice family"),
+        "{}",
+        stderr(&out)
+    );
+    assert!(!d.join("results").exists());
+    // An enumeration over a box beyond its point cap is refused when the scenario is read.
+    let lattice = "name = \"huge\"\ndescription = \"x\"\n[class]\nfamily = \"lattice\"\n\
+                   dims = [30]\nhalf_width = 1.0\n[adversary]\nname = \"corner\"\n[play]\n\
+                   methods = [\"enumerate\"]\nseeds = [0]\nbudget = 100\n";
+    std::fs::write(d.join("huge.toml"), lattice).unwrap();
+    let out = run_in(d, &["sweep", "huge.toml"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains("huge.toml:10:12") && stderr(&out).contains("lattice points"),
+        "{}",
+        stderr(&out)
+    );
+    // An I/O error prints its cause once.
+    let out = run_in(d, &["check", "missing.jsonl"]);
+    assert_eq!(stderr(&out).matches("No such file").count(), 1, "{}", stderr(&out));
+}

@@ -59,7 +59,46 @@ pub fn run(args: &CheckArgs) -> Result<u8, Error> {
     })
 }
 
+/// Refuses a file that is not a transcript at all (empty, or a first line that is not a
+/// header record) as bad input (exit 2), before judging it: exit 1 is kept for
+/// transcripts whose claims do not hold.
+fn refuse_non_transcript(path: &std::path::Path) -> Result<(), Error> {
+    use std::io::{BufRead, Read};
+    let file = std::fs::File::open(path).map_err(|source| Error::Io {
+        action: "cannot read transcript",
+        path: path.to_path_buf(),
+        source,
+    })?;
+    let mut first = Vec::new();
+    std::io::BufReader::new(file.take(1 << 20))
+        .read_until(b'\n', &mut first)
+        .map_err(|source| Error::Io {
+            action: "cannot read transcript",
+            path: path.to_path_buf(),
+            source,
+        })?;
+    let not_a_transcript = |what: &str| Error::InvalidSetting {
+        name: "transcript file",
+        reason: format!(
+            "{}: not a naysayer transcript ({what}); `check` reads the JSON Lines files \
+             that `play -t`, `sweep` and `hunt -t` write",
+            path.display()
+        ),
+    };
+    if first.iter().all(|b| b.is_ascii_whitespace()) {
+        return Err(not_a_transcript("the file is empty"));
+    }
+    let text = String::from_utf8_lossy(&first);
+    let value: serde_json::Value = serde_json::from_str(text.trim_end())
+        .map_err(|_| not_a_transcript("its first line is not JSON"))?;
+    if value.get("type").and_then(|t| t.as_str()) != Some("header") {
+        return Err(not_a_transcript("its first line is not a header record"));
+    }
+    Ok(())
+}
+
 fn verify(args: &CheckArgs) -> Result<u8, Error> {
+    refuse_non_transcript(&args.file)?;
     match certificate::verify_file(&args.file) {
         Ok(verdict) => {
             crate::say!("valid certificate: {}", args.file.display());
