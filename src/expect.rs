@@ -440,11 +440,8 @@ fn range_of(value: &Value, bad: &dyn Fn(&str) -> Error) -> Result<Range, Error> 
 impl Expectations {
     /// Reads and validates an expectation file.
     pub fn from_file(path: &Path) -> Result<Expectations, Error> {
-        let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-            action: "cannot read expectation file",
-            path: path.to_path_buf(),
-            source,
-        })?;
+        let text =
+            crate::files::read_capped(path, crate::files::MAX_SMALL_FILE, "expectation file")?;
         Expectations::parse(&text, path)
     }
 

@@ -2,7 +2,7 @@
 //! oracle-complexity lower bounds exactly.
 //!
 //! The layers, lowest first (a module uses only modules above it in this list; the
-//! architecture test `tests/architecture.rs` checks it): `error`, `exact`, `csv`;
+//! architecture test `tests/architecture.rs` checks it): `error`, `exact`, `csv`, `files`;
 //! `class`, `oracle`; `geometry`, `instance`; `transcript` (the records); `certificate`
 //! (the exact verifier), `bounds`; `adversary`, `method`; `game` (the loop); `demonstration`,
 //! `runner`; `hunt`, `minimax`, `chart`, `scenario`, `family`, `gallery`, `sweep`, `expect`;
@@ -21,6 +21,7 @@ pub mod error;
 pub mod exact;
 pub mod expect;
 pub mod family;
+pub mod files;
 pub mod gallery;
 pub mod game;
 pub mod geometry;

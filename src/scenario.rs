@@ -148,11 +148,7 @@ impl Scenario {
 impl Scenario {
     /// Reads and validates the scenario file at `path` (read once).
     pub fn from_file(path: &Path) -> Result<Scenario, Error> {
-        let text = std::fs::read_to_string(path).map_err(|source| Error::Io {
-            action: "cannot read scenario",
-            path: path.to_path_buf(),
-            source,
-        })?;
+        let text = crate::files::read_capped(path, crate::files::MAX_SMALL_FILE, "scenario")?;
         Scenario::parse(&text, path)
     }
 

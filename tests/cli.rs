@@ -407,7 +407,11 @@ fn bad_input_gets_a_sentence_and_the_documented_exit_code() {
     for file in ["empty.jsonl", "garbage.jsonl"] {
         let out = run_in(d, &["check", file]);
         assert_eq!(out.status.code(), Some(2), "{file}: {}", stderr(&out));
-        assert!(stderr(&out).contains("not a naysayer transcript"), "{}", stderr(&out));
+        assert!(
+            stderr(&out).contains("not a naysayer transcript"),
+            "{}",
+            stderr(&out)
+        );
     }
     // A zero budget is refused by play as by scenarios and hunt.
     let out = run_in(d, &["play", "--budget", "0"]);
@@ -458,5 +462,10 @@ fn bad_input_gets_a_sentence_and_the_documented_exit_code() {
     );
     // An I/O error prints its cause once.
     let out = run_in(d, &["check", "missing.jsonl"]);
-    assert_eq!(stderr(&out).matches("No such file").count(), 1, "{}", stderr(&out));
+    assert_eq!(
+        stderr(&out).matches("No such file").count(),
+        1,
+        "{}",
+        stderr(&out)
+    );
 }

@@ -278,17 +278,13 @@ fn progress_bar(enabled: bool, total: u64, done: u64) -> Option<indicatif::Progr
 /// scenario wrote it).
 fn claim_folder(dir: &Path, scenario: &Scenario) -> Result<(), Error> {
     let path = dir.join("scenario.toml");
-    let existing = match std::fs::read_to_string(&path) {
-        Ok(text) if text.is_empty() => None,
-        Ok(text) => Some(text),
-        Err(e) if e.kind() == std::io::ErrorKind::NotFound => None,
-        Err(source) => {
-            return Err(Error::Io {
-                action: "cannot read",
-                path,
-                source,
-            })
+    let existing = if path.exists() {
+        match crate::files::read_capped(&path, crate::files::MAX_SMALL_FILE, "scenario copy")? {
+            text if text.is_empty() => None,
+            text => Some(text),
         }
+    } else {
+        None
     };
     match existing {
         Some(text) if text == scenario.source_text => Ok(()),
