@@ -1,0 +1,411 @@
+//! Charts of query counts against theoretical bounds, and pictures of
+//! two-dimensional games.
+//!
+//! # Charts
+//!
+//! [`draw`] renders a [`ChartSpec`] to three files that share a stem:
+//! `STEM.svg`, `STEM.png` and `STEM.csv`. Each [`Series`] (one per method) is
+//! drawn as a translucent min–max band over the seeds, a median line and one
+//! marker per point; each series has its own colour from a fixed palette of
+//! colour-blind-distinguishable colours and its own marker shape. Each
+//! [`Curve`] (a bound) is a line: [`CurveStyle::LowerBound`] solid thick black,
+//! [`CurveStyle::UpperBound`] dashed black, [`CurveStyle::Guide`] dotted grey.
+//!
+//! A point marked `censored` (the query budget ended the game, so the true
+//! value is larger than the one shown) is drawn as a hollow marker with a small
+//! upward arrow, never as an ordinary filled marker, and the legend then has
+//! one extra entry, "censored (budget)".
+//!
+//! The legend has a white background and sits inside the plot area, in the
+//! first corner (upper left, upper right, lower right, lower left) that hides
+//! no data; when every corner would hide data, the y range is extended upwards
+//! to make room for it in the upper left.
+//!
+//! ## Log axes and bad values
+//!
+//! [`Scale::Log10`] and [`Scale::Log2`] axes cannot show values `<= 0`. Such
+//! points are dropped from the picture (never an error): the chart then shows a
+//! note under the title, for example "Note: 2 points with y ≤ 0 dropped from
+//! the log y axis", and the same text is returned in [`ChartFiles::notes`]. A
+//! band whose lower end is `<= 0` on a log y axis while its median is positive
+//! is clipped at the bottom of the axis, with a note. Points with non-finite
+//! values (NaN, infinities) are dropped on any axis, with a note. Degenerate
+//! ranges (one point, or all values equal) are padded so that the chart still
+//! has a sensible scale.
+//!
+//! ## Chart CSV
+//!
+//! The CSV has one header line and one tidy row per input point, including
+//! points that were dropped from the picture:
+//!
+//! | column | meaning |
+//! | --- | --- |
+//! | `kind` | `series` (a method's point) or `curve` (a bound's point) |
+//! | `label` | the series or curve label |
+//! | `x` | the x value |
+//! | `y` | the plotted y value: the median for `series` rows, the value for `curve` rows |
+//! | `min`, `median`, `max` | the spread over seeds (`series` rows only, empty for curves) |
+//! | `censored` | `true` when the budget ended the game (`series` rows only) |
+//! | `curve_style` | `lower_bound`, `upper_bound` or `guide` (`curve` rows only) |
+//! | `plotted` | `false` when the point was dropped (log axis, non-finite value) |
+//!
+//! # Game pictures
+//!
+//! [`draw_game_2d`] draws a [`Game2d`]: the square `[-R, R]^2`, the alive box
+//! after each answer (each filled with the same faint blue, so that nested
+//! boxes accumulate and later, smaller boxes look darker; the final box is
+//! orange with a thick outline), the boundary line of each cut clipped to the
+//! view, and the query points, numbered `1`, `2`, ... in the order they were
+//! asked. Only the first 30 queries get numbers (a note says so when there are
+//! more), and a number that would overlap another label or marker is left out
+//! (also with a note) rather than drawn unreadably.
+//!
+//! Because the alive boxes shrink geometrically, the picture has a second
+//! panel, a zoom, whenever the final box is smaller than 12% of the square's
+//! side: the left (or, for tall images, lower) panel shows the whole square
+//! with the zoomed window outlined by a dashed rectangle, and the other panel
+//! shows a square window four times as wide as the final box, centred on it.
+//! Both panels keep equal scales on both axes, so angles are true.
+//!
+//! ## Game CSV
+//!
+//! Header `kind,index,x,y,normal_x,normal_y,offset,x_lo,x_hi,y_lo,y_hi`, then
+//! one row per alive box (`kind` = `box`, `index` 0 for the initial box, with
+//! `x_lo..y_hi` filled), per query (`kind` = `query`, `index` from 1 as in the
+//! picture, with `x`, `y` filled) and per cut (`kind` = `cut`, `index` from 1,
+//! with `normal_x`, `normal_y`, `offset` filled; the cut is
+//! `{y : normal . y < offset}`). Columns that do not apply are empty.
+//!
+//! # Fonts
+//!
+//! Every text uses DejaVu Sans, embedded in the binary (see
+//! `assets/fonts/LICENSE-DejaVu.txt`) and registered with plotters once, so
+//! drawing never depends on fonts installed on the machine. In PNG files the
+//! text is rasterised here from the embedded font (with `ab_glyph`, honouring
+//! kerning and side bearings); SVG files carry the text as `<text>` elements
+//! naming the family `DejaVu Sans`, which a viewer without it replaces with a
+//! similar sans-serif font. Text and line sizes are chosen for 1000 x 650
+//! pixels and scale with the image size.
+//!
+//! # Files of this module
+//!
+//! `mod.rs` (the public specifications, [`draw`], [`draw_game_2d`]), `line.rs` (the
+//! line chart), `legend.rs`, `axes.rs` (coordinates, mesh, tick labels), `ticks.rs`
+//! (tick positions and labels), `style.rs` (colours, markers, line styles), `text.rs`
+//! (fonts, measuring and drawing text, headers), `game.rs` and `game_panel.rs` (the
+//! two-dimensional game picture), `csv.rs` (the CSV beside each picture) and
+//! `output.rs` (file names, writing SVG and PNG).
+
+mod axes;
+mod csv;
+mod game;
+mod game_panel;
+mod legend;
+mod line;
+mod output;
+mod style;
+#[cfg(test)]
+mod tests;
+mod text;
+mod ticks;
+
+use std::path::{Path, PathBuf};
+
+use plotters::backend::SVGBackend;
+use plotters::coord::cartesian::Cartesian2d;
+use plotters::drawing::IntoDrawingArea;
+
+use crate::error::Error;
+use axes::TickAxis;
+use csv::{chart_csv, game_csv};
+use game::{label_notes_for, prepare_game, GamePainter};
+use line::{prepare_chart, ChartPainter};
+use output::{check_size, output_files, write_file, write_images};
+use text::{ensure_font, Ink};
+
+/// One x position of a [`Series`]: the spread of a measured value over seeds.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SeriesPoint {
+    /// The x value (for example the dimension or `1/epsilon`).
+    pub x: f64,
+    /// Smallest value over the seeds (lower end of the band).
+    pub min: f64,
+    /// Median value over the seeds (the line and the marker).
+    pub median: f64,
+    /// Largest value over the seeds (upper end of the band).
+    pub max: f64,
+    /// True when the budget ended the game, so that the true value is larger
+    /// than the one shown; drawn as a hollow marker with an upward arrow.
+    pub censored: bool,
+}
+
+/// One method's measurements: a min–max band, a median line and markers.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Series {
+    /// Legend text (usually the method's name).
+    pub label: String,
+    /// The points, in any order (they are sorted by x for drawing).
+    pub points: Vec<SeriesPoint>,
+}
+
+/// How a [`Curve`] is drawn.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum CurveStyle {
+    /// A proven lower bound: solid thick black line.
+    LowerBound,
+    /// An upper bound (what a known method guarantees): dashed black line.
+    UpperBound,
+    /// Any other guide line: dotted grey line.
+    Guide,
+}
+
+impl CurveStyle {
+    /// The name used in the CSV's `curve_style` column.
+    pub fn csv_name(self) -> &'static str {
+        match self {
+            CurveStyle::LowerBound => "lower_bound",
+            CurveStyle::UpperBound => "upper_bound",
+            CurveStyle::Guide => "guide",
+        }
+    }
+}
+
+/// A theoretical curve (a bound) drawn as a line through its points.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Curve {
+    /// Legend text.
+    pub label: String,
+    /// The `(x, y)` points, in any order (they are sorted by x for drawing).
+    pub points: Vec<(f64, f64)>,
+    /// Line style.
+    pub style: CurveStyle,
+}
+
+/// Scale of an axis.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub enum Scale {
+    /// Linear axis.
+    #[default]
+    Linear,
+    /// Logarithmic axis with ticks at powers of ten.
+    Log10,
+    /// Logarithmic axis with ticks at powers of two.
+    Log2,
+}
+
+/// Everything [`draw`] needs for one chart.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ChartSpec {
+    /// Title at the top of the chart.
+    pub title: String,
+    /// Optional second line under the title (smaller, grey).
+    pub subtitle: Option<String>,
+    /// x axis description.
+    pub x_label: String,
+    /// y axis description.
+    pub y_label: String,
+    /// x axis scale.
+    pub x_scale: Scale,
+    /// y axis scale.
+    pub y_scale: Scale,
+    /// The measured series (one per method).
+    pub series: Vec<Series>,
+    /// The theoretical curves (bounds).
+    pub curves: Vec<Curve>,
+    /// Image width in pixels (the SVG uses the same size).
+    pub width: u32,
+    /// Image height in pixels.
+    pub height: u32,
+}
+
+impl Default for ChartSpec {
+    /// An empty linear chart of 1000 x 650 pixels.
+    fn default() -> Self {
+        ChartSpec {
+            title: String::new(),
+            subtitle: None,
+            x_label: String::new(),
+            y_label: String::new(),
+            x_scale: Scale::Linear,
+            y_scale: Scale::Linear,
+            series: Vec::new(),
+            curves: Vec::new(),
+            width: DEFAULT_WIDTH,
+            height: DEFAULT_HEIGHT,
+        }
+    }
+}
+
+/// The files written by [`draw`] or [`draw_game_2d`], and the notes shown on
+/// the picture.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ChartFiles {
+    /// The SVG picture.
+    pub svg: PathBuf,
+    /// The PNG picture.
+    pub png: PathBuf,
+    /// The data behind the picture, as CSV (see the module documentation).
+    pub csv: PathBuf,
+    /// Notes shown on the picture (dropped points, unlabelled queries, ...);
+    /// empty when nothing needed saying.
+    pub notes: Vec<String>,
+}
+
+/// A cut of a two-dimensional game: the half-plane `{y : normal . y < offset}`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Cut2d {
+    /// Normal vector of the boundary line.
+    pub normal: [f64; 2],
+    /// Right-hand side: the boundary is `{y : normal . y = offset}`.
+    pub offset: f64,
+}
+
+/// Everything [`draw_game_2d`] needs for a picture of a two-dimensional game.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Game2d {
+    /// Title at the top of the picture.
+    pub title: String,
+    /// `R`: the game is played in the square `[-R, R]^2`.
+    pub half_width: f64,
+    /// The alive box `(x_lo, x_hi, y_lo, y_hi)` after each answer; index 0 is
+    /// the initial box.
+    pub boxes: Vec<[f64; 4]>,
+    /// The query points in the order they were asked.
+    pub queries: Vec<[f64; 2]>,
+    /// The cuts in the order they were answered.
+    pub cuts: Vec<Cut2d>,
+    /// Image width in pixels.
+    pub width: u32,
+    /// Image height in pixels.
+    pub height: u32,
+}
+
+impl Default for Game2d {
+    /// An empty game on `[-1, 1]^2`, 1000 x 650 pixels.
+    fn default() -> Self {
+        Game2d {
+            title: String::new(),
+            half_width: 1.0,
+            boxes: Vec::new(),
+            queries: Vec::new(),
+            cuts: Vec::new(),
+            width: DEFAULT_WIDTH,
+            height: DEFAULT_HEIGHT,
+        }
+    }
+}
+
+/// Default image width in pixels.
+pub const DEFAULT_WIDTH: u32 = 1000;
+
+/// Default image height in pixels.
+pub const DEFAULT_HEIGHT: u32 = 650;
+
+/// Smallest accepted image width in pixels.
+pub const MIN_WIDTH: u32 = 320;
+
+/// Smallest accepted image height in pixels.
+pub const MIN_HEIGHT: u32 = 240;
+
+/// Largest accepted image width or height in pixels.
+pub const MAX_SIDE: u32 = 6_000;
+
+/// How many queries of a game picture get numbers.
+pub const MAX_NUMBERED_QUERIES: usize = 30;
+
+type Px = (i32, i32);
+
+type Coord2 = Cartesian2d<TickAxis, TickAxis>;
+
+/// Draws a chart to `STEM.svg` and `STEM.png` and writes its data to
+/// `STEM.csv` (the suffixes are appended to `stem`; missing parent folders are
+/// created).
+///
+/// Dropped points and similar problems with the data are not errors: they are
+/// reported on the picture and in [`ChartFiles::notes`].
+///
+/// # Errors
+///
+/// [`Error::Chart`] when the size is outside `MIN_WIDTH..=MAX_SIDE` by
+/// `MIN_HEIGHT..=MAX_SIDE`, when `stem` names no file, or when drawing fails;
+/// [`Error::Io`] when a folder or file cannot be written.
+pub fn draw(spec: &ChartSpec, stem: &Path) -> Result<ChartFiles, Error> {
+    check_size(spec.width, spec.height, stem)?;
+    let mut files = output_files(stem)?;
+    ensure_font().map_err(|reason| Error::Chart {
+        path: stem.to_path_buf(),
+        reason,
+    })?;
+    let prepared = prepare_chart(spec);
+    write_file(&files.csv, &chart_csv(spec, &prepared))?;
+    let painter = ChartPainter {
+        spec,
+        data: &prepared,
+    };
+    write_images(&painter, &files, spec.width, spec.height)?;
+    files.notes = prepared.notes.clone();
+    Ok(files)
+}
+
+/// Draws a two-dimensional game to `STEM.svg` and `STEM.png` and writes its
+/// queries, cuts and boxes to `STEM.csv` (see the module documentation for the
+/// layout and the zoom panel).
+///
+/// # Errors
+///
+/// [`Error::Chart`] when the size is out of range, `half_width` is not a
+/// positive finite number, `stem` names no file, or drawing fails;
+/// [`Error::Io`] when a folder or file cannot be written.
+pub fn draw_game_2d(game: &Game2d, stem: &Path) -> Result<ChartFiles, Error> {
+    check_size(game.width, game.height, stem)?;
+    if !(game.half_width.is_finite() && game.half_width > 0.0) {
+        return Err(Error::Chart {
+            path: stem.to_path_buf(),
+            reason: format!(
+                "half_width must be a positive finite number, got {}",
+                game.half_width
+            ),
+        });
+    }
+    let mut files = output_files(stem)?;
+    ensure_font().map_err(|reason| Error::Chart {
+        path: stem.to_path_buf(),
+        reason,
+    })?;
+    let prepared = prepare_game(game);
+    write_file(&files.csv, &game_csv(game))?;
+    // Query numbers are placed while painting, and a note says how many did
+    // not fit; that note changes the header and so the panels. Paint into a
+    // throwaway SVG until the note is stable, so that both files agree.
+    let mut label_notes: Vec<String> = Vec::new();
+    for _ in 0..3 {
+        let mut scratch = String::new();
+        let root =
+            SVGBackend::with_string(&mut scratch, (game.width, game.height)).into_drawing_area();
+        let painter = GamePainter {
+            game,
+            data: &prepared,
+            extra_notes: &label_notes,
+        };
+        let shown = painter
+            .paint_game(&root, Ink::Vector)
+            .map_err(|reason| Error::Chart {
+                path: files.svg.clone(),
+                reason,
+            })?;
+        let next = label_notes_for(&prepared, &shown);
+        if next == label_notes {
+            break;
+        }
+        label_notes = next;
+    }
+    let painter = GamePainter {
+        game,
+        data: &prepared,
+        extra_notes: &label_notes,
+    };
+    write_images(&painter, &files, game.width, game.height)?;
+    files.notes = prepared.notes.clone();
+    files.notes.extend(label_notes);
+    Ok(files)
+}
