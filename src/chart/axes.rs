@@ -98,6 +98,7 @@ pub(super) struct AxisPlan {
 
 pub(super) fn plan_axis(
     scale: Scale,
+    integer: bool,
     range: (f64, f64),
     len_px: f64,
     horizontal: bool,
@@ -106,7 +107,9 @@ pub(super) fn plan_axis(
     AxisPlan {
         lo: range.0,
         hi: range.1,
-        ticks: fit_ticks(scale, range.0, range.1, len_px, horizontal, sz.tick),
+        ticks: fit_ticks(
+            scale, integer, range.0, range.1, len_px, horizontal, sz.tick,
+        ),
     }
 }
 
@@ -116,12 +119,13 @@ pub(super) fn build_chart<'a, DB: DrawingBackend>(
     ya: &AxisPlan,
     x_area: i32,
     y_area: i32,
+    extra_right: i32,
     sz: &Sizes,
 ) -> Result<ChartContext<'a, DB, Coord2>, String> {
     ChartBuilder::on(area)
         .margin_top(sz.px(8.0))
         .margin_left(sz.px(10.0))
-        .margin_right(sz.px(28.0))
+        .margin_right(sz.px(28.0) + extra_right)
         .margin_bottom(sz.px(8.0))
         .x_label_area_size(x_area)
         .y_label_area_size(y_area)

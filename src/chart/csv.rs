@@ -1,7 +1,7 @@
 //! The CSV written beside each picture (layouts in the module documentation of
 //! [`crate::chart`]).
 
-use super::line::PreparedChart;
+use super::prepare::PreparedChart;
 use super::{ChartSpec, Game2d};
 
 pub(super) fn csv_field(text: &str) -> String {
@@ -23,12 +23,13 @@ pub(super) fn csv_num(v: f64) -> String {
 }
 
 pub(super) fn chart_csv(spec: &ChartSpec, prepared: &PreparedChart) -> String {
-    let mut out = String::from("kind,label,x,y,min,median,max,censored,curve_style,plotted\n");
+    let mut out =
+        String::from("kind,label,x,y,min,median,max,censored,curve_style,plotted,outcome\n");
     for (s, plotted) in spec.series.iter().zip(&prepared.series_plotted) {
         let label = csv_field(&s.label);
         for (p, shown) in s.points.iter().zip(plotted) {
             out.push_str(&format!(
-                "series,{label},{},{},{},{},{},{},,{shown}\n",
+                "series,{label},{},{},{},{},{},{},,{shown},\n",
                 csv_num(p.x),
                 csv_num(p.median),
                 csv_num(p.min),
@@ -38,11 +39,22 @@ pub(super) fn chart_csv(spec: &ChartSpec, prepared: &PreparedChart) -> String {
             ));
         }
     }
+    for (s, plotted) in spec.series.iter().zip(&prepared.flags_plotted) {
+        let label = csv_field(&s.label);
+        for (f, shown) in s.flagged.iter().zip(plotted) {
+            out.push_str(&format!(
+                "flagged,{label},{},{},,,,,,{shown},{}\n",
+                csv_num(f.x),
+                csv_num(f.y),
+                f.flag.outcome()
+            ));
+        }
+    }
     for (c, plotted) in spec.curves.iter().zip(&prepared.curve_plotted) {
         let label = csv_field(&c.label);
         for (&(x, y), shown) in c.points.iter().zip(plotted) {
             out.push_str(&format!(
-                "curve,{label},{},{},,,,,{},{shown}\n",
+                "curve,{label},{},{},,,,,{},{shown},\n",
                 csv_num(x),
                 csv_num(y),
                 c.style.csv_name()

@@ -51,7 +51,15 @@ pub(super) fn panel_layout(panel: &Panel, sz: &Sizes) -> PanelLayout {
     let ya = AxisPlan {
         lo: win[2],
         hi: win[3],
-        ticks: fit_ticks(Scale::Linear, win[2], win[3], provisional, false, sz.tick),
+        ticks: fit_ticks(
+            Scale::Linear,
+            false,
+            win[2],
+            win[3],
+            provisional,
+            false,
+            sz.tick,
+        ),
     };
     let y_area = y_label_area(&ya, "y₂", sz);
     let side = (pw - y_area - ml - mr)
@@ -115,6 +123,7 @@ impl GamePainter<'_> {
             hi: win[1],
             ticks: fit_ticks(
                 Scale::Linear,
+                false,
                 win[0],
                 win[1],
                 f64::from(side),
@@ -127,6 +136,7 @@ impl GamePainter<'_> {
             hi: win[3],
             ticks: fit_ticks(
                 Scale::Linear,
+                false,
                 win[2],
                 win[3],
                 f64::from(side),
@@ -271,8 +281,8 @@ impl GamePainter<'_> {
                 .iter()
                 .map(|p| (f64::from(p.0), f64::from(p.1)))
                 .collect();
-            let dash = Some((6.0 * sz.s, 4.0 * sz.s));
-            draw_styled_path(root, &pts, TEXT, thick, dash)?;
+            let dash = [6.0 * sz.s, 4.0 * sz.s];
+            draw_styled_path(root, &pts, TEXT, thick, &dash)?;
             obstacles.push([a0.0 - 2, a0.1 - 2, c0.0 + 2, c0.1 + 2]);
             let (tw, th) = text_size(number_em, "zoom");
             let gap = sz.px(4.0);

@@ -1,205 +1,27 @@
-//! The line chart: measured series (median line, min-max band, markers) and bound
-//! curves, prepared for the axes' scales and painted with the legend.
+//! The line chart: measured series (median line, min-max band, markers, flagged games)
+//! and bound curves, with the header, the legend (in an empty corner of the plot or
+//! outside it on the right) and the footnotes under the plot.
 
 use plotters::backend::DrawingBackend;
+use plotters::chart::ChartContext;
 use plotters::coord::Shift;
 use plotters::drawing::DrawingArea;
 use plotters::element::{PathElement, Polygon};
-use plotters::style::{Color, RGBColor, WHITE};
+use plotters::style::{Color, WHITE};
 
 use super::axes::{
-    build_chart, draw_axis_text, draw_mesh, plan_axis, x_label_area, y_label_area, Sizes,
+    build_chart, draw_axis_text, draw_mesh, plan_axis, x_label_area, y_label_area, AxisPlan, Sizes,
 };
-use super::legend::{choose_corner, data_samples, draw_legend, legend_entries, legend_layout};
+use super::legend::{draw_legend, empty_corner, legend_entries, legend_layout};
+use super::marker::{draw_flag, draw_marker, draw_up_arrow};
+use super::occupied::occupied;
 use super::output::Painter;
-use super::style::{
-    curve_look, draw_marker, draw_styled_path, draw_up_arrow, Marker, MARKERS, PALETTE,
+use super::prepare::PreparedChart;
+use super::style::{curve_look, draw_styled_path, NOTE, TEXT};
+use super::text::{
+    dr, draw_footer, draw_header, footer_lines, header_lines_with, scale_factor, Ink,
 };
-use super::text::{dr, draw_header, header_lines, plural, scale_factor, Ink};
-use super::ticks::{padded_range, to_plot};
-use super::{ChartSpec, CurveStyle, Px};
-
-#[derive(Debug, Clone, Copy)]
-pub(super) struct PPoint {
-    pub(super) x: f64,
-    /// Lower band end; `None` when it was `<= 0` on a log axis (clipped).
-    pub(super) lo: Option<f64>,
-    pub(super) mid: f64,
-    pub(super) hi: f64,
-    pub(super) censored: bool,
-}
-
-#[derive(Debug, Clone)]
-pub(super) struct PSeries {
-    pub(super) label: String,
-    pub(super) color: RGBColor,
-    pub(super) marker: Marker,
-    pub(super) points: Vec<PPoint>,
-}
-
-#[derive(Debug, Clone)]
-pub(super) struct PCurve {
-    pub(super) style: CurveStyle,
-    pub(super) points: Vec<(f64, f64)>,
-}
-
-#[derive(Debug, Clone)]
-pub(super) struct PreparedChart {
-    pub(super) series: Vec<PSeries>,
-    pub(super) curves: Vec<PCurve>,
-    /// Which input points are drawn: `series_plotted[i][j]` for point `j` of
-    /// series `i`.
-    pub(super) series_plotted: Vec<Vec<bool>>,
-    pub(super) curve_plotted: Vec<Vec<bool>>,
-    pub(super) x_range: (f64, f64),
-    pub(super) y_range: (f64, f64),
-    pub(super) any_censored: bool,
-    pub(super) notes: Vec<String>,
-}
-
-pub(super) fn prepare_chart(spec: &ChartSpec) -> PreparedChart {
-    let mut x_dropped = 0usize;
-    let mut y_dropped = 0usize;
-    let mut non_finite = 0usize;
-    let mut band_clipped = 0usize;
-    let mut series = Vec::new();
-    let mut series_plotted = Vec::new();
-    let mut any_censored = false;
-    for (i, s) in spec.series.iter().enumerate() {
-        let mut points = Vec::new();
-        let mut plotted = Vec::new();
-        for p in &s.points {
-            let finite =
-                p.x.is_finite() && p.min.is_finite() && p.median.is_finite() && p.max.is_finite();
-            if !finite {
-                non_finite += 1;
-                plotted.push(false);
-                continue;
-            }
-            let Some(x) = to_plot(spec.x_scale, p.x) else {
-                x_dropped += 1;
-                plotted.push(false);
-                continue;
-            };
-            let Some(mid) = to_plot(spec.y_scale, p.median) else {
-                y_dropped += 1;
-                plotted.push(false);
-                continue;
-            };
-            let lo = to_plot(spec.y_scale, p.min.min(p.median));
-            if lo.is_none() {
-                band_clipped += 1;
-            }
-            let hi = to_plot(spec.y_scale, p.max.max(p.median)).unwrap_or(mid);
-            any_censored |= p.censored;
-            points.push(PPoint {
-                x,
-                lo,
-                mid,
-                hi,
-                censored: p.censored,
-            });
-            plotted.push(true);
-        }
-        points.sort_by(|a, b| a.x.total_cmp(&b.x));
-        series.push(PSeries {
-            label: s.label.clone(),
-            color: PALETTE[i % PALETTE.len()],
-            marker: MARKERS[i % MARKERS.len()],
-            points,
-        });
-        series_plotted.push(plotted);
-    }
-    let mut curves = Vec::new();
-    let mut curve_plotted = Vec::new();
-    for c in &spec.curves {
-        let mut points = Vec::new();
-        let mut plotted = Vec::new();
-        for &(x, y) in &c.points {
-            if !(x.is_finite() && y.is_finite()) {
-                non_finite += 1;
-                plotted.push(false);
-                continue;
-            }
-            let Some(px) = to_plot(spec.x_scale, x) else {
-                x_dropped += 1;
-                plotted.push(false);
-                continue;
-            };
-            let Some(py) = to_plot(spec.y_scale, y) else {
-                y_dropped += 1;
-                plotted.push(false);
-                continue;
-            };
-            points.push((px, py));
-            plotted.push(true);
-        }
-        points.sort_by(|a, b| a.0.total_cmp(&b.0));
-        curves.push(PCurve {
-            style: c.style,
-            points,
-        });
-        curve_plotted.push(plotted);
-    }
-
-    let mut xs = Vec::new();
-    let mut ys = Vec::new();
-    for s in &series {
-        for p in &s.points {
-            xs.push(p.x);
-            ys.push(p.mid);
-            ys.push(p.hi);
-            if let Some(lo) = p.lo {
-                ys.push(lo);
-            }
-        }
-    }
-    for c in &curves {
-        for &(x, y) in &c.points {
-            xs.push(x);
-            ys.push(y);
-        }
-    }
-
-    let mut notes = Vec::new();
-    if x_dropped > 0 {
-        notes.push(format!(
-            "{} with x ≤ 0 dropped from the log x axis",
-            plural(x_dropped, "point", "points")
-        ));
-    }
-    if y_dropped > 0 {
-        notes.push(format!(
-            "{} with y ≤ 0 dropped from the log y axis",
-            plural(y_dropped, "point", "points")
-        ));
-    }
-    if band_clipped > 0 {
-        notes.push(format!(
-            "{} with min ≤ 0 clipped at the bottom of the log y axis",
-            plural(band_clipped, "band", "bands")
-        ));
-    }
-    if non_finite > 0 {
-        notes.push(format!(
-            "{} with non-finite values dropped",
-            plural(non_finite, "point", "points")
-        ));
-    }
-    if xs.is_empty() {
-        notes.push("nothing to plot: the chart has no drawable data points".into());
-    }
-    PreparedChart {
-        series,
-        curves,
-        series_plotted,
-        curve_plotted,
-        x_range: padded_range(&xs, spec.x_scale),
-        y_range: padded_range(&ys, spec.y_scale),
-        any_censored,
-        notes,
-    }
-}
+use super::{ChartSpec, Coord2, Px};
 
 pub(super) struct ChartPainter<'a> {
     pub(super) spec: &'a ChartSpec,
@@ -212,8 +34,28 @@ impl Painter for ChartPainter<'_> {
         root: &DrawingArea<DB, Shift>,
         ink: Ink,
     ) -> Result<(), String> {
-        paint_chart(root, ink, self.spec, self.data)
+        paint_chart(root, ink, self.spec, self.data).map(|_| ())
     }
+}
+
+/// Where things ended up on a painted chart, in pixels (`[x0, y0, x1, y1]`).
+#[derive(Debug, Clone, PartialEq)]
+pub(super) struct Drawn {
+    /// The plot area.
+    pub(super) plot: [i32; 4],
+    /// The legend's frame, when there is a legend.
+    pub(super) legend: Option<[i32; 4]>,
+    /// Whether the legend is outside the plot area.
+    pub(super) outside: bool,
+}
+
+/// The axes and plot of a chart, before anything is drawn on them.
+struct Frame<'a, DB: DrawingBackend> {
+    chart: ChartContext<'a, DB, Coord2>,
+    xa: AxisPlan,
+    ya: AxisPlan,
+    x_area: i32,
+    y_area: i32,
 }
 
 pub(super) fn paint_chart<DB: DrawingBackend>(
@@ -221,67 +63,145 @@ pub(super) fn paint_chart<DB: DrawingBackend>(
     ink: Ink,
     spec: &ChartSpec,
     data: &PreparedChart,
-) -> Result<(), String> {
+) -> Result<Drawn, String> {
     let (w, h) = root.dim_in_pixel();
     let sz = Sizes::new(scale_factor(w, h));
     let (w, h) = (w as i32, h as i32);
     root.fill(&WHITE).map_err(dr)?;
-    let lines = header_lines(&spec.title, spec.subtitle.as_deref(), &data.notes, w, sz.s);
+    let notes: Vec<(String, _)> = data
+        .notes
+        .iter()
+        .map(|n| (n.text.clone(), if n.problem { NOTE } else { TEXT }))
+        .collect();
+    let lines = header_lines_with(&spec.title, spec.subtitle.as_deref(), &notes, w, sz.s);
     let header_h = draw_header(root, ink, &lines, sz.px(10.0), w)? + sz.px(4.0);
-    let body = root
-        .clone()
-        .shrink((0, header_h), (w, (h - header_h).max(10)));
-    let (bw, bh) = body.dim_in_pixel();
-
+    let footer = footer_lines(&spec.footnotes, w, sz.s);
+    let footer_h = footer
+        .iter()
+        .map(|l| (l.size * 1.35).round() as i32)
+        .sum::<i32>()
+        + if footer.is_empty() { 0 } else { sz.px(8.0) };
+    let body_h = (h - header_h - footer_h).max(10);
+    let body = root.clone().shrink((0, header_h), (w, body_h));
     let x_area = x_label_area(&spec.x_label, &sz);
-    let est_plot_h = f64::from(bh as i32 - x_area - sz.px(16.0)).max(40.0);
-    let mut ya = plan_axis(spec.y_scale, data.y_range, est_plot_h, false, &sz);
-    let mut y_area = y_label_area(&ya, &spec.y_label, &sz);
-    let est_plot_w = f64::from(bw as i32 - y_area - sz.px(38.0)).max(40.0);
-    let xa = plan_axis(spec.x_scale, data.x_range, est_plot_w, true, &sz);
 
-    let mut chart = build_chart(&body, &xa, &ya, x_area, y_area, &sz)?;
+    let frame = |extra_right: i32, y_hi: Option<f64>| {
+        make_frame(&body, spec, data, &sz, x_area, extra_right, y_hi)
+    };
+
     let mut entries = legend_entries(spec, data);
-    let plot = chart.plotting_area().get_pixel_range();
-    let plot_w = plot.0.end - plot.0.start;
-    let layout = legend_layout(&mut entries, (f64::from(plot_w) * 0.45) as i32, &sz);
     let margin = sz.px(10.0);
-    let mut corner = (plot.0.start + margin, plot.1.start + margin);
+    let mut f = frame(0, None)?;
+    let mut corner = None;
+    let mut layout = None;
+    let mut outside = false;
     if !entries.is_empty() {
-        let samples = data_samples(&chart, data, ya.lo);
-        let (c, hidden) = choose_corner(&plot, layout.w, layout.h, margin, &samples);
-        corner = c;
+        // 1. An empty corner of the plot.
+        let plot = f.chart.plotting_area().get_pixel_range();
+        let plot_w = plot.0.end - plot.0.start;
+        let inside = legend_layout(&mut entries, (f64::from(plot_w) * 0.45) as i32, &sz);
+        let taken = occupied(&f.chart, data, f.ya.lo, &sz);
+        corner = empty_corner(&plot, inside.w, inside.h, margin, &taken);
+        // 2. Room made above the data (a taller y range), if that costs little.
         let plot_h = f64::from(plot.1.end - plot.1.start);
-        let need = f64::from(layout.h + 2 * margin);
-        if hidden > 0 && need < 0.45 * plot_h {
-            // Make room above the data and put the legend there.
-            let new_hi = ya.lo + (ya.hi - ya.lo) * plot_h / (plot_h - need);
-            ya = plan_axis(spec.y_scale, (ya.lo, new_hi), est_plot_h, false, &sz);
-            y_area = y_label_area(&ya, &spec.y_label, &sz);
-            chart = build_chart(&body, &xa, &ya, x_area, y_area, &sz)?;
-            let plot = chart.plotting_area().get_pixel_range();
-            let samples = data_samples(&chart, data, ya.lo);
-            corner = choose_corner(&plot, layout.w, layout.h, margin, &samples).0;
+        let need = f64::from(inside.h + 2 * margin);
+        if corner.is_none() && need < 0.4 * plot_h {
+            let (lo, hi) = (f.ya.lo, f.ya.hi);
+            let taller = frame(0, Some(lo + (hi - lo) * plot_h / (plot_h - need)))?;
+            let plot = taller.chart.plotting_area().get_pixel_range();
+            let taken = occupied(&taller.chart, data, taller.ya.lo, &sz);
+            if let Some(c) = empty_corner(&plot, inside.w, inside.h, margin, &taken) {
+                corner = Some(c);
+                f = taller;
+            }
+        }
+        if corner.is_some() {
+            layout = Some(inside);
+        } else {
+            // 3. Outside the plot, on the right.
+            let outer = legend_layout(&mut entries, (f64::from(w) * 0.26) as i32, &sz);
+            f = frame(outer.w + sz.px(4.0), None)?;
+            let plot = f.chart.plotting_area().get_pixel_range();
+            corner = Some((plot.0.end + sz.px(16.0), plot.1.start));
+            layout = Some(outer);
+            outside = true;
         }
     }
 
-    draw_mesh(&mut chart, &sz)?;
-    let to_px = |x: f64, y: f64| -> Px { chart.backend_coord(&(x, y)) };
+    draw_mesh(&mut f.chart, &sz)?;
+    let plot = f.chart.plotting_area().get_pixel_range();
+    let to_px = |x: f64, y: f64| -> Px { f.chart.backend_coord(&(x, y)) };
     draw_axis_text(
         root,
         ink,
-        &chart.plotting_area().get_pixel_range(),
-        (&xa, &ya),
+        &plot,
+        (&f.xa, &f.ya),
         (&spec.x_label, &spec.y_label),
-        (x_area, y_area),
+        (f.x_area, f.y_area),
         &to_px,
         &sz,
     )?;
+    draw_data(root, data, f.ya.lo, &to_px, &sz)?;
 
-    let y_floor = ya.lo;
+    let mut drawn = Drawn {
+        plot: [plot.0.start, plot.1.start, plot.0.end, plot.1.end],
+        legend: None,
+        outside,
+    };
+    if let (Some(corner), Some(layout)) = (corner, layout) {
+        draw_legend(root, ink, &entries, &layout, corner, &sz)?;
+        drawn.legend = Some([corner.0, corner.1, corner.0 + layout.w, corner.1 + layout.h]);
+    }
+    draw_footer(root, ink, &footer, h - footer_h + sz.px(4.0), sz.px(20.0))?;
+    Ok(drawn)
+}
+
+/// Plans the axes and builds the plot on `body`, `extra_right` pixels narrower on the
+/// right (room for the legend) and with the top of the y range at `y_hi` (default: the
+/// data's).
+fn make_frame<'a, DB: DrawingBackend>(
+    body: &'a DrawingArea<DB, Shift>,
+    spec: &ChartSpec,
+    data: &PreparedChart,
+    sz: &Sizes,
+    x_area: i32,
+    extra_right: i32,
+    y_hi: Option<f64>,
+) -> Result<Frame<'a, DB>, String> {
+    let (bw, bh) = body.dim_in_pixel();
+    let est_plot_h = f64::from(bh as i32 - x_area - sz.px(16.0)).max(40.0);
+    let y_range = (data.y_range.0, y_hi.unwrap_or(data.y_range.1));
+    let ya = plan_axis(spec.y_scale, spec.y_integer, y_range, est_plot_h, false, sz);
+    let y_area = y_label_area(&ya, &spec.y_label, sz);
+    let est_plot_w = f64::from(bw as i32 - y_area - sz.px(38.0) - extra_right).max(40.0);
+    let xa = plan_axis(
+        spec.x_scale,
+        spec.x_integer,
+        data.x_range,
+        est_plot_w,
+        true,
+        sz,
+    );
+    let chart = build_chart(body, &xa, &ya, x_area, y_area, extra_right, sz)?;
+    Ok(Frame {
+        chart,
+        xa,
+        ya,
+        x_area,
+        y_area,
+    })
+}
+
+/// Bands and whiskers, median lines, bound curves, markers and flagged games, in that
+/// order (a method that meets a bound does not hide it; markers stay on top).
+fn draw_data<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    data: &PreparedChart,
+    y_floor: f64,
+    to_px: &dyn Fn(f64, f64) -> Px,
+    sz: &Sizes,
+) -> Result<(), String> {
     let line_w = (2.0 * sz.s).round().max(1.0) as u32;
-
-    // Bands.
     for s in &data.series {
         let band = s.color.mix(0.17).filled();
         if s.points.len() >= 2 {
@@ -314,9 +234,6 @@ pub(super) fn paint_chart<DB: DrawingBackend>(
             }
         }
     }
-
-    // Median lines, then the bound curves (so a method that meets a bound does not
-    // hide it), then markers on top.
     for s in &data.series {
         if s.points.len() >= 2 {
             let pts: Vec<Px> = s.points.iter().map(|p| to_px(p.x, p.mid)).collect();
@@ -325,7 +242,7 @@ pub(super) fn paint_chart<DB: DrawingBackend>(
         }
     }
     for c in &data.curves {
-        let (color, width, dash) = curve_look(c.style, sz.s);
+        let (color, width, dash) = curve_look(c.style, c.variant, sz.s);
         let pts: Vec<(f64, f64)> = c
             .points
             .iter()
@@ -334,9 +251,8 @@ pub(super) fn paint_chart<DB: DrawingBackend>(
                 (f64::from(p.0), f64::from(p.1))
             })
             .collect();
-        draw_styled_path(root, &pts, color, width, dash)?;
+        draw_styled_path(root, &pts, color, width, &dash)?;
     }
-
     for s in &data.series {
         for p in &s.points {
             let c = to_px(p.x, p.mid);
@@ -346,9 +262,10 @@ pub(super) fn paint_chart<DB: DrawingBackend>(
             }
         }
     }
-
-    if !entries.is_empty() {
-        draw_legend(root, ink, &entries, &layout, corner, &sz)?;
+    for s in &data.series {
+        for &(x, y, flag) in &s.flags {
+            draw_flag(root, flag, to_px(x, y), sz.marker, s.color, sz.s)?;
+        }
     }
     Ok(())
 }

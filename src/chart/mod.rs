@@ -102,14 +102,22 @@ mod game;
 mod game_panel;
 mod legend;
 mod line;
+mod marker;
+mod occupied;
 mod output;
+mod prepare;
+mod spec;
 mod style;
 #[cfg(test)]
+pub(crate) mod test_svg;
+#[cfg(test)]
 mod tests;
+#[cfg(test)]
+mod tests_looks;
 mod text;
 mod ticks;
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 
 use plotters::backend::SVGBackend;
 use plotters::coord::cartesian::Cartesian2d;
@@ -119,181 +127,14 @@ use crate::error::Error;
 use axes::TickAxis;
 use csv::{chart_csv, game_csv};
 use game::{label_notes_for, prepare_game, GamePainter};
-use line::{prepare_chart, ChartPainter};
+use line::ChartPainter;
 use output::{check_size, output_files, write_file, write_images};
+use prepare::prepare_chart;
+pub use spec::{
+    ChartFiles, ChartSpec, Curve, CurveStyle, Cut2d, Flag, FlaggedGame, Game2d, Scale, Series,
+    SeriesPoint,
+};
 use text::{ensure_font, Ink};
-
-/// One x position of a [`Series`]: the spread of a measured value over seeds.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct SeriesPoint {
-    /// The x value (for example the dimension or `1/epsilon`).
-    pub x: f64,
-    /// Smallest value over the seeds (lower end of the band).
-    pub min: f64,
-    /// Median value over the seeds (the line and the marker).
-    pub median: f64,
-    /// Largest value over the seeds (upper end of the band).
-    pub max: f64,
-    /// True when the budget ended the game, so that the true value is larger
-    /// than the one shown; drawn as a hollow marker with an upward arrow.
-    pub censored: bool,
-}
-
-/// One method's measurements: a min–max band, a median line and markers.
-#[derive(Debug, Clone, PartialEq, Default)]
-pub struct Series {
-    /// Legend text (usually the method's name).
-    pub label: String,
-    /// The points, in any order (they are sorted by x for drawing).
-    pub points: Vec<SeriesPoint>,
-}
-
-/// How a [`Curve`] is drawn.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
-pub enum CurveStyle {
-    /// A proven lower bound: solid thick black line.
-    LowerBound,
-    /// An upper bound (what a known method guarantees): dashed black line.
-    UpperBound,
-    /// Any other guide line: dotted grey line.
-    Guide,
-}
-
-impl CurveStyle {
-    /// The name used in the CSV's `curve_style` column.
-    pub fn csv_name(self) -> &'static str {
-        match self {
-            CurveStyle::LowerBound => "lower_bound",
-            CurveStyle::UpperBound => "upper_bound",
-            CurveStyle::Guide => "guide",
-        }
-    }
-}
-
-/// A theoretical curve (a bound) drawn as a line through its points.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Curve {
-    /// Legend text.
-    pub label: String,
-    /// The `(x, y)` points, in any order (they are sorted by x for drawing).
-    pub points: Vec<(f64, f64)>,
-    /// Line style.
-    pub style: CurveStyle,
-}
-
-/// Scale of an axis.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
-pub enum Scale {
-    /// Linear axis.
-    #[default]
-    Linear,
-    /// Logarithmic axis with ticks at powers of ten.
-    Log10,
-    /// Logarithmic axis with ticks at powers of two.
-    Log2,
-}
-
-/// Everything [`draw`] needs for one chart.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ChartSpec {
-    /// Title at the top of the chart.
-    pub title: String,
-    /// Optional second line under the title (smaller, grey).
-    pub subtitle: Option<String>,
-    /// x axis description.
-    pub x_label: String,
-    /// y axis description.
-    pub y_label: String,
-    /// x axis scale.
-    pub x_scale: Scale,
-    /// y axis scale.
-    pub y_scale: Scale,
-    /// The measured series (one per method).
-    pub series: Vec<Series>,
-    /// The theoretical curves (bounds).
-    pub curves: Vec<Curve>,
-    /// Image width in pixels (the SVG uses the same size).
-    pub width: u32,
-    /// Image height in pixels.
-    pub height: u32,
-}
-
-impl Default for ChartSpec {
-    /// An empty linear chart of 1000 x 650 pixels.
-    fn default() -> Self {
-        ChartSpec {
-            title: String::new(),
-            subtitle: None,
-            x_label: String::new(),
-            y_label: String::new(),
-            x_scale: Scale::Linear,
-            y_scale: Scale::Linear,
-            series: Vec::new(),
-            curves: Vec::new(),
-            width: DEFAULT_WIDTH,
-            height: DEFAULT_HEIGHT,
-        }
-    }
-}
-
-/// The files written by [`draw`] or [`draw_game_2d`], and the notes shown on
-/// the picture.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ChartFiles {
-    /// The SVG picture.
-    pub svg: PathBuf,
-    /// The PNG picture.
-    pub png: PathBuf,
-    /// The data behind the picture, as CSV (see the module documentation).
-    pub csv: PathBuf,
-    /// Notes shown on the picture (dropped points, unlabelled queries, ...);
-    /// empty when nothing needed saying.
-    pub notes: Vec<String>,
-}
-
-/// A cut of a two-dimensional game: the half-plane `{y : normal . y < offset}`.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Cut2d {
-    /// Normal vector of the boundary line.
-    pub normal: [f64; 2],
-    /// Right-hand side: the boundary is `{y : normal . y = offset}`.
-    pub offset: f64,
-}
-
-/// Everything [`draw_game_2d`] needs for a picture of a two-dimensional game.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Game2d {
-    /// Title at the top of the picture.
-    pub title: String,
-    /// `R`: the game is played in the square `[-R, R]^2`.
-    pub half_width: f64,
-    /// The alive box `(x_lo, x_hi, y_lo, y_hi)` after each answer; index 0 is
-    /// the initial box.
-    pub boxes: Vec<[f64; 4]>,
-    /// The query points in the order they were asked.
-    pub queries: Vec<[f64; 2]>,
-    /// The cuts in the order they were answered.
-    pub cuts: Vec<Cut2d>,
-    /// Image width in pixels.
-    pub width: u32,
-    /// Image height in pixels.
-    pub height: u32,
-}
-
-impl Default for Game2d {
-    /// An empty game on `[-1, 1]^2`, 1000 x 650 pixels.
-    fn default() -> Self {
-        Game2d {
-            title: String::new(),
-            half_width: 1.0,
-            boxes: Vec::new(),
-            queries: Vec::new(),
-            cuts: Vec::new(),
-            width: DEFAULT_WIDTH,
-            height: DEFAULT_HEIGHT,
-        }
-    }
-}
 
 /// Default image width in pixels.
 pub const DEFAULT_WIDTH: u32 = 1000;
@@ -343,7 +184,7 @@ pub fn draw(spec: &ChartSpec, stem: &Path) -> Result<ChartFiles, Error> {
         data: &prepared,
     };
     write_images(&painter, &files, spec.width, spec.height)?;
-    files.notes = prepared.notes.clone();
+    files.notes = prepared.notes.iter().map(|n| n.text.clone()).collect();
     Ok(files)
 }
 
@@ -408,4 +249,32 @@ pub fn draw_game_2d(game: &Game2d, stem: &Path) -> Result<ChartFiles, Error> {
     files.notes = prepared.notes.clone();
     files.notes.extend(label_notes);
     Ok(files)
+}
+
+/// The look of a series: its colour and marker shape.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct SeriesLook {
+    /// Red, green, blue.
+    pub color: [u8; 3],
+    /// The marker's shape: `circle`, `square`, `triangle-up`, `diamond`, `triangle-down`,
+    /// `star`, `triangle-right` or `triangle-left`.
+    pub marker: &'static str,
+}
+
+/// The colour and marker of [`Series::look`] `look`: look 8a + b has palette colour b
+/// (Okabe & Ito's colour-blind-safe colours without yellow and black, then two darker
+/// extras) and marker (a + b) mod 8, so the first 64 looks are pairwise distinct and the
+/// first eight differ in both colour and shape.
+pub fn series_look(look: usize) -> SeriesLook {
+    let (color, marker) = marker::look_parts(look);
+    SeriesLook {
+        color: [color.0, color.1, color.2],
+        marker: marker.name(),
+    }
+}
+
+/// A small stand-alone SVG (42 x 16 pixels) of series look `look` as the legend shows it
+/// (band, line and marker), for tables beside the charts (reports).
+pub fn series_swatch_svg(look: usize) -> String {
+    marker::swatch(look)
 }

@@ -1,11 +1,11 @@
-//! Colours, series markers and line styles: the palette, the bound-line looks, marker
-//! shapes (filled and hollow), the censoring arrow, and dashed paths.
+//! Colours and line styles: the palette and series looks, the bound lines' colours,
+//! widths and dash patterns, and dashed paths.
 
 use plotters::backend::DrawingBackend;
 use plotters::coord::Shift;
 use plotters::drawing::DrawingArea;
-use plotters::element::{Circle, PathElement, Polygon};
-use plotters::style::{Color, RGBAColor, RGBColor, ShapeStyle, WHITE};
+use plotters::element::PathElement;
+use plotters::style::{Color, RGBColor};
 
 use super::text::dr;
 use super::{CurveStyle, Px};
@@ -39,161 +39,64 @@ pub(super) const PALETTE: [RGBColor; 8] = [
     RGBColor(110, 110, 20),
 ];
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub(super) enum Marker {
-    Circle,
-    Square,
-    TriangleUp,
-    Diamond,
-    TriangleDown,
+/// The palette colour and marker number (into [`MARKERS`](super::marker::MARKERS)) of
+/// series look `look`: look 8a + b has colour b and marker (a + b) mod 8, so the first 64
+/// looks are pairwise distinct and the first eight differ in both colour and shape.
+pub(super) fn series_colors(look: usize) -> (RGBColor, usize) {
+    let n = PALETTE.len();
+    (PALETTE[look % n], (look % n + look / n) % n)
 }
 
-pub(super) const MARKERS: [Marker; 5] = [
-    Marker::Circle,
-    Marker::Square,
-    Marker::TriangleUp,
-    Marker::Diamond,
-    Marker::TriangleDown,
+/// Dash patterns (on, off, on, off, ... in pixels at scale 1; empty: solid) of each curve
+/// style, in the order curve looks take them.
+const LOWER_PATTERNS: [&[f64]; 3] = [&[], &[16.0, 5.0], &[14.0, 5.0, 3.0, 5.0]];
+const UPPER_PATTERNS: [&[f64]; 5] = [
+    &[11.0, 7.0],
+    &[12.0, 5.0, 2.5, 5.0],
+    &[22.0, 7.0],
+    &[12.0, 4.0, 2.5, 4.0, 2.5, 4.0],
+    &[5.0, 5.0],
 ];
+const GUIDE_PATTERNS: [&[f64]; 2] = [&[2.5, 5.0], &[2.5, 5.0, 10.0, 5.0]];
 
-pub(super) fn curve_look(style: CurveStyle, s: f64) -> (RGBColor, u32, Option<(f64, f64)>) {
+/// How many distinct patterns a curve style has.
+pub(super) fn pattern_count(style: CurveStyle) -> usize {
     match style {
-        CurveStyle::LowerBound => (BLACK, (3.0 * s).round().max(2.0) as u32, None),
-        CurveStyle::UpperBound => (
-            BLACK,
-            (2.0 * s).round().max(1.0) as u32,
-            Some((11.0 * s, 7.0 * s)),
-        ),
-        CurveStyle::Guide => (
-            GUIDE_GREY,
-            (2.0 * s).round().max(1.0) as u32,
-            Some((2.5 * s, 5.0 * s)),
-        ),
+        CurveStyle::LowerBound => LOWER_PATTERNS.len(),
+        CurveStyle::UpperBound => UPPER_PATTERNS.len(),
+        CurveStyle::Guide => GUIDE_PATTERNS.len(),
     }
 }
 
-pub(super) fn marker_outline(m: Marker, c: Px, r: i32) -> Vec<Px> {
-    let (x, y) = (f64::from(c.0), f64::from(c.1));
-    let r = f64::from(r);
-    let pts: Vec<(f64, f64)> = match m {
-        Marker::Circle => Vec::new(),
-        Marker::Square => {
-            let h = r * 0.9;
-            vec![
-                (x - h, y - h),
-                (x + h, y - h),
-                (x + h, y + h),
-                (x - h, y + h),
-            ]
-        }
-        Marker::TriangleUp => vec![
-            (x, y - r * 1.25),
-            (x + r * 1.1, y + r * 0.8),
-            (x - r * 1.1, y + r * 0.8),
-        ],
-        Marker::TriangleDown => vec![
-            (x, y + r * 1.25),
-            (x + r * 1.1, y - r * 0.8),
-            (x - r * 1.1, y - r * 0.8),
-        ],
-        Marker::Diamond => vec![
-            (x, y - r * 1.3),
-            (x + r * 1.05, y),
-            (x, y + r * 1.3),
-            (x - r * 1.05, y),
-        ],
+/// Colour, width and dash pattern (scaled by `s`; empty: solid) of variant `variant` of
+/// a curve style.
+pub(super) fn curve_look(style: CurveStyle, variant: usize, s: f64) -> (RGBColor, u32, Vec<f64>) {
+    let (color, width, patterns): (RGBColor, f64, &[&[f64]]) = match style {
+        CurveStyle::LowerBound => (BLACK, (3.0 * s).round().max(2.0), &LOWER_PATTERNS),
+        CurveStyle::UpperBound => (BLACK, (2.0 * s).round().max(1.0), &UPPER_PATTERNS),
+        CurveStyle::Guide => (GUIDE_GREY, (2.0 * s).round().max(1.0), &GUIDE_PATTERNS),
     };
-    pts.into_iter()
-        .map(|(a, b)| (a.round() as i32, b.round() as i32))
-        .collect()
+    let pattern = patterns[variant % patterns.len()];
+    (color, width as u32, pattern.iter().map(|v| v * s).collect())
 }
 
-pub(super) fn draw_marker<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    m: Marker,
-    c: Px,
-    r: i32,
-    color: RGBColor,
-    hollow: bool,
-    s: f64,
-) -> Result<(), String> {
-    let fill: RGBAColor = if hollow {
-        WHITE.to_rgba()
-    } else {
-        color.to_rgba()
-    };
-    let fill_style = ShapeStyle {
-        color: fill,
-        filled: true,
-        stroke_width: 1,
-    };
-    let edge_style = ShapeStyle {
-        color: if hollow {
-            color.to_rgba()
+/// Splits a pixel polyline into dashes following `pattern` (lengths in pixels: on, off,
+/// on, off, ...; an odd-length pattern repeats as if doubled); an empty pattern draws
+/// the whole line.
+pub(super) fn dash_polyline(points: &[(f64, f64)], pattern: &[f64]) -> Vec<Vec<(f64, f64)>> {
+    if pattern.is_empty() {
+        return if points.len() >= 2 {
+            vec![points.to_vec()]
         } else {
-            WHITE.to_rgba()
-        },
-        filled: false,
-        stroke_width: if hollow {
-            (2.0 * s).round().max(2.0) as u32
-        } else {
-            1
-        },
-    };
-    if m == Marker::Circle {
-        root.draw(&Circle::new(c, r, fill_style)).map_err(dr)?;
-        root.draw(&Circle::new(c, r, edge_style)).map_err(dr)?;
-    } else {
-        let pts = marker_outline(m, c, r);
-        root.draw(&Polygon::new(pts.clone(), fill_style))
-            .map_err(dr)?;
-        let mut closed = pts;
-        if let Some(first) = closed.first().copied() {
-            closed.push(first);
-        }
-        root.draw(&PathElement::new(closed, edge_style))
-            .map_err(dr)?;
+            Vec::new()
+        };
     }
-    Ok(())
-}
-
-/// A small upward arrow above a marker of radius `r` at `c`.
-pub(super) fn draw_up_arrow<DB: DrawingBackend>(
-    root: &DrawingArea<DB, Shift>,
-    c: Px,
-    r: i32,
-    color: RGBColor,
-    s: f64,
-) -> Result<(), String> {
-    let base = c.1 - (f64::from(r) * 1.35).round() as i32 - (2.0 * s).round() as i32;
-    let tip = base - (14.0 * s).round() as i32;
-    let head_h = (6.0 * s).round().max(4.0) as i32;
-    let head_w = (4.5 * s).round().max(3.0) as i32;
-    let width = (2.0 * s).round().max(1.0) as u32;
-    root.draw(&PathElement::new(
-        vec![(c.0, base), (c.0, tip + head_h - 1)],
-        color.stroke_width(width),
-    ))
-    .map_err(dr)?;
-    root.draw(&Polygon::new(
-        vec![
-            (c.0, tip),
-            (c.0 + head_w, tip + head_h),
-            (c.0 - head_w, tip + head_h),
-        ],
-        color.filled(),
-    ))
-    .map_err(dr)?;
-    Ok(())
-}
-
-/// Splits a pixel polyline into dashes of `on` pixels separated by `off`.
-pub(super) fn dash_polyline(points: &[(f64, f64)], on: f64, off: f64) -> Vec<Vec<(f64, f64)>> {
-    let (on, off) = (on.max(1.0), off.max(1.0));
+    let lengths: Vec<f64> = pattern.iter().map(|v| v.max(1.0)).collect();
+    let mut phase = 0usize;
     let mut dashes = Vec::new();
     let mut current: Vec<(f64, f64)> = Vec::new();
     let mut drawing = true;
-    let mut left = on;
+    let mut left = lengths[0];
     for w in points.windows(2) {
         let (a, b) = (w[0], w[1]);
         let len = ((b.0 - a.0).powi(2) + (b.1 - a.1).powi(2)).sqrt();
@@ -218,7 +121,8 @@ pub(super) fn dash_polyline(points: &[(f64, f64)], on: f64, off: f64) -> Vec<Vec
                 }
                 current.clear();
                 drawing = !drawing;
-                left = if drawing { on } else { off };
+                phase += 1;
+                left = lengths[phase % lengths.len()];
             }
         }
     }
@@ -233,13 +137,10 @@ pub(super) fn draw_styled_path<DB: DrawingBackend>(
     pts: &[(f64, f64)],
     color: RGBColor,
     width: u32,
-    dash: Option<(f64, f64)>,
+    pattern: &[f64],
 ) -> Result<(), String> {
     let to_px = |p: &(f64, f64)| (p.0.round() as i32, p.1.round() as i32);
-    let pieces = match dash {
-        None => vec![pts.to_vec()],
-        Some((on, off)) => dash_polyline(pts, on, off),
-    };
+    let pieces = dash_polyline(pts, pattern);
     for piece in pieces {
         if piece.len() >= 2 {
             let px: Vec<Px> = piece.iter().map(to_px).collect();

@@ -86,12 +86,14 @@ fn two_series() -> Vec<Series> {
             points: (1..=6)
                 .map(|d| point(f64::from(d), 10.0 * f64::from(d)))
                 .collect(),
+            ..Series::default()
         },
         Series {
             label: "ellipsoid".into(),
             points: (1..=6)
                 .map(|d| point(f64::from(d), 5.0 * f64::from(d * d)))
                 .collect(),
+            ..Series::default()
         },
     ]
 }
@@ -103,6 +105,7 @@ fn bound() -> Curve {
             .map(|d| (f64::from(d), 8.0 * f64::from(d)))
             .collect(),
         style: CurveStyle::LowerBound,
+        look: None,
     }
 }
 
@@ -114,11 +117,13 @@ fn chart_writes_svg_png_csv_with_texts() {
         label: "upper bound".into(),
         points: vec![(1.0, 20.0), (6.0, 400.0)],
         style: CurveStyle::UpperBound,
+        look: None,
     });
     s.curves.push(Curve {
         label: "guide".into(),
         points: vec![(1.0, 50.0), (6.0, 50.0)],
         style: CurveStyle::Guide,
+        look: None,
     });
     let files = draw(&s, &dir.path().join("sub/chart")).expect("drawn");
     assert!(files.notes.is_empty(), "{:?}", files.notes);
@@ -140,12 +145,12 @@ fn chart_writes_svg_png_csv_with_texts() {
     let texts = svg_texts(&svg);
     assert!(texts.iter().any(|t| t == "dimension d"));
     assert!(texts.iter().any(|t| t == "oracle queries"));
-    assert!(!svg.contains("censored (budget)"));
+    assert!(!svg.contains("censored (budget"));
     let csv = std::fs::read_to_string(&files.csv).expect("csv");
     let mut lines = csv.lines();
     assert_eq!(
         lines.next(),
-        Some("kind,label,x,y,min,median,max,censored,curve_style,plotted")
+        Some("kind,label,x,y,min,median,max,censored,curve_style,plotted,outcome")
     );
     assert_eq!(
         lines.clone().filter(|l| l.starts_with("series,")).count(),
@@ -162,6 +167,7 @@ fn one_point_and_single_series_draw() {
     let one = Series {
         label: "only".into(),
         points: vec![point(3.0, 7.0)],
+        ..Series::default()
     };
     let files = draw(&spec(vec![one], vec![]), &dir.path().join("one")).expect("drawn");
     check_png(&files.png, 640, 420);
@@ -187,6 +193,7 @@ fn equal_values_and_empty_charts_still_draw() {
                 censored: i == 3,
             })
             .collect(),
+        ..Series::default()
     };
     for (x_scale, y_scale) in [(Scale::Linear, Scale::Linear), (Scale::Log2, Scale::Log10)] {
         let s = ChartSpec {
@@ -267,12 +274,12 @@ fn censored_points_are_hollow_with_one_legend_entry() {
     let files = draw(&spec(series, vec![bound()]), &dir.path().join("c")).expect("drawn");
     check_png(&files.png, 640, 420);
     let svg = std::fs::read_to_string(&files.svg).expect("svg");
-    assert_eq!(svg.matches("censored (budget)").count(), 1);
+    assert_eq!(svg.matches("censored (budget").count(), 1);
     // Hollow markers: white fill inside the series colour's outline.
     assert!(svg.contains(r##"stroke="#0072B2" stroke-width="2""##));
     assert!(svg.contains(r##"fill="#FFFFFF""##));
     let csv = std::fs::read_to_string(&files.csv).expect("csv");
-    assert_eq!(csv.matches(",true,,true").count(), 2);
+    assert_eq!(csv.matches(",true,,true,\n").count(), 2);
 }
 
 #[test]
@@ -322,11 +329,13 @@ fn extreme_values_never_panic() {
                         censored: false,
                     },
                 ],
+                ..Series::default()
             }];
             let curves = vec![Curve {
                 label: String::new(),
                 points: vec![(a, b), (b, a)],
                 style: CurveStyle::Guide,
+                look: None,
             }];
             let s = ChartSpec {
                 title: "t".repeat(300),
@@ -432,7 +441,7 @@ fn lines_are_clipped_to_the_window() {
 
 #[test]
 fn dashes_alternate_along_the_path() {
-    let dashes = dash_polyline(&[(0.0, 0.0), (10.0, 0.0), (10.0, 10.0)], 4.0, 2.0);
+    let dashes = dash_polyline(&[(0.0, 0.0), (10.0, 0.0), (10.0, 10.0)], &[4.0, 2.0]);
     // 20 px of path: dashes at 0-4, 6-10, 12-16, 18-20.
     assert_eq!(dashes.len(), 4);
     let length = |d: &Vec<(f64, f64)>| {
@@ -442,7 +451,7 @@ fn dashes_alternate_along_the_path() {
     };
     assert!((length(&dashes[1]) - 4.0).abs() < 1e-9);
     assert!((length(&dashes[3]) - 2.0).abs() < 1e-9);
-    assert!(dash_polyline(&[(0.0, 0.0)], 4.0, 2.0).is_empty());
+    assert!(dash_polyline(&[(0.0, 0.0)], &[4.0, 2.0]).is_empty());
 }
 
 fn halving_game(steps: usize) -> Game2d {

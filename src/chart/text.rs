@@ -202,8 +202,8 @@ pub(super) fn raster_text<DB: DrawingBackend>(
     failure.map_or(Ok(()), Err)
 }
 
-/// Splits `text` into lines no wider than `max_w` pixels (a single word wider
-/// than that stays on its own line).
+/// Splits `text` into lines no wider than `max_w` pixels, at spaces; a word wider than
+/// that on its own is broken between characters. Nothing is ever cut off.
 pub(super) fn wrap(text: &str, size: f64, max_w: i32) -> Vec<String> {
     let mut lines = Vec::new();
     for paragraph in text.lines() {
@@ -214,10 +214,20 @@ pub(super) fn wrap(text: &str, size: f64, max_w: i32) -> Vec<String> {
             } else {
                 format!("{current} {word}")
             };
-            if current.is_empty() || text_size(size, &candidate).0 <= max_w {
+            if text_size(size, &candidate).0 <= max_w {
                 current = candidate;
-            } else {
-                lines.push(std::mem::replace(&mut current, word.to_string()));
+                continue;
+            }
+            if !current.is_empty() {
+                lines.push(std::mem::take(&mut current));
+            }
+            // The word alone: break it where it overflows.
+            for ch in word.chars() {
+                current.push(ch);
+                if current.chars().count() > 1 && text_size(size, &current).0 > max_w {
+                    current.pop();
+                    lines.push(std::mem::replace(&mut current, ch.to_string()));
+                }
             }
         }
         if !current.is_empty() {
@@ -225,23 +235,6 @@ pub(super) fn wrap(text: &str, size: f64, max_w: i32) -> Vec<String> {
         }
     }
     lines
-}
-
-/// Shortens `text` with an ellipsis so that it is at most `max_w` pixels wide.
-pub(super) fn ellipsize(text: &str, size: f64, max_w: i32) -> String {
-    if text_size(size, text).0 <= max_w {
-        return text.to_string();
-    }
-    let chars: Vec<char> = text.chars().collect();
-    let mut keep = chars.len();
-    while keep > 1 {
-        keep -= 1;
-        let candidate: String = chars[..keep].iter().collect::<String>() + "…";
-        if text_size(size, &candidate).0 <= max_w {
-            return candidate;
-        }
-    }
-    "…".into()
 }
 
 pub(super) struct HeaderLine {
@@ -274,6 +267,18 @@ pub(super) fn header_lines(
     width: i32,
     s: f64,
 ) -> Vec<HeaderLine> {
+    let notes: Vec<(String, RGBColor)> = notes.iter().map(|n| (n.clone(), NOTE)).collect();
+    header_lines_with(title, subtitle, &notes, width, s)
+}
+
+/// The title, subtitle and notes (each `Note: ...` in its colour), wrapped to the width.
+pub(super) fn header_lines_with(
+    title: &str,
+    subtitle: Option<&str>,
+    notes: &[(String, RGBColor)],
+    width: i32,
+    s: f64,
+) -> Vec<HeaderLine> {
     let max_w = width - (40.0 * s) as i32;
     let mut lines = Vec::new();
     for text in wrap(title, 23.0 * s, max_w) {
@@ -292,16 +297,58 @@ pub(super) fn header_lines(
             });
         }
     }
-    for note in notes {
+    for (note, color) in notes {
         for text in wrap(&format!("Note: {note}"), 15.0 * s, max_w) {
             lines.push(HeaderLine {
                 text,
                 size: 15.0 * s,
-                color: NOTE,
+                color: *color,
             });
         }
     }
     lines
+}
+
+/// Footnotes, each wrapped to the width (never cut); the first line of each starts
+/// with a bullet.
+pub(super) fn footer_lines(notes: &[String], width: i32, s: f64) -> Vec<HeaderLine> {
+    let size = 13.5 * s;
+    let max_w = width - (40.0 * s) as i32;
+    let mut lines = Vec::new();
+    for note in notes {
+        for (k, text) in wrap(note, size, max_w - (14.0 * s) as i32)
+            .into_iter()
+            .enumerate()
+        {
+            lines.push(HeaderLine {
+                text: if k == 0 {
+                    format!("• {text}")
+                } else {
+                    format!("   {text}")
+                },
+                size,
+                color: MUTED,
+            });
+        }
+    }
+    lines
+}
+
+/// Draws footnote lines left-aligned at `left`, from `top` down.
+pub(super) fn draw_footer<DB: DrawingBackend>(
+    root: &DrawingArea<DB, Shift>,
+    ink: Ink,
+    lines: &[HeaderLine],
+    top: i32,
+    left: i32,
+) -> Result<(), String> {
+    let mut y = top;
+    for line in lines {
+        let l = label(line.size, line.color, HPos::Left, VPos::Top);
+        put_text(root, ink, &line.text, (left, y), l)?;
+        y += (line.size * 1.35).round() as i32;
+    }
+    Ok(())
 }
 
 /// How much larger than at 1000 x 650 pixels text and strokes are drawn.

@@ -205,10 +205,28 @@ pub(super) fn log_ticks(base: f64, lo: f64, hi: f64, max_ticks: usize) -> Ticks 
     Ticks { bold, light }
 }
 
+#[cfg(test)]
 pub(super) fn axis_ticks(scale: Scale, lo: f64, hi: f64, max_ticks: usize) -> Ticks {
+    axis_ticks_for(scale, false, lo, hi, max_ticks)
+}
+
+/// Ticks of an axis whose plot-space range is `[lo, hi]`; on an `integer` axis (the data
+/// are whole numbers) every labelled tick is a whole number and the minor grid lines sit
+/// at whole numbers too.
+pub(super) fn axis_ticks_for(
+    scale: Scale,
+    integer: bool,
+    lo: f64,
+    hi: f64,
+    max_ticks: usize,
+) -> Ticks {
     match scale {
         Scale::Linear => {
-            let (values, step) = linear_values(lo, hi, max_ticks);
+            let (values, step) = if integer {
+                integer_values(lo, hi, max_ticks)
+            } else {
+                linear_values(lo, hi, max_ticks)
+            };
             let bold: Vec<(f64, String)> = values
                 .iter()
                 .map(|v| (*v, format_linear(*v, step)))
@@ -216,18 +234,45 @@ pub(super) fn axis_ticks(scale: Scale, lo: f64, hi: f64, max_ticks: usize) -> Ti
             let light = values
                 .windows(2)
                 .map(|w| (w[0] + w[1]) / 2.0)
+                .filter(|v| !integer || v.fract() == 0.0)
                 .collect::<Vec<_>>();
             Ticks { bold, light }
         }
-        Scale::Log10 => log_ticks(10.0, lo, hi, max_ticks),
-        Scale::Log2 => log_ticks(2.0, lo, hi, max_ticks),
+        Scale::Log10 | Scale::Log2 => {
+            let base = if scale == Scale::Log10 { 10.0 } else { 2.0 };
+            let mut ticks = log_ticks(base, lo, hi, max_ticks);
+            if integer {
+                let whole = |v: f64| {
+                    let x = base.powf(v);
+                    x >= 1.0 - 1e-9 && (x - x.round()).abs() <= 1e-9 * x.max(1.0)
+                };
+                ticks.bold.retain(|(v, _)| whole(*v));
+                ticks.light.retain(|v| whole(*v));
+            }
+            ticks
+        }
     }
+}
+
+/// Whole-number tick values within `[lo, hi]` (a step of at least 1) and their spacing.
+fn integer_values(lo: f64, hi: f64, max_ticks: usize) -> (Vec<f64>, f64) {
+    let step = nice_step(hi - lo, max_ticks).max(1.0).round();
+    let k0 = (lo / step - 1e-9).ceil();
+    let k1 = (hi / step + 1e-9).floor();
+    if !(k0.is_finite() && k1.is_finite()) || k1 < k0 || k1 - k0 > 1000.0 || k0.abs() > 1e15 {
+        return (Vec::new(), step);
+    }
+    let values = (0..=(k1 - k0) as i64)
+        .map(|i| (k0 + i as f64) * step)
+        .collect();
+    (values, step)
 }
 
 /// The densest ticks whose labels do not collide along an axis of `len_px`
 /// pixels (labels side by side when `horizontal`, stacked otherwise).
 pub(super) fn fit_ticks(
     scale: Scale,
+    integer: bool,
     lo: f64,
     hi: f64,
     len_px: f64,
@@ -236,7 +281,7 @@ pub(super) fn fit_ticks(
 ) -> Ticks {
     let mut last = Ticks::default();
     for max_ticks in (2..=10).rev() {
-        let ticks = axis_ticks(scale, lo, hi, max_ticks);
+        let ticks = axis_ticks_for(scale, integer, lo, hi, max_ticks);
         let pos = |v: f64| (v - lo) / (hi - lo) * len_px;
         let fits = ticks.bold.windows(2).all(|w| {
             let gap = (pos(w[1].0) - pos(w[0].0)).abs();
