@@ -6,20 +6,34 @@
 //! [`draw`] renders a [`ChartSpec`] to three files that share a stem:
 //! `STEM.svg`, `STEM.png` and `STEM.csv`. Each [`Series`] (one per method) is
 //! drawn as a translucent min–max band over the seeds, a median line and one
-//! marker per point; each series has its own colour from a fixed palette of
-//! colour-blind-distinguishable colours and its own marker shape. Each
-//! [`Curve`] (a bound) is a line: [`CurveStyle::LowerBound`] solid thick black,
-//! [`CurveStyle::UpperBound`] dashed black, [`CurveStyle::Guide`] dotted grey.
+//! marker per point. Its colour and marker come from [`Series::look`]
+//! ([`series_look`]: Okabe–Ito colour-blind-safe colours and eight marker shapes),
+//! so a caller that numbers its methods once (by their place in the scenario)
+//! gets the same look for a method in every chart. Each [`Curve`] (a bound) is a
+//! line: [`CurveStyle::LowerBound`] thick black, [`CurveStyle::UpperBound`] thin
+//! black, [`CurveStyle::Guide`] grey, each style with several dash patterns so
+//! that no two curves of a chart look alike ([`Curve::look`] fixes a curve's
+//! pattern across charts).
 //!
 //! A point marked `censored` (the query budget ended the game, so the true
 //! value is larger than the one shown) is drawn as a hollow marker with a small
 //! upward arrow, never as an ordinary filled marker, and the legend then has
-//! one extra entry, "censored (budget)".
+//! one extra entry. A [`FlaggedGame`] (a refuted output, a wrong "empty" claim,
+//! a failed method; [`Flag`]) is drawn apart from the line and band as its own
+//! mark in the series' colour: a cross, the empty-set sign, a slashed square or a
+//! crossed square; the legend names every kind drawn.
 //!
-//! The legend has a white background and sits inside the plot area, in the
-//! first corner (upper left, upper right, lower right, lower left) that hides
-//! no data; when every corner would hide data, the y range is extended upwards
-//! to make room for it in the upper left.
+//! The legend goes where it hides no data, measured on the drawn geometry (lines,
+//! the inside of bands, markers, arrows and marks): the first empty corner of the
+//! plot; else an empty corner after raising the top of the y range a little; else
+//! outside the plot, on its right. Legend labels wrap; they are never cut.
+//!
+//! Series that coincide at every point (so that one hides the other) get a note
+//! under the title and a "hidden under" remark in the legend, and a series lying
+//! on a bound line at every point gets a note too. [`ChartSpec::footnotes`] (what
+//! each curve assumes, what the adversary proves) are printed under the plot.
+//! Axes marked [`ChartSpec::x_integer`] / [`ChartSpec::y_integer`] get ticks at
+//! whole numbers only.
 //!
 //! ## Log axes and bad values
 //!
@@ -40,14 +54,15 @@
 //!
 //! | column | meaning |
 //! | --- | --- |
-//! | `kind` | `series` (a method's point) or `curve` (a bound's point) |
+//! | `kind` | `series` (a method's point), `flagged` (a game drawn apart) or `curve` (a bound's point) |
 //! | `label` | the series or curve label |
 //! | `x` | the x value |
-//! | `y` | the plotted y value: the median for `series` rows, the value for `curve` rows |
+//! | `y` | the plotted y value: the median for `series` rows, the value for `flagged` and `curve` rows |
 //! | `min`, `median`, `max` | the spread over seeds (`series` rows only, empty for curves) |
 //! | `censored` | `true` when the budget ended the game (`series` rows only) |
 //! | `curve_style` | `lower_bound`, `upper_bound` or `guide` (`curve` rows only) |
 //! | `plotted` | `false` when the point was dropped (log axis, non-finite value) |
+//! | `outcome` | how a `flagged` game ended (`output-refuted`, `empty-refuted`, `empty-breaks-promise`, `method-failed`); empty otherwise |
 //!
 //! # Game pictures
 //!
@@ -89,12 +104,15 @@
 //!
 //! # Files of this module
 //!
-//! `mod.rs` (the public specifications, [`draw`], [`draw_game_2d`]), `line.rs` (the
-//! line chart), `legend.rs`, `axes.rs` (coordinates, mesh, tick labels), `ticks.rs`
-//! (tick positions and labels), `style.rs` (colours, markers, line styles), `text.rs`
-//! (fonts, measuring and drawing text, headers), `game.rs` and `game_panel.rs` (the
-//! two-dimensional game picture), `csv.rs` (the CSV beside each picture) and
-//! `output.rs` (file names, writing SVG and PNG).
+//! `mod.rs` ([`draw`], [`draw_game_2d`], series looks), `spec.rs` (the public
+//! specifications), `prepare.rs` (data to plot space, looks, coincidences), `line.rs`
+//! (painting the line chart), `legend.rs`, `occupied.rs` (what the data cover, for the
+//! legend), `axes.rs` (coordinates, mesh, tick labels), `ticks.rs` (tick positions and
+//! labels), `style.rs` (colours, line styles, dashes), `marker.rs` (marker shapes and
+//! flag marks), `text.rs` (fonts, measuring, wrapping and drawing text, headers and
+//! footnotes), `game.rs` and `game_panel.rs` (the two-dimensional game picture),
+//! `csv.rs` (the CSV beside each picture) and `output.rs` (file names, writing SVG and
+//! PNG).
 
 mod axes;
 mod csv;

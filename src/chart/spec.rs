@@ -154,7 +154,7 @@ pub enum Scale {
     Log2,
 }
 
-/// Everything [`draw`] needs for one chart.
+/// Everything [`draw`](super::draw) needs for one chart.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ChartSpec {
     /// Title at the top of the chart.
@@ -208,7 +208,7 @@ impl Default for ChartSpec {
     }
 }
 
-/// The files written by [`draw`] or [`draw_game_2d`], and the notes shown on
+/// The files written by [`draw`](super::draw) or [`draw_game_2d`](super::draw_game_2d), and the notes shown on
 /// the picture.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ChartFiles {
@@ -232,7 +232,7 @@ pub struct Cut2d {
     pub offset: f64,
 }
 
-/// Everything [`draw_game_2d`] needs for a picture of a two-dimensional game.
+/// Everything [`draw_game_2d`](super::draw_game_2d) needs for a picture of a two-dimensional game.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Game2d {
     /// Title at the top of the picture.
