@@ -5,7 +5,8 @@
 use std::path::PathBuf;
 
 use naysayer::chart::{
-    draw, draw_game_2d, ChartSpec, Curve, CurveStyle, Cut2d, Game2d, Scale, Series, SeriesPoint,
+    draw, draw_game_2d, ChartSpec, Curve, CurveStyle, Cut2d, Flag, FlaggedGame, Game2d, Scale,
+    Series, SeriesPoint,
 };
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {
@@ -29,7 +30,23 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
                 }
             })
             .collect(),
+        ..Series::default()
     };
+    // A solver that wrongly claimed "empty" early, and one that failed: drawn as their
+    // own marks, outside the median and band.
+    let mut random = mk("random cuts", &|d| 6.0 * d * log_inv_eps, 2.0, 1e6);
+    random.flagged = vec![
+        FlaggedGame {
+            x: 8.0,
+            y: 3.0,
+            flag: Flag::EmptyRefuted,
+        },
+        FlaggedGame {
+            x: 32.0,
+            y: 150.0,
+            flag: Flag::MethodFailed,
+        },
+    ];
     let spec = ChartSpec {
         title: "Queries to certify emptiness against the resisting oracle".into(),
         subtitle: Some("median over 16 seeds, band = min..max; eps = 2^-20".into()),
@@ -40,13 +57,14 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
         series: vec![
             mk("center of gravity", &|d| 1.4 * d * log_inv_eps, 1.15, 1e6),
             mk("ellipsoid", &|d| 2.0 * d * d * log_inv_eps, 1.3, 4e4),
-            mk("random cuts", &|d| 6.0 * d * log_inv_eps, 2.0, 1e6),
+            random,
         ],
         curves: vec![
             Curve {
                 label: "lower bound d log2(1/eps)".into(),
                 points: dims.iter().map(|&d| (d, d * log_inv_eps)).collect(),
                 style: CurveStyle::LowerBound,
+                look: None,
             },
             Curve {
                 label: "upper bound 2 d^2 log2(1/eps)".into(),
@@ -55,12 +73,20 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
                     .map(|&d| (d, 2.2 * d * d * log_inv_eps))
                     .collect(),
                 style: CurveStyle::UpperBound,
+                look: None,
             },
             Curve {
                 label: "budget".into(),
                 points: vec![(2.0, 4e4), (64.0, 4e4)],
                 style: CurveStyle::Guide,
+                look: None,
             },
+        ],
+        x_integer: true,
+        footnotes: vec![
+            "Invented numbers, to show the look: the lower line holds for every method; the \
+             upper line for the ellipsoid method only."
+                .into(),
         ],
         ..ChartSpec::default()
     };

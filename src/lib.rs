@@ -5,7 +5,7 @@
 //! architecture test `tests/architecture.rs` checks it): `error`, `exact`, `csv`, `files`;
 //! `class`, `oracle`; `geometry`, `instance`; `transcript` (the records); `certificate`
 //! (the exact verifier), `bounds`; `adversary`, `method`; `game` (the loop); `demonstration`,
-//! `runner`; `hunt`, `minimax`, `chart`, `scenario`, `family`, `gallery`, `sweep`, `expect`;
+//! `runner`; `hunt`, `minimax`, `chart`, `scenario`, `family`, `gallery`, `report`, `sweep`, `expect`;
 //! `cli`.
 pub mod adversary;
 #[cfg(feature = "argmin")]
@@ -30,6 +30,7 @@ pub mod instance;
 pub mod method;
 pub mod minimax;
 pub mod oracle;
+pub mod report;
 pub mod runner;
 pub mod scenario;
 pub mod sweep;

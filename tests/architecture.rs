@@ -5,8 +5,9 @@
 //! The module graph is read from the source text: a file belongs to the top-level module
 //! of its first path component under `src/` (`src/adversary/halving.rs` is `adversary`),
 //! and it uses every top-level module it names as `crate::<module>` outside comments and
-//! outside its `#[cfg(test)] mod tests` block. A module may use only modules below it;
-//! the test names a circle when it finds one.
+//! outside its unit tests (a `#[cfg(test)] mod tests { ... }` block, or a file declared
+//! with `#[cfg(test)] mod <name>;`, which the library never builds). A module may use only
+//! modules below it; the test names a circle when it finds one.
 
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};
@@ -37,13 +38,48 @@ fn code_of(text: &str) -> String {
         .join("\n")
 }
 
+/// The files declared as unit-test modules (`#[cfg(test)]` then `mod <name>;`).
+fn unit_test_files(files: &[PathBuf]) -> BTreeSet<PathBuf> {
+    let mut tests = BTreeSet::new();
+    for file in files {
+        let text = std::fs::read_to_string(file).unwrap();
+        let lines: Vec<&str> = text.lines().map(str::trim).collect();
+        for pair in lines.windows(2) {
+            if pair[0] == "#[cfg(test)]" {
+                if let Some(name) = pair[1]
+                    .strip_prefix("mod ")
+                    .and_then(|rest| rest.strip_suffix(';'))
+                {
+                    let dir = file.parent().unwrap();
+                    let dir = if file.ends_with("mod.rs") || file.ends_with("lib.rs") {
+                        dir.to_path_buf()
+                    } else {
+                        dir.join(file.file_stem().unwrap())
+                    };
+                    tests.insert(dir.join(format!("{name}.rs")));
+                    tests.insert(dir.join(name).join("mod.rs"));
+                }
+            }
+        }
+    }
+    tests
+}
+
 /// The top-level module graph: module -> modules it uses.
 fn module_graph() -> BTreeMap<String, BTreeSet<String>> {
     let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
     let mut files = Vec::new();
     rust_files(&src, &mut files);
+    let tests = unit_test_files(&files);
+    assert!(
+        tests.iter().any(|t| t.exists()),
+        "the unit-test files were not found"
+    );
     let mut graph: BTreeMap<String, BTreeSet<String>> = BTreeMap::new();
     for file in files {
+        if tests.contains(&file) {
+            continue;
+        }
         let relative = file.strip_prefix(&src).unwrap();
         let first = relative.components().next().unwrap().as_os_str();
         let module = first.to_string_lossy().trim_end_matches(".rs").to_string();
@@ -310,4 +346,20 @@ fn no_one_cites_a_document_the_repository_lacks() {
             assert!(!text.contains(word), "{} mentions {word}", file.display());
         }
     }
+}
+
+#[test]
+fn no_source_file_holds_more_than_800_lines() {
+    // A file holds one idea; past a few hundred lines it usually holds several.
+    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
+    let mut files = Vec::new();
+    rust_files(&src, &mut files);
+    let long: Vec<String> = files
+        .iter()
+        .filter_map(|f| {
+            let lines = std::fs::read_to_string(f).unwrap().lines().count();
+            (lines > 800).then(|| format!("{} ({lines} lines)", f.display()))
+        })
+        .collect();
+    assert!(long.is_empty(), "split these files by idea: {long:?}");
 }

@@ -18,6 +18,7 @@ pub mod minimax;
 pub mod output;
 pub mod play;
 pub mod replay;
+pub mod report;
 pub mod sweep;
 
 use std::path::PathBuf;
@@ -97,6 +98,8 @@ pub enum Command {
     Merge(sweep::MergeArgs),
     /// Draw the charts of a sweep's results folder.
     Chart(chart::ChartArgs),
+    /// Write report.html and report.md of a sweep's results folder.
+    Report(report::ReportArgs),
     /// Exact minimax value of a small integer class over a finite query set (docs/theory.md §6).
     Minimax(minimax::MinimaxArgs),
     /// Play a built-in method against one saved first-order witness function (from a
@@ -303,6 +306,7 @@ pub fn run(cli: Cli) -> Result<u8, Error> {
         Command::Sweep(args) => sweep::run(&args),
         Command::Merge(args) => sweep::run_merge(&args),
         Command::Chart(args) => chart::run(&args),
+        Command::Report(args) => report::run(&args),
         Command::Minimax(args) => minimax::run(&args),
         Command::Hunt(args) => hunt::run(&args),
         Command::Replay(args) => replay::run(&args),

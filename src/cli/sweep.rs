@@ -100,6 +100,13 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
             scenario
                 .grid
                 .draw_charts(&scenario.results_dir(&args.out), &scenario.lineup())?;
+            crate::report::write(
+                &scenario.results_dir(&args.out),
+                &crate::report::ReportOptions {
+                    scenario_path: None,
+                    results_root: Some(args.out.clone()),
+                },
+            )?;
         }
     }
     match &args.expect {
