@@ -101,6 +101,15 @@ pub enum Error {
         /// What is wrong.
         reason: String,
     },
+    /// A run would need more memory than its cap ([`crate::resources`]): refused before
+    /// it starts.
+    #[error("{context}: {reason}")]
+    Memory {
+        /// The command and what it was about to run.
+        context: String,
+        /// Which part needs how much at which parameters, the cap, and what to change.
+        reason: String,
+    },
     /// A transcript record is malformed or out of place.
     #[error("transcript line {line}: {reason}")]
     Transcript {

@@ -2,10 +2,12 @@
 //! oracle-complexity lower bounds exactly.
 //!
 //! The layers, lowest first (a module uses only modules above it in this list; the
-//! architecture test `tests/architecture.rs` checks it): `error`, `exact`, `csv`, `files`, `interrupt`;
-//! `class`, `oracle`; `geometry`, `instance`; `transcript` (the records); `certificate`
-//! (the exact verifier), `bounds`; `adversary`, `method`; `game` (the loop); `demonstration`,
-//! `runner`; `hunt`, `minimax`, `chart`, `scenario`, `family`, `gallery`, `report`, `sweep`, `expect`;
+//! architecture test `tests/architecture.rs` checks it): `error`, `exact`, `csv`,
+//! `files`, `interrupt`, `progress` (counters of long work); `class`, `oracle`, `memory`
+//! (prices of data structures); `geometry`, `instance`; `transcript` (the records);
+//! `certificate` (the exact verifier), `bounds`; `adversary`, `method`; `game` (the
+//! loop); `demonstration`, `runner`; `hunt`, `minimax`, `chart`, `scenario`, `family`,
+//! `gallery`, `report`, `sweep`, `expect`; `resources` (memory and time a run needs);
 //! `cli`.
 pub mod adversary;
 #[cfg(feature = "argmin")]
@@ -28,10 +30,13 @@ pub mod geometry;
 pub mod hunt;
 pub mod instance;
 pub mod interrupt;
+pub mod memory;
 pub mod method;
 pub mod minimax;
 pub mod oracle;
+pub mod progress;
 pub mod report;
+pub mod resources;
 pub mod runner;
 pub mod scenario;
 pub mod sweep;

@@ -335,13 +335,15 @@ impl Minimax {
                 break;
             }
         }
-        if best < cap {
+        let value = if best < cap {
             self.memo.insert(key, (best, true));
             best
         } else {
             self.memo.insert(key, (cap, false));
             cap
-        }
+        };
+        crate::progress::SEARCH.set(self.memo.len() as u64);
+        value
     }
 
     /// The open queries, lattice points of the alive set's bounding box's centre first
@@ -377,6 +379,11 @@ impl Minimax {
     pub fn without_pruning(mut self) -> Minimax {
         self.prune = false;
         self
+    }
+
+    /// |Q|, the number of query points.
+    pub fn query_points(&self) -> usize {
+        self.points.len()
     }
 
     /// V_Q and an optimal first query.
@@ -475,6 +482,7 @@ impl Minimax {
         nodes: &mut usize,
     ) -> Result<u32, Error> {
         *nodes += 1;
+        crate::progress::SEARCH.set(*nodes as u64);
         // Replay the method along the history.
         let mut m: Box<dyn Method + Send> = method::build(name, class, 0)?;
         let mut query = vec![0.0; self.n];

@@ -509,6 +509,58 @@ impl Iterator for GridGames<'_> {
             return Some(game);
         }
     }
+
+    /// Skips `n` games a block of seeds at a time (no game is built for the skipped
+    /// ones), so that `skip` and `step_by` (a shard of a huge grid) cost O(grid classes x
+    /// methods), not O(games).
+    fn nth(&mut self, mut n: usize) -> Option<GridGame> {
+        let s = self.scenario;
+        loop {
+            if n == 0 {
+                return self.next();
+            }
+            if self.class.is_none() {
+                if self.point >= s.grid.len() {
+                    return None;
+                }
+                let point = self.point;
+                self.point += 1;
+                if let Ok(class) = s.grid.class(point) {
+                    self.class = Some(class);
+                    self.method = 0;
+                    self.seed = 0;
+                }
+                continue;
+            }
+            let class = self.class.as_ref().expect("set above");
+            let Some(name) = s.methods.get(self.method) else {
+                self.class = None;
+                continue;
+            };
+            let seeds = if s.deterministic(name) {
+                1
+            } else {
+                s.seeds.len()
+            };
+            let playable =
+                s.external_method(name).is_some() || method::supports(name, class).is_ok();
+            let left = if playable {
+                seeds.saturating_sub(self.seed)
+            } else {
+                0
+            };
+            if n < left {
+                self.seed += n;
+                self.index += n as u64;
+                n = 0;
+                continue;
+            }
+            n -= left;
+            self.index += left as u64;
+            self.method += 1;
+            self.seed = 0;
+        }
+    }
 }
 
 /// A shared, lazily enumerated queue of games, for parallel workers.

@@ -120,6 +120,20 @@ fn restriction(class: &Class) -> Result<(), String> {
     }
 }
 
+/// Memory ([`crate::memory`]): the dead vertices (at most one a query,
+/// at most 2^n), the points answered `inside` (n numbers each), and the
+/// hull witnesses built from them, held also by the final record and the verifier.
+fn memory(class: &Class, queries: u64) -> u64 {
+    let b = queries as f64;
+    let n = match class {
+        Class::Lattice(c) => c.int_dim() as f64,
+        _ => class.query_dim() as f64,
+    };
+    let vertices = 2f64.powf(n).min(b);
+    let point = crate::memory::F64 * n + crate::memory::VEC;
+    crate::memory::bytes(32.0 * vertices + 4.0 * b * point + 4096.0)
+}
+
 /// The registry entry (docs/theory.md: see the description).
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "corner",
@@ -128,6 +142,8 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   docs/theory.md §4, every run certified)",
     scope: Scope::EveryMethod,
     restriction: Some(restriction),
+    memory,
+    memory_note: "the points declared inside (n numbers a query)",
     build: |class| match class {
         Class::Lattice(c) => Ok(Box::new(Corner::new(c)?)),
         _ => Err(wrong_family("corner", "lattice")),

@@ -84,6 +84,13 @@ pub fn build_instance(name: &str, game: &LargeScale) -> Result<Box<dyn Instance>
     })
 }
 
+/// Memory ([`crate::memory`]): the published instance is a formula in
+/// the coordinates: the gradient buffer, its minimiser when judged, and a few vectors of
+/// length d.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    crate::memory::bytes(crate::memory::vectors(6.0, class.query_dim() as f64))
+}
+
 /// The registry entry of `drori-teboulle`.
 pub const DRORI_TEBOULLE: AdversaryInfo = AdversaryInfo {
     name: "drori-teboulle",
@@ -91,6 +98,8 @@ pub const DRORI_TEBOULLE: AdversaryInfo = AdversaryInfo {
     description: "large-scale nonsmooth instance, tight for the subgradient method (Drori & Teboulle 2016); N = T (span methods; demonstration)",
     scope: Scope::SpanMethods,
     restriction: None,
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(FixedFunction::new("drori-teboulle", c)?)),
         _ => Err(wrong_family("drori-teboulle", "large-scale")),
@@ -104,6 +113,8 @@ pub const NESTEROV_NONSMOOTH: AdversaryInfo = AdversaryInfo {
     description: "large-scale nonsmooth instance of Nesterov 2004, Thm 3.2.1; k = T (span methods; demonstration)",
     scope: Scope::SpanMethods,
     restriction: None,
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(FixedFunction::new("nesterov-nonsmooth", c)?)),
         _ => Err(wrong_family("nesterov-nonsmooth", "large-scale")),
@@ -117,6 +128,8 @@ pub const SMOOTH_CHAIN: AdversaryInfo = AdversaryInfo {
     description: "large-scale smooth chain quadratic of Nesterov 2004, Thm 2.1.7; k = T (span methods; demonstration)",
     scope: Scope::SpanMethods,
     restriction: None,
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(FixedFunction::new("smooth-chain", c)?)),
         _ => Err(wrong_family("smooth-chain", "large-scale")),
@@ -130,6 +143,8 @@ pub const STRONGLY_CONVEX_CHAIN: AdversaryInfo = AdversaryInfo {
     description: "large-scale strongly convex chain of Nesterov 2004, Thm 2.1.13; k = T (span methods; demonstration)",
     scope: Scope::SpanMethods,
     restriction: None,
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(FixedFunction::new("strongly-convex-chain", c)?)),
         _ => Err(wrong_family("strongly-convex-chain", "large-scale")),

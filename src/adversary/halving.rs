@@ -119,6 +119,14 @@ impl Halving {
     }
 }
 
+/// Memory ([`crate::memory`]): its box (lower and upper corners, the
+/// cut counts, a frozen copy) and the two ball witnesses it hands over, held also by the
+/// final record and by the verifier (O(d) in all).
+fn memory(class: &Class, _queries: u64) -> u64 {
+    let d = class.query_dim() as f64;
+    crate::memory::bytes(crate::memory::vectors(6.0, d) + 6.0 * crate::memory::EXACT * d)
+}
+
 /// The registry entry (docs/theory.md: see the description).
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "halving",
@@ -127,6 +135,8 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   the larger half (forces d*k + 1 queries; theorem, docs/theory.md §1.1)",
     scope: Scope::EveryMethod,
     restriction: None,
+    memory,
+    memory_note: "its box, O(d)",
     build: |class| match class {
         Class::Feasibility(c) => Ok(Box::new(Halving::new(c))),
         _ => Err(wrong_family("halving", "feasibility")),

@@ -92,6 +92,19 @@ fn restriction(class: &Class) -> Result<(), String> {
     }
 }
 
+/// Memory ([`crate::memory`]): the alive lattice points (at most
+/// [`MAX_ALIVE`], n numbers and a vector header each, twice while splitting), the points
+/// answered `inside`, and the hull witnesses built from them, held also
+/// by the final record and the verifier.
+fn memory(class: &Class, queries: u64) -> u64 {
+    let Class::Lattice(c) = class else {
+        return crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64));
+    };
+    let point = crate::memory::F64 * c.query_dim() as f64 + crate::memory::VEC;
+    let alive = crate::memory::lattice_points(&c.lower, &c.upper).min(MAX_ALIVE as f64);
+    crate::memory::bytes(2.0 * alive * point + 4.0 * queries as f64 * point + 4096.0)
+}
+
 /// The registry entry (docs/theory.md: see the description).
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "lattice-half",
@@ -101,6 +114,8 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   docs/theory.md §4)",
     scope: Scope::EveryMethod,
     restriction: Some(restriction),
+    memory,
+    memory_note: "the alive lattice points and the points declared inside",
     build: |class| match class {
         Class::Lattice(c) => Ok(Box::new(LatticeHalf::new(c)?)),
         _ => Err(wrong_family("lattice-half", "lattice")),

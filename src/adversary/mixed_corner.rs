@@ -400,6 +400,26 @@ fn restriction(class: &Class) -> Result<(), String> {
     }
 }
 
+/// Memory ([`crate::memory`]): a fibre per vertex queried (at most
+/// min(2^n, queries)), each a box-halving adversary on d coordinates (20 d bytes) and two
+/// envelopes a coordinate (48 d bytes); every lifted cut kept in an envelope (a dense
+/// normal of n + d numbers, at most one a query); the points answered `inside` (n + d
+/// numbers each) and the hull witnesses built from them, held also by the final record
+/// and the verifier.
+fn memory(class: &Class, queries: u64) -> u64 {
+    let Class::Lattice(c) = class else {
+        return crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64));
+    };
+    let b = queries as f64;
+    let d = c.cont_dim as f64;
+    let q = c.query_dim() as f64;
+    let fibres = 2f64.powf(c.int_dim() as f64).min(b.max(1.0));
+    let point = crate::memory::F64 * q + crate::memory::VEC;
+    crate::memory::bytes(
+        fibres * (68.0 * d + 128.0) + b * (point + 96.0) + 4.0 * b * point + 8.0 * b + 4096.0,
+    )
+}
+
 /// The registry entry (docs/theory.md: see the description).
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "mixed-corner",
@@ -409,6 +429,8 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   certified)",
     scope: Scope::EveryMethod,
     restriction: Some(restriction),
+    memory,
+    memory_note: "a fibre box per vertex queried and a lifted cut a query (n + d numbers)",
     build: |class| match class {
         Class::Lattice(c) => Ok(Box::new(MixedCorner::new(c)?)),
         _ => Err(wrong_family("mixed-corner", "lattice")),

@@ -122,6 +122,14 @@ pub struct AdversaryInfo {
     /// A cheap check of a class of its family that it cannot play (`Err` says why), run
     /// before building it and when a scenario is read, if any.
     pub restriction: Option<crate::method::Restriction>,
+    /// The bytes it holds in a game of a given number of queries on a class of its
+    /// family, from its data structures, the witnesses or function it hands over
+    /// included: each priced from above and counted as far as that many queries surely
+    /// build it ([`crate::memory`]). A game that cannot fit is refused before it starts
+    /// ([`crate::resources`]).
+    pub memory: crate::method::Memory,
+    /// What dominates that estimate, in a few words for messages.
+    pub memory_note: &'static str,
     /// Builds it for a class of its family.
     pub build: fn(&Class) -> Result<Box<dyn Adversary + Send>, Error>,
 }

@@ -267,8 +267,7 @@ impl Candidate {
     }
 }
 
-/// Exact order of two exact pairs (hi, lo) with hi = fl(hi + lo), all finite (-0 and
-/// +0 are equal).
+/// Exact order of exact pairs (hi, lo), hi = fl(hi + lo), all finite (-0 equals +0).
 fn cmp_pairs(a: (f64, f64), b: (f64, f64)) -> std::cmp::Ordering {
     let cmp = |x: f64, y: f64| x.partial_cmp(&y).unwrap_or(std::cmp::Ordering::Equal);
     cmp(a.0, b.0).then(cmp(a.1, b.1))
@@ -738,6 +737,8 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   minimisers early); kept for comparison, every run certified)",
     scope: Scope::EveryMethod,
     restriction: None,
+    memory: crate::memory::orthant,
+    memory_note: "every answer (2 d numbers) and a certificate search over them",
     build: |class| match class {
         Class::FirstOrder(c) => Ok(Box::new(Orthant::new(c, OrthantSettings::default())?)),
         _ => Err(wrong_family("orthant", "first-order")),

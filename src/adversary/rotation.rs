@@ -227,6 +227,21 @@ impl Rotation {
     }
 }
 
+/// Memory ([`crate::memory`]): the orthonormal basis of up to
+/// T + N + 2 = 2 T + 2 vectors of length d (T the horizon, N = T), and the N + 1 hidden
+/// directions it hands over, held by the witness, the final record and the judge's copy,
+/// and written as JSON (about 25 bytes a number) when a transcript is written.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    let Class::LargeScale(game) = class else {
+        return crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64));
+    };
+    let d = game.function.dim() as f64;
+    let t = game.horizon as f64;
+    let basis = crate::memory::F64 * d * (2.0 * t + 2.0);
+    let handed = (3.0 * crate::memory::F64 + 25.0) * d * (t + 1.0);
+    crate::memory::bytes(basis + handed + crate::memory::vectors(4.0, d))
+}
+
 /// The registry entry (docs/theory.md: see the description).
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "rotation",
@@ -235,6 +250,8 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   N = T (any deterministic method; d >= 2T + 2; demonstration, docs/theory.md §3)",
     scope: Scope::EveryMethod,
     restriction: None,
+    memory,
+    memory_note: "an orthonormal basis of up to 2 T + 2 vectors of length d",
     build: |class| match class {
         Class::LargeScale(c) => Ok(Box::new(Rotation::for_game(c)?)),
         _ => Err(wrong_family("rotation", "large-scale")),

@@ -29,6 +29,9 @@ pub struct DemoArgs {
     /// Worker threads (default: the number of cores).
     #[arg(short, long, allow_negative_numbers = true)]
     pub jobs: Option<usize>,
+    /// Progress and the memory cap.
+    #[command(flatten)]
+    pub work: crate::cli::progress::WorkArgs,
 }
 
 /// Runs `demo`.
@@ -43,8 +46,23 @@ pub fn run(args: &DemoArgs) -> Result<u8, Error> {
         progress: true,
         restart: false,
     };
+    crate::resources::check_scenario(
+        "demo",
+        &scenario,
+        Path::new("<built-in demo scenario>"),
+        &args.work.cap(),
+        settings.jobs,
+    )?;
     crate::say!("naysayer demo: {}", scenario.description);
-    let summary = sweep::run(&scenario, &settings)?;
+    let progress = crate::cli::progress::Report::start(
+        "demo",
+        "games",
+        &crate::progress::GAMES,
+        args.work.quiet,
+    );
+    let summary = sweep::run(&scenario, &settings);
+    progress.finish();
+    let summary = summary?;
     if summary.interrupted {
         crate::note!(
             "naysayer: interrupted by {}; the finished games are kept in {} and `naysayer \

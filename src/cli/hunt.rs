@@ -66,9 +66,6 @@ pub struct HuntArgs {
     /// Write the worst game's transcript here (JSON Lines); it is verified from the file.
     #[arg(short, long)]
     pub transcript: Option<PathArg>,
-    /// Do not draw a progress bar.
-    #[arg(long)]
-    pub quiet: bool,
     /// Instead of hunting: replay the answers recorded in this transcript to the method
     /// its header names (with its seed) and check that it reproduces them.
     #[arg(long, value_name = "FILE")]
@@ -79,6 +76,9 @@ pub struct HuntArgs {
     /// differ is refused, saying where they parted.
     #[command(flatten)]
     pub exec: crate::cli::play::ExecArgs,
+    /// Progress (`--quiet`) and the memory cap.
+    #[command(flatten)]
+    pub work: crate::cli::progress::WorkArgs,
 }
 
 /// Runs `hunt`.
@@ -95,17 +95,22 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
         game_budget: args.budget,
     };
     settings.validate()?;
-    let bar = progress_bar(!args.quiet, args.replays);
+    check_resources(args)?;
+    let bar = crate::cli::progress::Report::start(
+        "hunt",
+        "replays",
+        &crate::progress::SEARCH,
+        args.work.quiet,
+    );
+    crate::progress::SEARCH.set_total(args.replays);
     let mut on_progress = |p: &hunt::HuntProgress| {
-        if let Some(bar) = &bar {
-            bar.set_position(p.replays_used.min(p.replay_budget));
-            bar.set_message(format!(
-                "pass {}, depth {}, worst certified count so far {}",
-                p.pass + 1,
-                p.depth,
-                p.best_certified
-            ));
-        }
+        crate::progress::SEARCH.set(p.replays_used.min(p.replay_budget));
+        bar.set_message(format!(
+            "pass {}, depth {}, worst certified count so far {}",
+            p.pass + 1,
+            p.depth,
+            p.best_certified
+        ));
     };
     if args.exec.exec && args.replay.is_some() {
         return Err(Error::InvalidSetting {
@@ -180,9 +185,7 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
             })
         }
     };
-    if let Some(bar) = bar {
-        bar.finish_and_clear();
-    }
+    bar.finish();
     crate::say_text!("{}", summary(args, &report));
     if crate::interrupt::requested() {
         crate::note!(
@@ -219,21 +222,33 @@ fn external_factory(
     })
 }
 
-fn progress_bar(enabled: bool, total: u64) -> Option<indicatif::ProgressBar> {
-    use std::io::IsTerminal;
-    if !enabled || !std::io::stderr().is_terminal() {
-        return None;
-    }
-    let bar = indicatif::ProgressBar::with_draw_target(
-        Some(total),
-        indicatif::ProgressDrawTarget::stderr(),
-    );
-    if let Ok(style) = indicatif::ProgressStyle::with_template(
-        "{bar:40} {pos}/{len} replays, {elapsed} elapsed, {msg}",
+/// Refuses a hunt that cannot fit in memory, and says when it will likely take hours.
+fn check_resources(args: &HuntArgs) -> Result<(), Error> {
+    let class = match args.family {
+        Family::Feasibility => Class::Feasibility(args.class.to_class()?),
+        Family::FirstOrder => Class::FirstOrder(args.first_order.to_class(&args.class)?),
+        // Refused below with their own message.
+        Family::Lattice | Family::LargeScale => return Ok(()),
+    };
+    let method = (!args.exec.exec).then_some(args.method.as_str());
+    crate::resources::check_hunt(
+        &class,
+        method,
+        args.width,
+        args.random_directions,
+        args.recent_queries,
+        args.budget,
+        &args.work.cap(),
+    )?;
+    if let Some(estimate) = crate::resources::time::hunt(
+        &class,
+        method.unwrap_or("external"),
+        args.replays,
+        args.budget,
     ) {
-        bar.set_style(style);
+        crate::cli::progress::announce("hunt", &estimate);
     }
-    Some(bar)
+    Ok(())
 }
 
 fn figures_text(f: &GameFigures) -> String {

@@ -61,6 +61,10 @@ pub struct MinimaxArgs {
     /// Compute instead the exact worst case of this deterministic built-in method.
     #[arg(long)]
     pub method: Option<String>,
+    /// Show no progress (by default a line every 10 s when standard error is not a
+    /// terminal, a spinner on a terminal).
+    #[arg(long)]
+    pub quiet: bool,
 }
 
 /// Runs `minimax`.
@@ -74,6 +78,18 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
     let start = Instant::now();
     let mut search = Minimax::new(&class, queries)?;
     crate::say!("class                  {}", class.describe());
+    if let Some(estimate) =
+        crate::resources::time::minimax(search.query_points(), args.method.is_some())
+    {
+        crate::cli::progress::announce("minimax", &estimate);
+    }
+    let unit = if args.method.is_some() {
+        "nodes"
+    } else {
+        "states"
+    };
+    let progress =
+        crate::cli::progress::Report::start("minimax", unit, &crate::progress::SEARCH, args.quiet);
     let q_text = match queries {
         QuerySet::Lattice => "lattice points of the box",
         QuerySet::HalfInteger => "lattice and half-integer points of the box",
@@ -81,6 +97,7 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
     match &args.method {
         None => {
             let report = search.solve();
+            progress.finish();
             crate::say!(
                 "query set Q            {q_text} ({} points, {} lattice points)",
                 report.query_points,
@@ -110,7 +127,9 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
             );
         }
         Some(name) => {
-            let report = search.method_worst_case(&class, name)?;
+            let report = search.method_worst_case(&class, name);
+            progress.finish();
+            let report = report?;
             crate::say!(
                 "query set Q            {q_text} ({} points, {} lattice points)",
                 report.query_points,

@@ -17,6 +17,7 @@ pub mod list;
 pub mod minimax;
 pub mod output;
 pub mod play;
+pub mod progress;
 pub mod replay;
 pub mod report;
 pub mod sweep;

@@ -52,6 +52,9 @@ pub struct PlayArgs {
     /// An external method (`--exec -- PROGRAM ARGS...`).
     #[command(flatten)]
     pub exec: ExecArgs,
+    /// Progress and the memory cap.
+    #[command(flatten)]
+    pub work: crate::cli::progress::WorkArgs,
 }
 
 /// Playing an external program that speaks the line protocol
@@ -147,6 +150,15 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
     if let Some(path) = &args.expect {
         crate::expect::Expectations::from_file(path)?;
     }
+    let builtin = (!args.exec.exec).then_some(spec.method.as_str());
+    crate::resources::check_game(
+        "play",
+        &spec.class,
+        builtin,
+        &spec.adversary,
+        spec.budget,
+        &args.work.cap(),
+    )?;
     let (mut method, flush): (Box<dyn Method + Send>, Flush) = if args.exec.exec {
         let settings = args.exec.to_settings()?;
         (
@@ -165,7 +177,20 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
             Flush::Periodic,
         )
     };
-    let report = family::play(&spec, method.as_mut(), flush)?;
+    if let Some(estimate) = builtin
+        .and_then(|m| crate::resources::time::game(&spec.class, m, &spec.adversary, spec.budget))
+    {
+        crate::cli::progress::announce("play", &estimate);
+    }
+    let progress = crate::cli::progress::Report::start(
+        "play",
+        "queries",
+        &crate::progress::QUERIES,
+        args.work.quiet,
+    );
+    let report = family::play(&spec, method.as_mut(), flush);
+    progress.finish();
+    let report = report?;
     let (ending, accepted) = match &report {
         GameReport::Certificate(r) => {
             crate::say_text!("{}", summary(&spec, r));

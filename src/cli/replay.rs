@@ -60,6 +60,9 @@ pub struct ReplayArgs {
     /// Write the transcript here (JSON Lines).
     #[arg(short, long)]
     pub transcript_out: Option<PathArg>,
+    /// Progress and the memory cap.
+    #[command(flatten)]
+    pub work: crate::cli::progress::WorkArgs,
 }
 
 /// What a replay produced.
@@ -234,14 +237,33 @@ pub fn run(args: &ReplayArgs) -> Result<u8, Error> {
             class.norm,
         )?;
     }
-    let report = match replay(
+    let wrapped = Class::FirstOrder(class.clone());
+    crate::resources::check_replay(
+        &wrapped,
+        &args.method,
+        witness.pieces.len(),
+        args.budget,
+        &args.work.cap(),
+    )?;
+    if let Some(estimate) = crate::resources::time::game(&wrapped, &args.method, "", args.budget) {
+        crate::cli::progress::announce("replay", &estimate);
+    }
+    let progress = crate::cli::progress::Report::start(
+        "replay",
+        "queries",
+        &crate::progress::QUERIES,
+        args.work.quiet,
+    );
+    let report = replay(
         &class,
         witness,
         &args.method,
         args.seed,
         args.budget,
         args.transcript_out.as_deref(),
-    ) {
+    );
+    progress.finish();
+    let report = match report {
         Ok(report) => report,
         Err(e @ Error::InvalidClass { .. }) => {
             crate::say!("cannot replay: {e}");

@@ -37,6 +37,9 @@ pub struct SweepArgs {
     /// changed since the games were played.
     #[arg(long)]
     pub restart: bool,
+    /// Progress and the memory cap.
+    #[command(flatten)]
+    pub work: crate::cli::progress::WorkArgs,
 }
 
 /// Arguments of `naysayer merge`.
@@ -59,11 +62,17 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
     if let Some(path) = &args.expect {
         crate::expect::Expectations::from_file(path)?;
     }
+    let jobs = args
+        .jobs
+        .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()));
+    // Every game of every grid must fit before any is played.
+    let cap = args.work.cap();
+    for (scenario, path) in scenarios.iter().zip(&args.scenarios) {
+        crate::resources::check_scenario("sweep", scenario, path, &cap, jobs)?;
+    }
     let mut results = Vec::new();
     let settings = SweepSettings {
-        jobs: args
-            .jobs
-            .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get())),
+        jobs,
         shard: args.shard,
         root: args.out.clone(),
         progress: true,
@@ -71,7 +80,19 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
     };
     let mut code = EXIT_OK;
     for scenario in &scenarios {
-        let summary = sweep::run(scenario, &settings)?;
+        let shards = args.shard.map_or(1, |s| s.count);
+        if let Some(estimate) = crate::resources::time::sweep(scenario, jobs, shards) {
+            crate::cli::progress::announce(&format!("sweep: {}", scenario.name), &estimate);
+        }
+        let progress = crate::cli::progress::Report::start(
+            &format!("sweep: {}", scenario.name),
+            "games",
+            &crate::progress::GAMES,
+            args.work.quiet,
+        );
+        let summary = sweep::run(scenario, &settings);
+        progress.finish();
+        let summary = summary?;
         if args.expect.is_some() {
             results.extend(crate::expect::GameResult::from_csv(&summary.csv)?);
         }

@@ -86,6 +86,13 @@ pub fn play(
     let dim = header.class.query_dim();
     let mut query = vec![0.0; dim];
     let mut used: u64 = 0;
+    // Progress for a watching report (crate::progress): one relaxed store a query.
+    let progress = crate::progress::QUERIES
+        .watched()
+        .then_some(&crate::progress::QUERIES);
+    if let Some(counter) = progress {
+        counter.set(0);
+    }
     let interrupted = || Ending::Interrupted {
         signal: interrupt::signal_name().unwrap_or("a signal").to_string(),
     };
@@ -130,6 +137,9 @@ pub fn play(
                     };
                 }
                 used += 1;
+                if let Some(counter) = progress {
+                    counter.set(used);
+                }
                 for observer in observers.iter_mut() {
                     observer.on_query(used, &query, &answer, &*adversary)?;
                 }
@@ -145,6 +155,9 @@ pub fn play(
         }
     };
     method.end(&ending);
+    if let Some(counter) = progress {
+        counter.set_stage(crate::progress::Stage::Checking);
+    }
     let output = match &ending {
         Ending::Output {
             output: Output::Point { point },

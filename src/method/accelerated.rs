@@ -92,6 +92,11 @@ impl Method for Accelerated {
     }
 }
 
+/// Memory ([`crate::memory`]): the iterates, the gradient and scratch, 6 vectors of length d.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    crate::memory::bytes(crate::memory::vectors(6.0, class.query_dim() as f64))
+}
+
 /// The registry entry of `accelerated`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "accelerated",
@@ -101,6 +106,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: true,
     families: &["large-scale"],
     restriction: Some(crate::method::smooth_only),
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class, _seed| match class {
         Class::LargeScale(c) => Ok(Box::new(Accelerated::new(&c.function, c.horizon))),
         _ => Err(wrong_family("accelerated", &["large-scale"])),

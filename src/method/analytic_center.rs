@@ -273,6 +273,17 @@ impl Method for AnalyticCenter {
     }
 }
 
+/// Memory ([`crate::memory`]): the shared polytope model with one cut
+/// a query and its LPs ([`crate::memory::cut_model`]), and the Newton solve: a copy of
+/// every row in the frame (d + 1 numbers a query), the d x d Hessian and its Cholesky
+/// factor (16 d^2 bytes), and a few vectors.
+fn memory(class: &Class, queries: u64) -> u64 {
+    let d = class.query_dim() as f64;
+    let newton = crate::memory::F64 * (queries as f64 * (d + 1.0) + 2.0 * d * d)
+        + crate::memory::vectors(8.0, d);
+    crate::memory::bytes(crate::memory::cut_model(class, queries) + newton)
+}
+
 /// The registry entry of `analytic-center`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "analytic-center",
@@ -282,6 +293,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["feasibility", "first-order"],
     restriction: None,
+    memory,
+    memory_note: "a cut a query (d + 1 numbers), the LP over them and a d x d Newton matrix",
     build: |class, _seed| match class {
         Class::Feasibility(c) => Ok(Box::new(AnalyticCenter::new(c)?)),
         Class::FirstOrder(c) => Ok(Box::new(AnalyticCenter::first_order(c)?)),

@@ -136,6 +136,14 @@ fn centroid_dimension(class: &Class) -> Result<(), String> {
     Ok(())
 }
 
+/// Memory ([`crate::memory`]): the shared polytope model with one cut
+/// a query and its Chebyshev LP ([`crate::memory::cut_model`]), and the polygon (d = 2)
+/// with at most one vertex more a cut, kept twice while clipping.
+fn memory(class: &Class, queries: u64) -> u64 {
+    let polygon = 2.0 * 16.0 * (queries as f64 + 4.0);
+    crate::memory::bytes(crate::memory::cut_model(class, queries) + polygon)
+}
+
 /// The registry entry of `centroid`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "centroid",
@@ -145,6 +153,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["feasibility"],
     restriction: Some(centroid_dimension),
+    memory,
+    memory_note: "a cut a query (d + 1 numbers) and the LP over them",
     build: |class, _seed| match class {
         Class::Feasibility(c) => Ok(Box::new(Centroid::new(c)?)),
         _ => Err(wrong_family("centroid", &["feasibility"])),

@@ -90,6 +90,11 @@ impl Method for CoordinateSearch {
     }
 }
 
+/// Memory ([`crate::memory`]): the best point, its gradient and scratch, 5 vectors of length d.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    crate::memory::bytes(crate::memory::vectors(5.0, class.query_dim() as f64))
+}
+
 /// The registry entry of `coordinate-search`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "coordinate-search",
@@ -99,6 +104,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["large-scale"],
     restriction: None,
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class, _seed| match class {
         Class::LargeScale(c) => Ok(Box::new(CoordinateSearch::new(&c.function, c.horizon))),
         _ => Err(wrong_family("coordinate-search", &["large-scale"])),

@@ -355,6 +355,18 @@ impl Method for Ellipsoid {
     }
 }
 
+/// Memory ([`crate::memory`]): the d x d shape matrix P (8 d^2 bytes)
+/// and four vectors of length d; on first-order classes also the bundle of every answer
+/// (point, value and subgradient, [`crate::memory::bundle`]).
+fn memory(class: &Class, queries: u64) -> u64 {
+    let d = class.query_dim() as f64;
+    let mut total = crate::memory::F64 * d * d + crate::memory::vectors(4.0, d);
+    if let Class::FirstOrder(_) = class {
+        total += crate::memory::bundle(d, queries as f64);
+    }
+    crate::memory::bytes(total)
+}
+
 /// The registry entry of `ellipsoid`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "ellipsoid",
@@ -364,6 +376,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["feasibility", "first-order"],
     restriction: None,
+    memory,
+    memory_note: "a d x d matrix",
     build: |class, _seed| match class {
         Class::Feasibility(c) => Ok(Box::new(Ellipsoid::new(c))),
         Class::FirstOrder(c) => Ok(Box::new(Ellipsoid::first_order(c))),

@@ -144,6 +144,23 @@ impl Method for Enumerate {
     }
 }
 
+/// Memory ([`crate::memory`]): the list of lattice points (n numbers
+/// and a vector header each) and every cut answered (a dense normal of
+/// n + d numbers and its offset).
+fn memory(class: &Class, queries: u64) -> u64 {
+    let Class::Lattice(c) = class else {
+        return crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64));
+    };
+    let n = c.int_dim() as f64;
+    let q = c.query_dim() as f64;
+    let points = crate::memory::lattice_points(&c.lower, &c.upper);
+    crate::memory::bytes(
+        points * (crate::memory::F64 * n + crate::memory::VEC)
+            + queries as f64 * (crate::memory::F64 * q + 64.0)
+            + crate::memory::vectors(4.0, q),
+    )
+}
+
 /// The registry entry of `enumerate`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "enumerate",
@@ -153,6 +170,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["lattice"],
     restriction: Some(crate::method::pure_integer_only),
+    memory,
+    memory_note: "every lattice point of the box and every cut",
     build: |class, _seed| match class {
         Class::Lattice(c) => Ok(Box::new(Enumerate::new(c)?)),
         _ => Err(wrong_family("enumerate", &["lattice"])),

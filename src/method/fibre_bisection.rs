@@ -195,6 +195,23 @@ impl Method for FibreBisection {
     }
 }
 
+/// Memory ([`crate::memory`]): the lattice points of the integer box
+/// (n numbers and a vector header each), every cut answered (a dense
+/// normal of n + d numbers and its offset), and the current fibre's box.
+fn memory(class: &Class, queries: u64) -> u64 {
+    let Class::Lattice(c) = class else {
+        return crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64));
+    };
+    let n = c.int_dim() as f64;
+    let q = c.query_dim() as f64;
+    let points = crate::memory::lattice_points(&c.lower, &c.upper);
+    crate::memory::bytes(
+        points * (crate::memory::F64 * n + crate::memory::VEC)
+            + queries as f64 * (crate::memory::F64 * q + 64.0)
+            + crate::memory::vectors(6.0, q),
+    )
+}
+
 /// The registry entry of `fibre-bisection`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "fibre-bisection",
@@ -204,6 +221,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["lattice"],
     restriction: None,
+    memory,
+    memory_note: "a cut a query (n + d numbers) and the lattice points",
     build: |class, _seed| match class {
         Class::Lattice(c) => Ok(Box::new(FibreBisection::new(c)?)),
         _ => Err(wrong_family("fibre-bisection", &["lattice"])),

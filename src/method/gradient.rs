@@ -61,6 +61,11 @@ impl Method for Gradient {
     }
 }
 
+/// Memory ([`crate::memory`]): the iterate, the gradient and scratch, 4 vectors of length d.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64))
+}
+
 /// The registry entry of `gradient`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "gradient",
@@ -70,6 +75,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: true,
     families: &["large-scale"],
     restriction: Some(crate::method::smooth_only),
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class, _seed| match class {
         Class::LargeScale(c) => Ok(Box::new(Gradient::new(&c.function, c.horizon))),
         _ => Err(wrong_family("gradient", &["large-scale"])),

@@ -428,6 +428,16 @@ impl Method for Kelley {
     }
 }
 
+/// Memory ([`crate::memory`]): the bundle of every answer
+/// ([`crate::memory::bundle`]) and the LP over the cutting-plane model (one row an
+/// answer with d + 1 entries, two box rows a coordinate, d + 1 variables).
+fn memory(class: &Class, queries: u64) -> u64 {
+    let d = class.query_dim() as f64;
+    let b = queries as f64;
+    let lp = crate::memory::lp_work(b + 2.0 * d, d + 1.0, b * (d + 1.0) + 2.0 * d);
+    crate::memory::bytes(crate::memory::bundle(d, b) + lp + crate::memory::vectors(4.0, d))
+}
+
 /// The registry entry of `kelley`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "kelley",
@@ -437,6 +447,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["first-order"],
     restriction: None,
+    memory,
+    memory_note: "every answer's point and subgradient (2 d numbers a query) and the LP over them",
     build: |class, _seed| match class {
         Class::FirstOrder(c) => Ok(Box::new(Kelley::new(c))),
         _ => Err(wrong_family("kelley", &["first-order"])),

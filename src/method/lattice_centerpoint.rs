@@ -139,6 +139,21 @@ impl Method for LatticeCenterpoint {
     }
 }
 
+/// Memory ([`crate::memory`]): the alive lattice points (n numbers and
+/// a vector header each), held up to three times at once (the set, the candidates and a
+/// split's scratch).
+fn memory(class: &Class, _queries: u64) -> u64 {
+    let Class::Lattice(c) = class else {
+        return crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64));
+    };
+    let n = c.int_dim() as f64;
+    let points = crate::memory::lattice_points(&c.lower, &c.upper);
+    crate::memory::bytes(
+        3.0 * points * (crate::memory::F64 * n + crate::memory::VEC)
+            + crate::memory::vectors(4.0, n),
+    )
+}
+
 /// The registry entry of `lattice-centerpoint`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "lattice-centerpoint",
@@ -148,6 +163,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["lattice"],
     restriction: Some(crate::method::pure_integer_only),
+    memory,
+    memory_note: "every lattice point of the box, three times",
     build: |class, _seed| match class {
         Class::Lattice(c) => Ok(Box::new(LatticeCenterpoint::new(c)?)),
         _ => Err(wrong_family("lattice-centerpoint", &["lattice"])),

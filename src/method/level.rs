@@ -219,6 +219,21 @@ impl Method for Level {
     }
 }
 
+/// Memory ([`crate::memory`]): the bundle of every answer
+/// ([`crate::memory::bundle`]), the LP over the cutting-plane model (as Kelley's),
+/// and the projection: a dense copy of every piece (d numbers a query) and its
+/// quadratic program (a row a query and 2 d more, d variables).
+fn memory(class: &Class, queries: u64) -> u64 {
+    let d = class.query_dim() as f64;
+    let b = queries as f64;
+    let model = crate::memory::lp_work(b + 2.0 * d, d + 1.0, b * (d + 1.0) + 2.0 * d);
+    let projection = crate::memory::F64 * b * (d + 1.0)
+        + crate::memory::lp_work(b + 2.0 * d, d, b * d + 2.0 * d);
+    crate::memory::bytes(
+        crate::memory::bundle(d, b) + model + projection + crate::memory::vectors(4.0, d),
+    )
+}
+
 /// The registry entry of `level`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "level",
@@ -229,6 +244,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["first-order"],
     restriction: None,
+    memory,
+    memory_note: "every answer's point and subgradient (2 d numbers a query) and two LPs over them",
     build: |class, _seed| match class {
         Class::FirstOrder(c) => Ok(Box::new(Level::new(c))),
         _ => Err(wrong_family("level", &["first-order"])),

@@ -74,6 +74,11 @@ impl Method for Midpoint {
     }
 }
 
+/// Memory ([`crate::memory`]): its box model (lower and upper corners) and scratch, 4 vectors of length d.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64))
+}
+
 /// The registry entry of `midpoint`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "midpoint",
@@ -82,6 +87,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["feasibility"],
     restriction: None,
+    memory,
+    memory_note: "its box, 4 d numbers",
     build: |class, _seed| match class {
         Class::Feasibility(c) => Ok(Box::new(Midpoint::new(c))),
         _ => Err(wrong_family("midpoint", &["feasibility"])),

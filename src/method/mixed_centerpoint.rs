@@ -200,6 +200,26 @@ impl Method for MixedCenterpoint {
     }
 }
 
+/// Memory ([`crate::memory`]): per lattice point of the integer box its
+/// coordinates, its fibre's box model (2 d numbers) and at least one sample point (n + d
+/// numbers, twice with its projections); every cut answered (a dense
+/// normal of n + d numbers, its offset and its `f64` view).
+fn memory(class: &Class, queries: u64) -> u64 {
+    let Class::Lattice(c) = class else {
+        return crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64));
+    };
+    let (f, v) = (crate::memory::F64, crate::memory::VEC);
+    let n = c.int_dim() as f64;
+    let d = c.cont_dim as f64;
+    let q = c.query_dim() as f64;
+    let points = crate::memory::lattice_points(&c.lower, &c.upper).max(SAMPLES as f64);
+    crate::memory::bytes(
+        points * (f * n + v + 2.0 * f * d + 3.0 * v + 2.0 * (f * q + v))
+            + queries as f64 * (f * q + 72.0)
+            + crate::memory::vectors(4.0, q),
+    )
+}
+
 /// The registry entry of `mixed-centerpoint`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "mixed-centerpoint",
@@ -209,6 +229,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["lattice"],
     restriction: None,
+    memory,
+    memory_note: "a box per lattice point, lattice points x 2 d numbers, and every cut",
     build: |class, seed| match class {
         Class::Lattice(c) => Ok(Box::new(MixedCenterpoint::new(c, seed)?)),
         _ => Err(wrong_family("mixed-centerpoint", &["lattice"])),

@@ -83,9 +83,21 @@ pub struct MethodInfo {
     pub families: &'static [&'static str],
     /// A further restriction within those families (`Err` says why), if any.
     pub restriction: Option<Restriction>,
+    /// The bytes it holds in a game of a given number of queries on a class of its
+    /// families, from its data structures: each priced from above and counted as far as
+    /// that many queries surely build it ([`crate::memory`]). A game that cannot fit is
+    /// refused before it starts ([`crate::resources`], which counts the queries the game
+    /// is sure to ask).
+    pub memory: Memory,
+    /// What dominates that estimate, in a few words for messages ("a d x d matrix").
+    pub memory_note: &'static str,
     /// Builds it for a class of one of its families, seeded where it is randomized.
     pub build: Builder,
 }
+
+/// A memory estimate: the bytes held on a class over a number of queries
+/// ([`MethodInfo::memory`]); nondecreasing in the dimension and in the queries.
+pub type Memory = fn(&Class, u64) -> u64;
 
 /// Every built-in method, grouped by family. To add one: write `src/method/<name>.rs`
 /// with its type and an `INFO` entry, and list the entry here.

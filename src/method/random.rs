@@ -84,6 +84,11 @@ impl Method for RandomPoint {
     }
 }
 
+/// Memory ([`crate::memory`]): its box model (lower and upper corners) and scratch, 4 vectors of length d.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64))
+}
+
 /// The registry entry of `random`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "random",
@@ -92,6 +97,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["feasibility"],
     restriction: None,
+    memory,
+    memory_note: "its box, 4 d numbers",
     build: |class, seed| match class {
         Class::Feasibility(c) => Ok(Box::new(RandomPoint::new(c, seed))),
         _ => Err(wrong_family("random", &["feasibility"])),

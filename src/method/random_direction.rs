@@ -95,6 +95,11 @@ impl Method for RandomDirection {
     }
 }
 
+/// Memory ([`crate::memory`]): the best point, its gradient, the direction and scratch, 6 vectors of length d.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    crate::memory::bytes(crate::memory::vectors(6.0, class.query_dim() as f64))
+}
+
 /// The registry entry of `random-direction`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "random-direction",
@@ -105,6 +110,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["large-scale"],
     restriction: None,
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class, seed| match class {
         Class::LargeScale(c) => Ok(Box::new(RandomDirection::new(&c.function, c.horizon, seed))),
         _ => Err(wrong_family("random-direction", &["large-scale"])),

@@ -139,6 +139,14 @@ impl Method for SampledCentroid {
     }
 }
 
+/// Memory ([`crate::memory`]): the shared polytope model with one cut
+/// a query and its LPs ([`crate::memory::cut_model`]); the walk keeps a running mean, not
+/// its samples (four vectors of length d).
+fn memory(class: &Class, queries: u64) -> u64 {
+    let d = class.query_dim() as f64;
+    crate::memory::bytes(crate::memory::cut_model(class, queries) + crate::memory::vectors(4.0, d))
+}
+
 /// The registry entry of `sampled-centroid`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "sampled-centroid",
@@ -148,6 +156,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["feasibility", "first-order"],
     restriction: None,
+    memory,
+    memory_note: "a cut a query (d + 1 numbers) and the LP over them",
     build: |class, seed| match class {
         Class::Feasibility(c) => Ok(Box::new(SampledCentroid::new(c, seed)?)),
         Class::FirstOrder(c) => Ok(Box::new(SampledCentroid::first_order(c, seed)?)),

@@ -148,6 +148,11 @@ impl Method for Subgradient {
     }
 }
 
+/// Memory ([`crate::memory`]): the iterate, the best point and scratch, 4 vectors of length d.
+fn memory(class: &Class, _queries: u64) -> u64 {
+    crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64))
+}
+
 /// The registry entry of `subgradient`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "subgradient",
@@ -157,6 +162,8 @@ pub const INFO: MethodInfo = MethodInfo {
     span: false,
     families: &["first-order"],
     restriction: None,
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class, _seed| match class {
         Class::FirstOrder(c) => Ok(Box::new(Subgradient::new(c, StepRule::Fixed))),
         _ => Err(wrong_family("subgradient", &["first-order"])),
@@ -171,6 +178,8 @@ pub const DECAYING: MethodInfo = MethodInfo {
     span: false,
     families: &["first-order"],
     restriction: None,
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class, _seed| match class {
         Class::FirstOrder(c) => Ok(Box::new(Subgradient::new(c, StepRule::Decaying))),
         _ => Err(wrong_family("subgradient-decaying", &["first-order"])),
@@ -186,6 +195,8 @@ pub const UNCONSTRAINED: MethodInfo = MethodInfo {
     span: true,
     families: &["large-scale"],
     restriction: Some(crate::method::nonsmooth_only),
+    memory,
+    memory_note: "a few vectors of length d",
     build: |class, _seed| match class {
         Class::LargeScale(c) => Ok(Box::new(Subgradient::for_large_scale(c)?)),
         _ => Err(wrong_family("unconstrained-subgradient", &["large-scale"])),

@@ -26,7 +26,7 @@
 
 use std::collections::BTreeMap;
 use std::fs::{File, OpenOptions};
-use std::io::{BufRead, BufReader, IsTerminal, Write};
+use std::io::{BufRead, BufReader, Write};
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc;
@@ -72,10 +72,6 @@ impl Shard {
         }
         Ok(Shard { index, count })
     }
-
-    fn owns(&self, game: u64) -> bool {
-        game % self.count == self.index - 1
-    }
 }
 
 /// Settings of a sweep.
@@ -87,7 +83,8 @@ pub struct SweepSettings {
     pub shard: Option<Shard>,
     /// Root folder of the results (default `results`).
     pub root: PathBuf,
-    /// Show a progress bar on stderr when it is a terminal.
+    /// Keep [`crate::progress::GAMES`] up to date (games finished of the shard's total) for
+    /// a progress report to read.
     pub progress: bool,
     /// Start over: remove what an earlier run wrote (its table, scenario copy, external
     /// methods' fingerprints and transcripts) before playing.
@@ -125,14 +122,18 @@ pub fn output_dir(scenario: &Scenario, settings: &SweepSettings) -> PathBuf {
     }
 }
 
-/// The games of `scenario` that `shard` owns (all of them without a shard), lazily.
+/// The games of `scenario` that `shard` owns (all of them without a shard), lazily;
+/// the games of other shards are skipped without being built.
 fn shard_games<'a>(
     scenario: &'a Scenario,
     shard: Option<Shard>,
 ) -> impl Iterator<Item = GridGame> + Send + 'a {
+    let (first, step) = shard.map_or((0, 1), |s| (s.index - 1, s.count));
+    let step = usize::try_from(step).unwrap_or(usize::MAX);
     scenario
         .games()
-        .filter(move |g| shard.is_none_or(|s| s.owns(g.index)))
+        .skip(usize::try_from(first).unwrap_or(usize::MAX))
+        .step_by(step)
 }
 
 /// Runs (or resumes) a sweep.
@@ -185,7 +186,12 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
             source,
         })?;
     }
-    let bar = progress_bar(settings.progress, total, done);
+    let progress = settings.progress.then_some(&crate::progress::GAMES);
+    let resumed = done;
+    if let Some(counter) = progress {
+        counter.set_total(total);
+        counter.set(resumed);
+    }
     let jobs = settings.jobs.max(1);
     let pool = rayon::ThreadPoolBuilder::new()
         .num_threads(jobs)
@@ -268,15 +274,12 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
                 }
                 played += 1;
                 next = expected.next();
-                if let Some(bar) = &bar {
-                    bar.inc(1);
+                if let Some(counter) = progress {
+                    counter.set(resumed + played);
                 }
             }
         }
     });
-    if let Some(bar) = &bar {
-        bar.finish_and_clear();
-    }
     if let Some(e) = failure {
         return Err(e);
     }
@@ -289,23 +292,6 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         interrupted: interrupted || crate::interrupt::requested(),
         csv: csv_path,
     })
-}
-
-fn progress_bar(enabled: bool, total: u64, done: u64) -> Option<indicatif::ProgressBar> {
-    if !enabled || !std::io::stderr().is_terminal() {
-        return None;
-    }
-    let bar = indicatif::ProgressBar::with_draw_target(
-        Some(total),
-        indicatif::ProgressDrawTarget::stderr(),
-    );
-    if let Ok(style) = indicatif::ProgressStyle::with_template(
-        "{bar:40} {pos}/{len} games, {elapsed} elapsed, about {eta} left",
-    ) {
-        bar.set_style(style);
-    }
-    bar.set_position(done);
-    Some(bar)
 }
 
 /// Writes `scenario.toml` into a fresh folder, or checks that an existing one matches.

@@ -505,6 +505,29 @@ impl SlabFunnel {
     }
 }
 
+/// Memory ([`crate::memory`]): the levels a game of `queries` queries surely opens (one
+/// after every d fixed signs, at most one sign a query; a correct deterministic method
+/// must open the qualifying ones, at most ceil(log_7(L R / (2 eps))), docs/theory.md §2.4;
+/// deeper levels are the method's doing and are not counted: a game that keeps fixing
+/// signs grows past this), each priced by [`crate::memory::levels`]; and the witness
+/// pair: 2 d boundary pieces and d pieces a qualifying level, each with a dense slope of
+/// d exact numbers, held by the two witnesses, the final record and the verifier (64 d^2
+/// bytes a level); the answers kept for the LP extension and its LP (while answers x d
+/// is at most 5000) add a little.
+fn memory(class: &Class, queries: u64) -> u64 {
+    let Class::FirstOrder(c) = class else {
+        return crate::memory::bytes(crate::memory::vectors(4.0, class.query_dim() as f64));
+    };
+    let d = c.dim as f64;
+    let qualifying = (crate::bounds::slab_funnel_lower_bound(c) as f64 / d).max(1.0);
+    let opened = (queries as f64 / d + 1.0).min(qualifying + 1.0);
+    let witnesses = 4.0 * crate::memory::EXACT * d * d * (opened + 2.0);
+    // It runs while answers x d <= 5000 (DEFAULT_LP_ENTRIES): at most 5000 variables.
+    let extension = crate::memory::lp_work(5000.0, d.min(5000.0) + 2.0, 10_000.0);
+    let levels = crate::memory::levels(d, opened, qualifying + 1.0);
+    crate::memory::bytes(levels + witnesses + extension + crate::memory::vectors(4.0, d))
+}
+
 /// The registry entry.
 pub const INFO: AdversaryInfo = AdversaryInfo {
     name: "slab-funnel",
@@ -514,6 +537,8 @@ pub const INFO: AdversaryInfo = AdversaryInfo {
                   docs/theory.md §2.4; every run also certified)",
     scope: Scope::EveryMethod,
     restriction: None,
+    memory,
+    memory_note: "its levels and a witness pair with d x d exact slopes a level",
     build: |class| match class {
         Class::FirstOrder(c) => Ok(Box::new(SlabFunnel::new(c, FunnelSettings::default())?)),
         _ => Err(wrong_family("slab-funnel", "first-order")),
