@@ -52,6 +52,36 @@ fn midpoint_game(c: &mut Criterion) {
     group.finish();
 }
 
+/// The same game with a progress report watching its queries (`naysayer play` does;
+/// sweeps do not): the game loop then stores its query count once a query
+/// (`naysayer::progress`). Target: within noise of the unwatched game.
+fn midpoint_game_watched(c: &mut Criterion) {
+    let class = FeasibilityClass::new(10, 1.0, 1e-6, Promise::MayBeEmpty).unwrap();
+    let header = header(&class, "midpoint");
+    let queries = 10 * u64::from(class.halvings()) + 1;
+    let mut group = c.benchmark_group("midpoint_vs_halving_d10_watched");
+    group.throughput(Throughput::Elements(queries));
+    naysayer::progress::QUERIES.watch(true);
+    group.bench_function("full game", |b| {
+        b.iter(|| {
+            let mut method = Midpoint::new(&class);
+            let mut adversary = Halving::new(&class);
+            let record = game::play(
+                &header,
+                &mut method,
+                &mut adversary,
+                &GameSettings { budget: u64::MAX },
+                &mut [],
+            )
+            .unwrap();
+            assert_eq!(naysayer::progress::QUERIES.done(), queries);
+            black_box(record)
+        })
+    });
+    naysayer::progress::QUERIES.watch(false);
+    group.finish();
+}
+
 /// Target: ellipsoid against halving, d = 100: <= 5 microseconds per query.
 fn ellipsoid_step(c: &mut Criterion) {
     let class = FeasibilityClass::new(100, 1.0, 1e-6, Promise::MayBeEmpty).unwrap();
@@ -114,5 +144,11 @@ fn transcript_writing(c: &mut Criterion) {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
-criterion_group!(benches, midpoint_game, ellipsoid_step, transcript_writing);
+criterion_group!(
+    benches,
+    midpoint_game,
+    midpoint_game_watched,
+    ellipsoid_step,
+    transcript_writing
+);
 criterion_main!(benches);

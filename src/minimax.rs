@@ -381,11 +381,6 @@ impl Minimax {
         self
     }
 
-    /// |Q|, the number of query points.
-    pub fn query_points(&self) -> usize {
-        self.points.len()
-    }
-
     /// V_Q and an optimal first query.
     pub fn solve(&mut self) -> MinimaxReport {
         // Iterative deepening on the cap: a search under a tight cap prunes far more, and

@@ -76,13 +76,25 @@ pub fn run(args: &MinimaxArgs) -> Result<u8, Error> {
         QuerySet::HalfInteger
     };
     let start = Instant::now();
+    // |Q|, before the search is prepared (which enumerates every halfspace trace on Q).
+    let points: u64 = class
+        .lower
+        .iter()
+        .zip(&class.upper)
+        .map(|(l, u)| match queries {
+            QuerySet::Lattice => (u - l + 1) as u64,
+            QuerySet::HalfInteger => (2 * (u - l) + 1) as u64,
+        })
+        .fold(1u64, |a, b| a.saturating_mul(b));
+    if points <= crate::minimax::MAX_QUERY_POINTS as u64 {
+        if let Some(estimate) =
+            crate::resources::time::minimax(points as usize, args.method.is_some())
+        {
+            crate::cli::progress::announce("minimax", &estimate);
+        }
+    }
     let mut search = Minimax::new(&class, queries)?;
     crate::say!("class                  {}", class.describe());
-    if let Some(estimate) =
-        crate::resources::time::minimax(search.query_points(), args.method.is_some())
-    {
-        crate::cli::progress::announce("minimax", &estimate);
-    }
     let unit = if args.method.is_some() {
         "nodes"
     } else {

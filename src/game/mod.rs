@@ -97,6 +97,9 @@ pub fn play(
         signal: interrupt::signal_name().unwrap_or("a signal").to_string(),
     };
     let ending = loop {
+        if let Some(counter) = progress {
+            counter.set(used);
+        }
         if interrupt::requested() {
             break interrupted();
         }
@@ -137,9 +140,6 @@ pub fn play(
                     };
                 }
                 used += 1;
-                if let Some(counter) = progress {
-                    counter.set(used);
-                }
                 for observer in observers.iter_mut() {
                     observer.on_query(used, &query, &answer, &*adversary)?;
                 }
@@ -156,6 +156,7 @@ pub fn play(
     };
     method.end(&ending);
     if let Some(counter) = progress {
+        counter.set(used);
         counter.set_stage(crate::progress::Stage::Checking);
     }
     let output = match &ending {

@@ -70,24 +70,20 @@ pub fn sure_queries(
     let forced = match (class, adversary) {
         (Class::Feasibility(c), "halving") => Some((
             crate::bounds::halving_lower_bound(c),
-            "every method needs them, docs/theory.md §1.1",
+            "that every method needs (docs/theory.md §1.1)",
         )),
         (Class::FirstOrder(c), "slab-funnel") if deterministic => Some((
             crate::bounds::slab_funnel_lower_bound(c),
-            "every deterministic method needs them, docs/theory.md §2.4",
+            "that every deterministic method needs (docs/theory.md §2.4)",
         )),
         (Class::Lattice(c), "lattice-half") => crate::bounds::lattice_half_lower_bound(c)
-            .map(|q| (q, "every method needs them, docs/theory.md §4")),
-        (Class::Lattice(c), "corner" | "mixed-corner") => crate::bounds::corner_count(c).map(|q| {
-            (
-                q,
-                "the count the corner construction forces, docs/theory.md §4",
-            )
-        }),
-        (Class::LargeScale(c), _) => Some((c.horizon, "the horizon")),
+            .map(|q| (q, "that every method needs (docs/theory.md §4)")),
+        (Class::Lattice(c), "corner" | "mixed-corner") => crate::bounds::corner_count(c)
+            .map(|q| (q, "that the corner construction forces (docs/theory.md §4)")),
+        (Class::LargeScale(c), _) => Some((c.horizon, "of the horizon")),
         _ => None,
     };
-    let (mut count, mut why) = forced.map_or((1, "at least one".to_string()), |(q, why)| {
+    let (mut count, mut why) = forced.map_or((1, "it asks at least".to_string()), |(q, why)| {
         (q, why.to_string())
     });
     if let (Class::FirstOrder(c), Some(name @ ("subgradient" | "subgradient-decaying"))) =
@@ -97,12 +93,12 @@ pub fn sure_queries(
         let plan = crate::method::subgradient::Subgradient::new(c, rule).planned();
         if plan > count {
             count = plan;
-            why = format!("{name} plans them, ceil((L R sqrt(d) / eps)^2)");
+            why = format!("that {name} plans, ceil((L R sqrt(d) / eps)^2)");
         }
     }
     if count > budget {
         count = budget;
-        why = "the budget".into();
+        why = "of the budget".into();
     }
     (count.max(1), why)
 }
@@ -117,14 +113,20 @@ const GAME_ITSELF: &str = "the game itself";
 pub fn game_need(class: &Class, method: Option<&str>, adversary: &str, budget: u64) -> Need {
     let (queries, _) = sure_queries(class, method, adversary, budget);
     let mut parts = Vec::new();
-    if let Some(info) = method.and_then(crate::method::info) {
+    // A method or adversary that does not play the class counts nothing here: building
+    // the game refuses it with its own message.
+    let plays = |m: &&crate::method::MethodInfo| crate::method::supports(m.name, class).is_ok();
+    if let Some(info) = method.and_then(crate::method::info).filter(plays) {
         parts.push(Part {
             what: format!("method {:?}", info.name),
             bytes: (info.memory)(class, queries),
             note: info.memory_note,
         });
     }
-    if let Some(info) = crate::adversary::info(adversary) {
+    let fits = |a: &&crate::adversary::AdversaryInfo| {
+        a.family == class.family_name() && a.restriction.is_none_or(|check| check(class).is_ok())
+    };
+    if let Some(info) = crate::adversary::info(adversary).filter(fits) {
         parts.push(Part {
             what: format!("adversary {:?}", info.name),
             bytes: (info.memory)(class, queries),
@@ -236,7 +238,7 @@ pub fn refusal(
     let mut at = size_words(class);
     if drives {
         let (queries, why) = sure_queries(class, method, adversary, budget);
-        at.push_str(&format!(" over {queries} queries ({why})"));
+        at.push_str(&format!(" over the {queries} queries {why}"));
     }
     let big: Vec<&Part> = need
         .parts
@@ -245,7 +247,7 @@ pub fn refusal(
         .collect();
     let who = match big.as_slice() {
         [one] => format!(
-            "{} needs about {} at {at} ({})",
+            "{} needs about {} ({}) at {at}",
             one.what,
             format_size(total),
             one.note
@@ -469,4 +471,78 @@ pub fn check_replay(
             cap.describe()
         ),
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::class::{FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
+    use crate::memory::CapSource;
+
+    fn feasibility(d: usize) -> Class {
+        Class::Feasibility(FeasibilityClass::new(d, 1.0, 1e-3, Promise::MayBeEmpty).unwrap())
+    }
+
+    #[test]
+    fn sure_queries_follow_the_forced_and_planned_counts() {
+        // Box halving, d = 4, R/rho = 1000: k = 9 (2^-9 > 1e-3 > 2^-10), d k + 1 = 37
+        // (docs/theory.md §1.1; derived by hand).
+        let c = feasibility(4);
+        assert_eq!(
+            sure_queries(&c, Some("midpoint"), "halving", 1_000_000).0,
+            37
+        );
+        assert_eq!(sure_queries(&c, Some("midpoint"), "halving", 10).0, 10);
+        assert_eq!(sure_queries(&c, None, "halving", 1_000_000).0, 37);
+        // Slab funnel, d = 2, L R / (2 eps) = 50: d ceil(log_7 50) = 2 * 3 = 6 for a
+        // deterministic method (docs/theory.md §2.4), nothing forced on a seeded one.
+        let f = FirstOrderClass::new(2, 1.0, 1e-2, 1.0, LipschitzNorm::L2).unwrap();
+        let f = Class::FirstOrder(f);
+        assert_eq!(sure_queries(&f, Some("kelley"), "slab-funnel", 1000).0, 6);
+        assert_eq!(sure_queries(&f, Some("kelley"), "orthant", 1000).0, 1);
+        // The subgradient method plans ceil((L R sqrt(d) / eps)^2): d = 1, eps = 1/8: 64.
+        let g =
+            Class::FirstOrder(FirstOrderClass::new(1, 1.0, 0.125, 1.0, LipschitzNorm::L2).unwrap());
+        let (q, why) = sure_queries(&g, Some("subgradient"), "orthant", 1000);
+        assert_eq!(q, 64);
+        assert!(why.contains("subgradient plans"), "{why}");
+    }
+
+    #[test]
+    fn a_refusal_names_the_part_its_size_and_the_cap() {
+        let cap = Cap {
+            bytes: 1_000_000_000,
+            source: CapSource::Flag,
+        };
+        // 8 d^2 = 8e10 bytes for the ellipsoid at d = 10^5.
+        let text = refusal(
+            &feasibility(100_000),
+            Some("ellipsoid"),
+            "halving",
+            10,
+            &cap,
+            Advice::Flags,
+        )
+        .unwrap();
+        assert!(
+            text.starts_with("method \"ellipsoid\" needs about 80."),
+            "{text}"
+        );
+        assert!(text.contains("GB (a d x d matrix) at d = 100000"), "{text}");
+        assert!(
+            text.contains("more than the 1.0 GB of --max-memory; lower --dim"),
+            "{text}"
+        );
+        assert_eq!(
+            refusal(
+                &feasibility(100),
+                Some("ellipsoid"),
+                "halving",
+                10,
+                &cap,
+                Advice::Flags
+            ),
+            None
+        );
+    }
 }
