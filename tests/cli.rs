@@ -267,9 +267,12 @@ fn demo_table_shows_midpoint_at_the_bound() {
     assert!(!text.contains("REJECTED"), "{text}");
     let results = dir.path().join("results").join("demo");
     assert!(results.join("games.csv").is_file(), "no games.csv: {text}");
-    // A second run finds every game finished and plays none.
+    // A second run plays every game again (the demo never resumes: a fresh clone's
+    // committed results must not turn the README's first command into a no-op), and
+    // writes the report.
     let again = stdout(&run_in(dir.path(), &["demo"]));
-    assert!(again.contains("0 played now"), "{again}");
+    assert!(again.contains("280 games played"), "{again}");
+    assert!(results.join("report.html").is_file(), "{again}");
 }
 
 #[test]

@@ -344,3 +344,30 @@ fn a_closed_or_full_standard_output_never_panics() {
         assert!(!text(&out.stderr).contains("panicked"));
     }
 }
+
+/// A chart file that cannot be written (here a folder stands where the PNG goes) is an
+/// I/O error: exit code 4 and one sentence naming the file and the cause, and the other
+/// files of the folder are kept.
+#[test]
+fn a_chart_that_cannot_be_written_is_an_io_error_with_a_sentence() {
+    let dir = TempDir::new().unwrap();
+    let out = naysayer(dir.path(), &["demo", "--out", "r", "--jobs", "1"]);
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let folder = dir.path().join("r/demo");
+    for suffix in ["png", "svg", "csv"] {
+        let blocked = folder.join(format!("undecided.{suffix}"));
+        std::fs::remove_file(&blocked).unwrap();
+        std::fs::create_dir(&blocked).unwrap();
+        let out = naysayer(dir.path(), &["chart", "r/demo"]);
+        let message = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(4), "{suffix}: {message}");
+        assert_eq!(
+            message.trim(),
+            format!("naysayer: error: cannot write r/demo/undecided.{suffix}: Is a directory (os error 21)"),
+            "{suffix}"
+        );
+        std::fs::remove_dir(&blocked).unwrap();
+        std::fs::write(&blocked, b"").unwrap();
+    }
+    assert!(folder.join("games.csv").is_file());
+}

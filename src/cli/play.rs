@@ -353,11 +353,9 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
                     ));
                 }
             }
-            if let Some(eps_cert) = verdict.certified_uncertainty {
-                out.push_str(&format!(
-                    "certified uncertainty  {eps_cert:e} (no method can guarantee a smaller \
-                     error from the certified answers; a lower estimate, docs/theory.md §2.2)\n"
-                ));
+            if let Some(value) = verdict.certified_uncertainty {
+                out.push_str(&certified_uncertainty_line(value));
+                out.push('\n');
             }
         }
         Err(_) => {
@@ -400,4 +398,14 @@ pub fn lower_bound_text(verdict: &Verdict) -> String {
         ),
         (None, None) => "none (no certifiable prefix)".into(),
     }
+}
+
+/// The certified uncertainty line of `play` and `check`: the value the exact verifier
+/// computes from the transcript's witness pair (docs/theory.md §2.2).
+pub fn certified_uncertainty_line(value: f64) -> String {
+    format!(
+        "certified uncertainty  {value:e} (from the certificate's witnesses: no method can \
+         guarantee a smaller error from the certified answers; a lower estimate, \
+         docs/theory.md §2.2)"
+    )
 }
