@@ -103,10 +103,12 @@ class Normals(unittest.TestCase):
         self.assertEqual(axis_of(normal, 3), (2, -1))
         self.assertIsNone(axis_of([1.0, 0.0], 2))
 
-    def test_a_dense_normal_holds_plain_numbers(self):
+    def test_a_dense_normal_holds_numbers(self):
         self.assertEqual(read_normal([0.5, -1, 0.1], 3), [0.5, -1.0, 0.1])
         self.assertEqual(read_normal([0.5, -1, 0.1], 3, Fraction),
                          [Fraction(1, 2), Fraction(-1), Fraction(0.1)])
+        third = exact("1/3", 0.3333333333333333)
+        self.assertEqual(read_normal([third, 0.0], 2, Fraction), [Fraction(1, 3), 0])
 
     def test_bad_normals_are_refused(self):
         cases = [
@@ -118,7 +120,8 @@ class Normals(unittest.TestCase):
             ({"axis": 0, "sign": 1.0}, 3, "sign 1.0"),
             ({"axis": 0}, 3, "exactly the keys"),
             ([1.0, 2.0], 3, "expected 3 numbers, got 2"),
-            ([1.0, exact("1/3", 0.3333333333333333)], 2, "expected a number"),
+            ([1.0, exact("1/3", 0.5)], 2, "not the float nearest"),
+            ([1.0, None], 2, "normal\\[1\\]: expected a number"),
             ("1,0", 2, "expected an array"),
         ]
         for normal, dim, message in cases:

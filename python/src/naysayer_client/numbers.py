@@ -12,7 +12,7 @@ Numbers come in two shapes:
 
 Cut normals come in two shapes:
 
-- a dense JSON array of plain numbers, one per coordinate;
+- a dense JSON array of numbers, one per coordinate (naysayer writes plain numbers here);
 - ``{"axis": i, "sign": s}``: the vector s e_i (axis counted from 0, s = +1 or -1).
 
 Every reader takes ``to=float`` (the nearest float; for a plain number that is the
@@ -135,7 +135,7 @@ def read_normal(normal, dim, to=float, what="normal"):
     """A cut normal of either shape as a dense list of ``dim`` numbers.
 
     ``{"axis": i, "sign": s}`` gives s at index i and 0 elsewhere; a dense array must hold
-    ``dim`` plain numbers. Use :func:`axis_of` to keep the cheap shape.
+    ``dim`` numbers. Use :func:`axis_of` to keep the cheap shape.
     """
     _check_to(to)
     axis = axis_of(normal, dim, what)
@@ -147,10 +147,7 @@ def read_normal(normal, dim, to=float, what="normal"):
     if not isinstance(normal, list):
         raise NumberError('%s: expected an array or {"axis": i, "sign": s}, got %s'
                           % (what, _show(normal)))
-    if len(normal) != dim:
-        raise NumberError("%s: expected %d numbers, got %d" % (what, dim, len(normal)))
-    values = [_plain(v, "%s[%d]" % (what, i)) for i, v in enumerate(normal)]
-    return [Fraction(v) for v in values] if to is Fraction else values
+    return read_numbers(normal, to, what, dim)
 
 
 def axis_of(normal, dim, what="normal"):
