@@ -3,8 +3,8 @@
 The Python client is the package `naysayer_client` in `python/src/` of this repository
 (install it anywhere with `pip install ./python`). Importing this file puts this
 checkout's `python/src` first on `sys.path`, so the examples use the client of the same
-checkout as the binary; a copy of an example outside the checkout falls back to the
-installed package. It also re-exports the client's names, so scripts written against the
+checkout as the binary; a copy of an example outside the checkout uses the installed
+package (or a copy of the `naysayer_client` folder beside it). It also re-exports the client's names, so scripts written against the
 earlier single-file client (`from naysayer_method import EMPTY, Output, serve`) keep
 working, with `serve` exiting with status 1 when the method failed, as it did.
 """
@@ -21,7 +21,8 @@ try:
     import naysayer_client
 except ImportError:
     sys.exit("naysayer_method: the package naysayer_client is neither in this checkout "
-             "(python/src) nor installed; run `pip install ./python` in naysayer's repository")
+             "(python/src), nor beside this file, nor installed: run `pip install ./python` "
+             "in naysayer's repository (or copy python/src/naysayer_client beside this file)")
 
 from naysayer_client import (  # noqa: E402,F401
     EMPTY,

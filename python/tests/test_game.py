@@ -18,6 +18,7 @@ from naysayer_client import (
     NaysayerError,
     NaysayerFailed,
     NaysayerNotFound,
+    NaysayerTimeout,
     find_binary,
     play,
 )
@@ -158,6 +159,28 @@ class Games(unittest.TestCase):
         self.assertTrue(result.verified)
         self.assertEqual(result.adversary, "slab-funnel")
         self.assertEqual(result.exit_code, 0, result.stderr)
+        # naysayer said why the game ended, and the method heard it.
+        self.assertIn("over: budget", result.stderr)
+
+    def test_a_timeout_interrupts_the_game_and_keeps_its_result(self):
+        slow = ASK_FOREVER.replace("return [0.0] * self.dim",
+                                   "import time; time.sleep(0.05); return [0.0] * self.dim")
+        method = self.script("slow.py", slow)
+        path = os.path.join(self.folder, "slow.jsonl")
+        with self.assertRaises(NaysayerTimeout) as caught:
+            play(method, dim=2, transcript=path, timeout=1.5)
+        error = caught.exception
+        self.assertIn("more than 1.5 s", str(error))
+        self.assertEqual(error.exit_code, 6, error.stderr)
+        result = error.result
+        self.assertIsNotNone(result, error.stderr)
+        self.assertEqual(result.outcome, "interrupted")
+        self.assertTrue(result.verified)
+        self.assertGreater(result.queries_used, 0)
+        with open(path) as f:
+            final = json.loads(f.read().splitlines()[-1])
+        self.assertEqual(final["data"]["ending"]["kind"], "interrupted")
+        self.assertEqual(final["data"]["queries_used"], result.queries_used)
 
     def test_a_failing_method_is_a_result(self):
         method = self.script("broken.py", ASK_FOREVER.replace("pass", "1 / 0"))

@@ -56,7 +56,14 @@ class NaysayerFailed(NaysayerError):
 
 
 class NaysayerTimeout(NaysayerError):
-    """The game took longer than the ``timeout`` given to :func:`play`."""
+    """The game took longer than the ``timeout`` given to :func:`play`. ``result`` is the
+    :class:`GameResult` of the interrupted game when naysayer printed one (ending
+    ``interrupted``, exit code 6: the transcript certifies what was answered), else
+    ``None``."""
+
+    def __init__(self, message, command=None, exit_code=None, stderr=None, result=None):
+        super().__init__(message, command, exit_code, stderr)
+        self.result = result
 
 
 @dataclass(frozen=True)
@@ -73,8 +80,8 @@ class GameResult:
     demonstrations the ending: ``output``, ``budget-exhausted``, ...). ``verified`` is
     true when the verifier accepted the certificate (or the judge the demonstration).
     ``transcript`` is the absolute path of the transcript (``None`` without one).
-    ``exit_code`` is naysayer's (0 fine, 1 rejected, 3 the method failed; see
-    naysayer's README). The other fields are those of the JSON object; ``raw`` holds it.
+    ``exit_code`` is naysayer's (0 fine, 1 rejected, 3 the method failed, 6 interrupted,
+    7 refuted under ``--fail-on-refuted``; see naysayer's README). The other fields are those of the JSON object; ``raw`` holds it.
     """
 
     queries_used: int
@@ -218,8 +225,9 @@ def play(method, *, class_=None, dim=None, adversary=None, budget=None, seed=Non
     ``transcript``: where the transcript goes; ``None`` (the default) writes
     ``game.jsonl`` in a new temporary folder (kept: delete it when done), ``False``
     keeps it in memory only. ``binary``: the naysayer binary (see :func:`find_binary`).
-    ``timeout``: seconds for the whole game; past them naysayer gets SIGTERM (then
-    SIGKILL after 10 s) and :class:`NaysayerTimeout` is raised. ``cwd``, ``env``: for
+    ``timeout``: seconds for the whole game; past them naysayer gets SIGTERM (it stops
+    the program and closes the transcript; SIGKILL follows after 10 s) and
+    :class:`NaysayerTimeout` is raised, with the interrupted game's result. ``cwd``, ``env``: for
     naysayer (and so for the program it starts).
 
     A game in which the method failed or the certificate was rejected is a result
@@ -263,9 +271,16 @@ def play(method, *, class_=None, dim=None, adversary=None, budget=None, seed=Non
             process.kill()
             out, err = process.communicate()
         stderr = err.decode("utf-8", "replace")
+        raw = _result_object(out)
+        try:
+            result = None if raw is None else GameResult.from_json(
+                raw, process.returncode, argv, stderr, path)
+        except KeyError:
+            result = None
         raise NaysayerTimeout("the game took more than %s s; naysayer was stopped%s"
                               % (timeout, _tail(stderr)), command=argv,
-                              exit_code=process.returncode, stderr=stderr) from None
+                              exit_code=process.returncode, stderr=stderr,
+                              result=result) from None
     stderr = err.decode("utf-8", "replace")
     raw = _result_object(out)
     if raw is None:
