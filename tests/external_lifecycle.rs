@@ -466,16 +466,26 @@ deterministic = true
 "#;
 
 /// Writes the relative-command scenario and a copy of the bisection example (and its
-/// client module) into `dir/project`; returns the scenario's path.
+/// client: `naysayer_method.py` and the package `naysayer_client` beside it, as a copy
+/// outside the checkout needs without `pip install ./python`) into `dir/project`;
+/// returns the scenario's path.
 fn relative_project(dir: &Path, python: &str) -> std::path::PathBuf {
     let project = dir.join("project");
-    std::fs::create_dir_all(project.join("solver")).unwrap();
+    let package = project.join("solver/naysayer_client");
+    std::fs::create_dir_all(&package).unwrap();
     for name in ["bisection.py", "naysayer_method.py"] {
         std::fs::copy(
             examples_python().join(name),
             project.join("solver").join(name),
         )
         .unwrap();
+    }
+    let source = Path::new(env!("CARGO_MANIFEST_DIR")).join("python/src/naysayer_client");
+    for entry in std::fs::read_dir(source).unwrap() {
+        let path = entry.unwrap().path();
+        if path.extension().is_some_and(|e| e == "py") {
+            std::fs::copy(&path, package.join(path.file_name().unwrap())).unwrap();
+        }
     }
     let scenario = project.join("relative.toml");
     std::fs::write(

@@ -14,8 +14,10 @@ import math
 import os
 import sys
 
+# This checkout's client (python/src), or the installed package: see naysayer_method.py.
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from naysayer_method import Output, serve  # noqa: E402
+import naysayer_method  # noqa: E402,F401
+from naysayer_client import Output, main  # noqa: E402
 
 MAX_PLANNED = 2 ** 40
 
@@ -54,4 +56,4 @@ class Subgradient:
 
 if __name__ == "__main__":
     decaying = "--decaying" in sys.argv[1:]
-    serve(lambda game: Subgradient(game, decaying))
+    main(lambda game: Subgradient(game, decaying))
