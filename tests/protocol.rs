@@ -23,6 +23,7 @@ mod outside;
 
 /// `python3`; `None` only when it is missing and NAYSAYER_SKIP_PYTHON_TESTS=1 allows
 /// skipping (otherwise the test fails, saying how to install it).
+#[track_caller]
 fn python() -> Option<&'static str> {
     outside::python3()
 }

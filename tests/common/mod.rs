@@ -18,6 +18,7 @@ pub const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
 /// Whether the Python checker can run: true when `python3` runs; false only when it is
 /// missing and NAYSAYER_SKIP_PYTHON_TESTS=1 allows skipping (otherwise this panics,
 /// saying how to install it).
+#[track_caller]
 pub fn python_present() -> bool {
     crate::outside::python3().is_some()
 }

@@ -29,7 +29,9 @@ fn skip_allowed(variable: &str) -> bool {
 
 /// `Some("python3")` when `python3 --version` runs on this machine. When it does not:
 /// `None` (with a notice) if `NAYSAYER_SKIP_PYTHON_TESTS=1`, else a panic saying how to
-/// install it. The probe runs once per test binary.
+/// install it. The probe runs once per test binary. The panic names the calling test's
+/// line.
+#[track_caller]
 pub fn python3() -> Option<&'static str> {
     static FOUND: OnceLock<bool> = OnceLock::new();
     let found = *FOUND.get_or_init(|| {
@@ -57,6 +59,7 @@ pub fn python3() -> Option<&'static str> {
 /// The headless browser: `NAYSAYER_CHROMIUM`, else the first of the usual names on
 /// PATH. When there is none: `None` (with a notice) if `NAYSAYER_SKIP_BROWSER_TESTS=1`,
 /// else a panic saying how to install one.
+#[track_caller]
 pub fn browser() -> Option<PathBuf> {
     if let Some(found) = find_browser() {
         return Some(found);
