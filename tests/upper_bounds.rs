@@ -159,6 +159,23 @@ fn every_upper_line_is_held_to_account() {
         printed, listed,
         "every upper line printed by `bounds` needs a value test and a method test"
     );
+    // The tests named exist.
+    let sources = [
+        include_str!("upper_bounds.rs"),
+        include_str!("upper_bounds_methods.rs"),
+        include_str!("upper_bounds_large_scale.rs"),
+    ];
+    for (_, label, value_test, method_test) in UPPER_LINES {
+        for name in [value_test, method_test] {
+            if name.starts_with("none:") {
+                continue;
+            }
+            let found = sources
+                .iter()
+                .any(|s| s.contains(&format!("#[test]\nfn {name}()")));
+            assert!(found, "{label}: no test {name}");
+        }
+    }
 }
 
 // ---------------------------------------------------------------------------------------
