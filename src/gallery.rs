@@ -10,7 +10,28 @@ use crate::error::Error;
 use crate::scenario::Scenario;
 
 /// Draws every chart of the results folder `dir`; returns the PNG paths.
+///
+/// External methods run in the folder the sweep recorded for them
+/// ([`crate::sweep::EXTERNAL_METHODS_FILE`]), so that a relative command resolves as it
+/// did in the sweep, not against the results folder that holds the scenario's copy.
 pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
-    let scenario = Scenario::from_file(&dir.join("scenario.toml"))?;
+    let mut scenario = Scenario::from_file(&dir.join("scenario.toml"))?;
+    let record = dir.join(crate::sweep::EXTERNAL_METHODS_FILE);
+    if !scenario.external.is_empty() && record.is_file() {
+        let text = crate::files::read_capped(&record, crate::files::MAX_SMALL_FILE, "record")?;
+        for line in text.lines() {
+            let mut fields = line.split('\t');
+            let (Some(name), Some(_), Some(folder)) = (fields.next(), fields.next(), fields.next())
+            else {
+                continue;
+            };
+            let folder = PathBuf::from(folder);
+            if let Some(entry) = scenario.external.iter_mut().find(|e| e.name == name) {
+                if folder.is_dir() {
+                    entry.working_dir = Some(folder);
+                }
+            }
+        }
+    }
     scenario.grid.draw_charts(dir, &scenario.lineup())
 }

@@ -2,7 +2,7 @@
 //! oracle-complexity lower bounds exactly.
 //!
 //! The layers, lowest first (a module uses only modules above it in this list; the
-//! architecture test `tests/architecture.rs` checks it): `error`, `exact`, `csv`, `files`;
+//! architecture test `tests/architecture.rs` checks it): `error`, `exact`, `csv`, `files`, `interrupt`;
 //! `class`, `oracle`; `geometry`, `instance`; `transcript` (the records); `certificate`
 //! (the exact verifier), `bounds`; `adversary`, `method`; `game` (the loop); `demonstration`,
 //! `runner`; `hunt`, `minimax`, `chart`, `scenario`, `family`, `gallery`, `report`, `sweep`, `expect`;
@@ -27,6 +27,7 @@ pub mod game;
 pub mod geometry;
 pub mod hunt;
 pub mod instance;
+pub mod interrupt;
 pub mod method;
 pub mod minimax;
 pub mod oracle;

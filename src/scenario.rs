@@ -39,11 +39,19 @@
 //!
 //! ```toml
 //! [external.py-bisection]
-//! command = ["python3", "examples/python/bisection.py"]   # argv, no shell; relative
-//!                                       # paths are relative to where naysayer runs
+//! command = ["python3", "../examples/python/bisection.py"]   # argv, no shell
 //! deterministic = true                  # optional (default true): first seed only
 //! answer_timeout = 30.0                 # optional: seconds per reply (default 30)
+//! exit_grace = 5.0                      # optional: seconds to exit when over (default 5)
+//! version = "2.1"                       # optional: what identifies the program
 //! ```
+//!
+//! The program runs in the scenario file's folder, so relative paths in its command
+//! resolve against that folder (a relative program path with a `/` too), wherever
+//! naysayer runs. A sweep records what each external method was (its `version`, or its
+//! command and a content hash of every file the command names) in
+//! `external-methods.txt` beside `games.csv`, and refuses to resume results written by
+//! another version of the program (`sweep --restart` starts over).
 //!
 //! Parsing is strict: an unknown key, a wrong type or an impossible value (an empty
 //! grid, a negative rho, an unknown method or adversary, an adversary of another family,
@@ -94,6 +102,10 @@ struct RawExternal {
     deterministic: Option<bool>,
     #[serde(default)]
     answer_timeout: Option<Spanned<f64>>,
+    #[serde(default)]
+    exit_grace: Option<Spanned<f64>>,
+    #[serde(default)]
+    version: Option<Spanned<String>>,
 }
 
 #[derive(Deserialize)]
@@ -273,11 +285,36 @@ impl Scenario {
                         value
                     }
                 };
+                let exit_grace = match &entry.exit_grace {
+                    None => 5.0,
+                    Some(t) => {
+                        let value = *t.get_ref();
+                        if !(value.is_finite() && (0.0..=1e6).contains(&value)) {
+                            return Err(at.error(
+                                t,
+                                format!("exit_grace = {value} must be a number of seconds between 0 and 1e6"),
+                            ));
+                        }
+                        value
+                    }
+                };
+                let folder = path.parent().map(|p| {
+                    if p.as_os_str().is_empty() {
+                        std::path::Path::new(".").to_path_buf()
+                    } else {
+                        p.to_path_buf()
+                    }
+                });
                 external.push(ExternalEntry {
                     name: name.clone(),
                     command,
+                    working_dir: folder
+                        .filter(|p| p.is_dir())
+                        .map(|p| std::fs::canonicalize(&p).unwrap_or(p)),
                     deterministic: entry.deterministic.unwrap_or(true),
                     answer_timeout,
+                    exit_grace,
+                    version: entry.version.as_ref().map(|v| v.get_ref().clone()),
                 });
             }
         }

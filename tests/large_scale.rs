@@ -538,6 +538,7 @@ fn a_large_scale_sweep_writes_its_table_and_chart() {
         shard: None,
         root: dir.path().to_path_buf(),
         progress: false,
+        restart: false,
     };
     let summary = naysayer::sweep::run(&scenario, &settings).unwrap();
     assert_eq!((summary.games, summary.rejected), (12, 0));

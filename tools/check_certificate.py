@@ -510,7 +510,9 @@ def check_records(stream, last_raw, count):
         fail(f"the budget ended the game after {used} queries, but the budget is {budget}")
     elif ekind == "method-failed" and not isinstance(get(ending, "reason", "ending"), str):
         fail("method-failed needs a reason")
-    elif ekind not in ("budget-exhausted", "method-failed", "output"):
+    elif ekind == "interrupted" and not isinstance(get(ending, "signal", "ending"), str):
+        fail("interrupted needs the signal's name")
+    elif ekind not in ("budget-exhausted", "method-failed", "interrupted", "output"):
         fail(f"unknown ending {ekind!r}")
     cert = get(fin, "certificate", "final")
     schema, prefix, wits = None, 0, []

@@ -325,6 +325,7 @@ impl FeasibilityVerifier {
     fn judge(&self) -> Outcome {
         match &self.ending {
             Ending::BudgetExhausted => Outcome::BudgetExhausted,
+            Ending::Interrupted { .. } => Outcome::Interrupted,
             Ending::MethodFailed { reason } => Outcome::MethodFailed {
                 reason: reason.clone(),
             },

@@ -452,6 +452,7 @@ impl ClassVerifier for FirstOrderVerifier {
     fn finish(&mut self, _final_line: u64) -> Result<Outcome, Error> {
         Ok(match &self.ending {
             Ending::BudgetExhausted => Outcome::BudgetExhausted,
+            Ending::Interrupted { .. } => Outcome::Interrupted,
             Ending::MethodFailed { reason } => Outcome::MethodFailed {
                 reason: reason.clone(),
             },

@@ -206,6 +206,7 @@ impl LatticeVerifier {
     fn judge(&self) -> Outcome {
         match &self.ending {
             Ending::BudgetExhausted => Outcome::BudgetExhausted,
+            Ending::Interrupted { .. } => Outcome::Interrupted,
             Ending::MethodFailed { reason } => Outcome::MethodFailed {
                 reason: reason.clone(),
             },

@@ -83,6 +83,8 @@ pub enum Outcome {
         /// Its reason.
         reason: String,
     },
+    /// A signal ended the game before the method stopped.
+    Interrupted,
 }
 
 /// The verifier's verdict on a transcript.

@@ -41,9 +41,19 @@ pub fn run(args: &DemoArgs) -> Result<u8, Error> {
         shard: None,
         root: args.out.clone(),
         progress: true,
+        restart: false,
     };
     crate::say!("naysayer demo: {}", scenario.description);
     let summary = sweep::run(&scenario, &settings)?;
+    if summary.interrupted {
+        crate::note!(
+            "naysayer: interrupted by {}; the finished games are kept in {} and `naysayer \
+             demo` resumes from them",
+            crate::interrupt::signal_name().unwrap_or("a signal"),
+            summary.csv.display()
+        );
+        return Ok(crate::cli::EXIT_INTERRUPTED);
+    }
     let dir = scenario.results_dir(&args.out);
     crate::say!(
         "{} games ({} played now, {} found finished) -> {}\n",

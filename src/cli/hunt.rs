@@ -73,6 +73,12 @@ pub struct HuntArgs {
     /// its header names (with its seed) and check that it reproduces them.
     #[arg(long, value_name = "FILE")]
     pub replay: Option<PathArg>,
+    /// Hunt an external method (`--exec -- PROGRAM ARGS...`) instead of a built-in one.
+    /// Every line of the search replays the program from scratch through the protocol,
+    /// so it must be deterministic: a program whose two replays of the same answers
+    /// differ is refused, saying where they parted.
+    #[command(flatten)]
+    pub exec: crate::cli::play::ExecArgs,
 }
 
 /// Runs `hunt`.
@@ -101,7 +107,46 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
             ));
         }
     };
+    if args.exec.exec && args.replay.is_some() {
+        return Err(Error::InvalidSetting {
+            name: "--replay",
+            reason: "replays the built-in method a transcript names; it cannot be combined \
+                     with --exec"
+                .into(),
+        });
+    }
+    if !args.exec.exec && !args.exec.command.is_empty() {
+        return Err(Error::InvalidSetting {
+            name: "command line",
+            reason: "a program after `--` needs --exec".into(),
+        });
+    }
     let report = match args.family {
+        Family::Feasibility if args.exec.exec => {
+            let inner = args.class.to_class()?;
+            let factory = external_factory(args, &Class::Feasibility(inner.clone()))?;
+            hunt::hunt(
+                &inner,
+                args.seed,
+                &factory,
+                &settings,
+                &mut on_progress,
+                args.transcript.as_deref(),
+            )?
+        }
+        Family::FirstOrder if args.exec.exec => {
+            let inner = args.first_order.to_class(&args.class)?;
+            let class = Class::FirstOrder(inner.clone());
+            let factory = external_factory(args, &class)?;
+            hunt::first_order::hunt_first_order(
+                &inner,
+                args.seed,
+                &factory,
+                &settings,
+                &mut on_progress,
+                args.transcript.as_deref(),
+            )?
+        }
         Family::Feasibility => hunt::hunt_builtin(
             &args.method,
             &args.class.to_class()?,
@@ -139,10 +184,38 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
         bar.finish_and_clear();
     }
     crate::say_text!("{}", summary(args, &report));
+    if crate::interrupt::requested() {
+        crate::note!(
+            "naysayer: interrupted by {}; the worst game found before it is shown above",
+            crate::interrupt::signal_name().unwrap_or("a signal")
+        );
+        return Ok(crate::cli::EXIT_INTERRUPTED);
+    }
     Ok(if report.verdict.is_ok() {
         EXIT_OK
     } else {
         EXIT_REJECTED
+    })
+}
+
+/// Builds a fresh external method for every replay of the search (its own process).
+fn external_factory(
+    args: &HuntArgs,
+    class: &Class,
+) -> Result<impl Fn() -> Result<Box<dyn crate::method::Method + Send>, Error> + Sync, Error> {
+    let settings = args.exec.to_settings()?;
+    let command = args.exec.command.clone();
+    let class = class.clone();
+    let (budget, seed) = (args.budget, args.seed);
+    Ok(move || {
+        crate::method::external::ExternalMethod::new(
+            &command,
+            &class,
+            budget,
+            seed,
+            settings.clone(),
+        )
+        .map(|m| Box::new(m) as Box<dyn crate::method::Method + Send>)
     })
 }
 

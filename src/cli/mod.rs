@@ -40,6 +40,11 @@ pub const EXIT_METHOD_FAILED: u8 = 3;
 pub const EXIT_IO: u8 = 4;
 /// Exit code: a result drifted from its expectation (`--expect`, [`crate::expect`]).
 pub const EXIT_DRIFT: u8 = 5;
+/// Exit code: a signal (SIGINT, SIGTERM, SIGHUP) ended the command
+/// ([`crate::interrupt`]).
+pub const EXIT_INTERRUPTED: u8 = crate::interrupt::EXIT_INTERRUPTED;
+/// Exit code: `play --fail-on-refuted` and the method's output is refuted.
+pub const EXIT_REFUTED: u8 = 7;
 
 /// Checks `results` against the expectation file at `path`, prints one line per drift on
 /// stderr, and returns the exit code: `code` when it is already nonzero (a lower code
@@ -297,6 +302,12 @@ impl ClassArgs {
 
 /// Runs a parsed command line and returns the exit code.
 pub fn run(cli: Cli) -> Result<u8, Error> {
+    if matches!(
+        cli.command,
+        Command::Play(_) | Command::Sweep(_) | Command::Demo(_) | Command::Hunt(_)
+    ) {
+        crate::interrupt::install();
+    }
     match cli.command {
         Command::Play(args) => play::run(&args),
         Command::Check(args) => check::run(&args),

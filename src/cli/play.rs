@@ -8,7 +8,8 @@ use crate::bounds::{halving_lower_bound, slab_funnel_lower_bound};
 use crate::certificate::{Outcome, Verdict};
 use crate::class::Class;
 use crate::cli::{
-    describe_class, ClassSelection, PathArg, EXIT_METHOD_FAILED, EXIT_OK, EXIT_REJECTED,
+    describe_class, ClassSelection, PathArg, EXIT_INTERRUPTED, EXIT_METHOD_FAILED, EXIT_OK,
+    EXIT_REFUTED, EXIT_REJECTED,
 };
 use crate::error::Error;
 use crate::family::{self, GameReport};
@@ -43,6 +44,11 @@ pub struct PlayArgs {
     /// Expectation file (TOML, see `naysayer::expect`): exit 5 when a number drifts.
     #[arg(long)]
     pub expect: Option<PathArg>,
+    /// Exit with code 7 when the verifier refutes the method's output (a witness agrees
+    /// with every answer and makes the output wrong): for CI jobs that must fail on a
+    /// wrong answer. Without it such a game exits 0 (the certificate holds).
+    #[arg(long)]
+    pub fail_on_refuted: bool,
     /// An external method (`--exec -- PROGRAM ARGS...`).
     #[command(flatten)]
     pub exec: ExecArgs,
@@ -59,9 +65,15 @@ pub struct ExecArgs {
     /// The external program and its arguments (after `--`, with --exec).
     #[arg(last = true, value_name = "PROGRAM")]
     pub command: Vec<String>,
-    /// Seconds an external program may take for each reply before it is killed.
+    /// Seconds an external program may take for each reply (its ready reply, each query
+    /// or output) before it is killed.
     #[arg(long, default_value_t = 30.0, allow_hyphen_values = true)]
     pub answer_timeout: f64,
+    /// Seconds an external program may take to exit once its game is over (after its
+    /// output, the `over` message, or when it closed its output mid-game) before its
+    /// process group is killed.
+    #[arg(long, default_value_t = 5.0, allow_hyphen_values = true)]
+    pub exit_grace: f64,
     /// Longest protocol line an external program may write, in bytes.
     #[arg(long, default_value_t = 1 << 20, allow_negative_numbers = true)]
     pub max_line_bytes: usize,
@@ -80,8 +92,16 @@ impl ExecArgs {
                 reason: format!("{t} must be a positive number of seconds, at most 1e6"),
             });
         }
+        let g = self.exit_grace;
+        if !(g.is_finite() && (0.0..=1e6).contains(&g)) {
+            return Err(Error::InvalidSetting {
+                name: "--exit-grace",
+                reason: format!("{g} must be a number of seconds between 0 and 1e6"),
+            });
+        }
         let settings = ExternalSettings {
             answer_timeout: Duration::from_secs_f64(t),
+            exit_grace: Duration::from_secs_f64(g),
             max_line_bytes: self.max_line_bytes,
             max_output_bytes: self.max_output_bytes,
             ..ExternalSettings::default()
@@ -159,9 +179,30 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
     if let Ending::MethodFailed { reason } = ending {
         crate::note!("naysayer: method failed: {reason}");
     }
+    let refuted = match &report {
+        GameReport::Certificate(r) => r.verdict.as_ref().is_ok_and(|v| {
+            matches!(
+                v.outcome,
+                Outcome::OutputRefuted { .. } | Outcome::EmptyRefuted { .. }
+            )
+        }),
+        GameReport::Demonstration(_) => false,
+    };
     let code = match (accepted, ending) {
         (false, _) => EXIT_REJECTED,
         (true, Ending::MethodFailed { .. }) => EXIT_METHOD_FAILED,
+        (true, Ending::Interrupted { .. }) => {
+            crate::note!(
+                "naysayer: interrupted by {}; the transcript ends with an `interrupted` \
+                 final record certifying what was answered",
+                crate::interrupt::signal_name().unwrap_or("a signal")
+            );
+            EXIT_INTERRUPTED
+        }
+        (true, _) if refuted && args.fail_on_refuted => {
+            crate::note!("naysayer: the method's output is refuted (--fail-on-refuted)");
+            EXIT_REFUTED
+        }
         _ => EXIT_OK,
     };
     match &args.expect {
@@ -197,6 +238,7 @@ pub fn describe_outcome(outcome: &Outcome, ending: &Ending) -> String {
         }
         Outcome::OutputStands => format!("method {output}; output stands"),
         Outcome::BudgetExhausted => "budget exhausted (queries used is censored)".into(),
+        Outcome::Interrupted => "interrupted by a signal before the method stopped".into(),
         Outcome::MethodFailed { reason } => format!("method failed: {reason}"),
     }
 }
@@ -295,6 +337,22 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
                 "outcome                {}\n",
                 describe_outcome(&verdict.outcome, &report.record.ending)
             ));
+            if let Outcome::OutputRefuted { witness } | Outcome::EmptyRefuted { witness } =
+                verdict.outcome
+            {
+                if let Some(instance) = report
+                    .record
+                    .certificate
+                    .as_ref()
+                    .and_then(|c| c.instances.get(witness))
+                {
+                    out.push_str(&format!(
+                        "refuting witness       #{} of the final record: {}\n",
+                        witness + 1,
+                        instance.describe()
+                    ));
+                }
+            }
             if let Some(eps_cert) = verdict.certified_uncertainty {
                 out.push_str(&format!(
                     "certified uncertainty  {eps_cert:e} (no method can guarantee a smaller \

@@ -289,6 +289,7 @@ fn summary(report: &ReplayReport, out: Option<&PathBuf>) -> String {
             "gap f(x) - min f       none ({})\n",
             match &report.record.ending {
                 Ending::BudgetExhausted => "budget exhausted".to_string(),
+                Ending::Interrupted { .. } => "interrupted".to_string(),
                 Ending::MethodFailed { reason } => format!("method failed: {reason}"),
                 _ => "no output point".to_string(),
             }

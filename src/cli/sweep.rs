@@ -4,7 +4,7 @@ use std::path::PathBuf;
 
 use clap::Args;
 
-use crate::cli::{EXIT_OK, EXIT_REJECTED};
+use crate::cli::{EXIT_INTERRUPTED, EXIT_METHOD_FAILED, EXIT_OK, EXIT_REJECTED};
 use crate::error::Error;
 use crate::family::Evidence;
 use crate::scenario::Scenario;
@@ -32,6 +32,11 @@ pub struct SweepArgs {
     /// every scenario given: exit 5 when a number drifts.
     #[arg(long)]
     pub expect: Option<PathBuf>,
+    /// Start over: delete the scenario's earlier games (its `games.csv`, transcripts and
+    /// charts) instead of resuming them. Needed when an external method's program
+    /// changed since the games were played.
+    #[arg(long)]
+    pub restart: bool,
 }
 
 /// Arguments of `naysayer merge`.
@@ -62,6 +67,7 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
         shard: args.shard,
         root: args.out.clone(),
         progress: true,
+        restart: args.restart,
     };
     let mut code = EXIT_OK;
     for scenario in &scenarios {
@@ -95,6 +101,27 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
                 );
             }
             code = EXIT_REJECTED;
+        }
+        if summary.failed > 0 {
+            crate::say!(
+                "{}: {} games ended with the method failing (see the outcome column; \
+                 `naysayer play --exec` on one of them shows the program's messages)",
+                scenario.name,
+                summary.failed
+            );
+            if code == EXIT_OK {
+                code = EXIT_METHOD_FAILED;
+            }
+        }
+        if summary.interrupted {
+            crate::note!(
+                "naysayer: interrupted by {}; the {} finished rows of {} are kept and the \
+                 same command resumes from them",
+                crate::interrupt::signal_name().unwrap_or("a signal"),
+                summary.resumed + summary.played,
+                summary.csv.display()
+            );
+            return Ok(EXIT_INTERRUPTED);
         }
         if !args.no_charts && args.shard.is_none() {
             scenario

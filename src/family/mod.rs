@@ -26,6 +26,7 @@ use toml::Spanned;
 
 use crate::class::Class;
 use crate::error::Error;
+use crate::method::external::{ExternalMethod, ExternalSettings};
 use crate::method::Method;
 use crate::runner::{self, DemoReport, GameSpec, Report};
 use crate::transcript::Flush;
@@ -97,12 +98,51 @@ impl GameReport {
         }
     }
 
+    /// How the game ended.
+    pub fn ending(&self) -> &crate::transcript::Ending {
+        match self {
+            GameReport::Certificate(r) => &r.record.ending,
+            GameReport::Demonstration(r) => &r.record.ending,
+        }
+    }
+
     /// Queries the method asked (the budget when the budget ended the game).
     pub fn queries_used(&self) -> u64 {
         match self {
             GameReport::Certificate(r) => r.record.queries_used,
             GameReport::Demonstration(r) => r.record.queries_used,
         }
+    }
+}
+
+/// Builds the method of a game of a scenario: a built-in, or the scenario's external
+/// program (run in the scenario's folder; its transcript is flushed after every record,
+/// since it may not be replayable).
+pub fn build_player(
+    lineup: &Lineup<'_>,
+    spec: &GameSpec,
+) -> Result<(Box<dyn Method + Send>, Flush), Error> {
+    match lineup.external_method(&spec.method) {
+        Some(entry) => {
+            let settings = ExternalSettings {
+                answer_timeout: std::time::Duration::from_secs_f64(entry.answer_timeout),
+                exit_grace: std::time::Duration::from_secs_f64(entry.exit_grace),
+                working_dir: entry.working_dir.clone(),
+                ..Default::default()
+            };
+            let method = ExternalMethod::new(
+                &entry.resolved_command(),
+                &spec.class,
+                spec.budget,
+                spec.seed,
+                settings,
+            )?;
+            Ok((Box::new(method), Flush::EveryRecord))
+        }
+        None => Ok((
+            crate::method::build(&spec.method, &spec.class, spec.seed)?,
+            Flush::Periodic,
+        )),
     }
 }
 
@@ -194,12 +234,72 @@ pub struct GridGame {
 pub struct ExternalEntry {
     /// The name used in `play.methods` and in `games.csv`.
     pub name: String,
-    /// Program and arguments (no shell).
+    /// Program and arguments (no shell), as written in the scenario.
     pub command: Vec<String>,
+    /// The folder the program runs in: the scenario file's folder, so that relative
+    /// paths in the command resolve against it (`None` for a scenario without a file).
+    pub working_dir: Option<std::path::PathBuf>,
     /// Whether it plays the first seed only (default true).
     pub deterministic: bool,
     /// Seconds it may take for each reply (default 30).
     pub answer_timeout: f64,
+    /// Seconds it may take to exit once its game is over (default 5).
+    pub exit_grace: f64,
+    /// A version the user gives (`version = "..."`); when absent, the fingerprint is the
+    /// command and the contents of the files it names.
+    pub version: Option<String>,
+}
+
+impl ExternalEntry {
+    /// The command with a relative program path (one with a `/`) made absolute against
+    /// the working folder (the arguments stay as written: the program runs in that
+    /// folder, so they resolve against it).
+    pub fn resolved_command(&self) -> Vec<String> {
+        let mut command = self.command.clone();
+        if let (Some(dir), Some(program)) = (&self.working_dir, command.first_mut()) {
+            let path = std::path::Path::new(program.as_str());
+            if path.is_relative() && program.contains('/') {
+                *program = dir.join(path).to_string_lossy().into_owned();
+            }
+        }
+        command
+    }
+
+    /// What the program is, for refusing to resume results it did not write: the user's
+    /// `version` if given, else the command with a content hash (FNV-1a, 64 bits: it
+    /// detects edits, not deliberate collisions) of every file the command names that
+    /// exists (relative paths against the working folder). A file that cannot be read
+    /// counts as "unreadable".
+    pub fn fingerprint(&self) -> String {
+        if let Some(version) = &self.version {
+            return format!("version {version:?}");
+        }
+        let mut parts = vec![format!("command {:?}", self.command)];
+        for arg in &self.command {
+            let path = std::path::Path::new(arg.as_str());
+            let path = match (&self.working_dir, path.is_relative()) {
+                (Some(dir), true) => dir.join(path),
+                _ => path.to_path_buf(),
+            };
+            if path.is_file() {
+                let hash = std::fs::read(&path)
+                    .map(|bytes| format!("{:016x}", fnv1a(&bytes)))
+                    .unwrap_or_else(|_| "unreadable".into());
+                parts.push(format!("{arg} {hash}"));
+            }
+        }
+        parts.join("; ")
+    }
+}
+
+/// FNV-1a, 64 bits (Fowler, Noll & Vo; the published offset basis and prime).
+fn fnv1a(bytes: &[u8]) -> u64 {
+    let mut hash: u64 = 0xcbf2_9ce4_8422_2325;
+    for b in bytes {
+        hash ^= u64::from(*b);
+        hash = hash.wrapping_mul(0x0000_0100_0000_01b3);
+    }
+    hash
 }
 
 /// A scenario's text, for a family's parser: the raw text (every family reads its own

@@ -10,6 +10,7 @@ pub use observers::UndecidedTrace;
 
 use crate::adversary::{Adversary, Conclusion};
 use crate::error::Error;
+use crate::interrupt;
 use crate::method::Method;
 use crate::oracle::{Answer, Output, Step};
 use crate::transcript::{Ending, FinalRecord, Header};
@@ -85,8 +86,15 @@ pub fn play(
     let dim = header.class.query_dim();
     let mut query = vec![0.0; dim];
     let mut used: u64 = 0;
+    let interrupted = || Ending::Interrupted {
+        signal: interrupt::signal_name().unwrap_or("a signal").to_string(),
+    };
     let ending = loop {
+        if interrupt::requested() {
+            break interrupted();
+        }
         match method.next(&mut query) {
+            Err(_) if interrupt::requested() => break interrupted(),
             Err(error) => {
                 break Ending::MethodFailed {
                     reason: error.chain(),
@@ -126,6 +134,9 @@ pub fn play(
                     observer.on_query(used, &query, &answer, &*adversary)?;
                 }
                 if let Err(error) = method.observe(&query, &answer) {
+                    if interrupt::requested() {
+                        break interrupted();
+                    }
                     break Ending::MethodFailed {
                         reason: error.chain(),
                     };
@@ -133,6 +144,7 @@ pub fn play(
             }
         }
     };
+    method.end(&ending);
     let output = match &ending {
         Ending::Output {
             output: Output::Point { point },

@@ -195,7 +195,7 @@ pub fn hunt_first_order(
         failures: (0, None),
     };
     let mut passes = 0;
-    while search.replays_used < settings.replays {
+    while search.replays_used < settings.replays && !crate::interrupt::requested() {
         search.pass(passes, progress)?;
         passes += 1;
     }
@@ -448,7 +448,7 @@ impl Search<'_> {
             if open.is_empty() {
                 break;
             }
-            if self.replays_used >= self.settings.replays {
+            if self.replays_used >= self.settings.replays || crate::interrupt::requested() {
                 let first = open.swap_remove(0);
                 let finished = self.close(first)?;
                 self.finish(finished);

@@ -277,5 +277,6 @@ pub fn ending_words(ending: &Ending) -> String {
         },
         Ending::BudgetExhausted => "ran out of budget".into(),
         Ending::MethodFailed { reason } => format!("failed: {reason}"),
+        Ending::Interrupted { signal } => format!("was interrupted by {signal}"),
     }
 }

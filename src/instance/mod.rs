@@ -57,6 +57,41 @@ impl Witness {
         }
     }
 
+    /// One line for people: what the instance is, with coordinates as nearest f64 (the
+    /// exact values are in the transcript's final record), the first eight of them when
+    /// there are more.
+    pub fn describe(&self) -> String {
+        match self {
+            Witness::Empty => "K is the empty set".into(),
+            Witness::Ball { center, radius } => format!(
+                "K is the ball of radius {radius:e} around {}",
+                coordinates(center.iter().map(Exact::to_f64))
+            ),
+            Witness::Function(f) => format!(
+                "f is the maximum of {} affine pieces and a cone of slope {:e}; its minimum \
+                 value {:e} is attained at {}",
+                f.pieces.len(),
+                f.slope.to_f64(),
+                f.floor.to_f64(),
+                coordinates(f.center.iter().map(Exact::to_f64))
+            ),
+            Witness::LatticeHull(h) => match &h.fibre {
+                Some(b) => format!(
+                    "K is the hull of {} points and the ball of radius {:e} around {} in the \
+                     fibre of the integer part {}",
+                    h.points.len(),
+                    b.radius,
+                    coordinates(b.center.iter().map(Exact::to_f64)),
+                    coordinates(b.integer.iter().map(|&v| v as f64))
+                ),
+                None => format!(
+                    "K is the hull of {} points and holds no mixed-integer point",
+                    h.points.len()
+                ),
+            },
+        }
+    }
+
     /// A short name for messages.
     pub fn label(&self) -> &'static str {
         match self {
@@ -66,4 +101,15 @@ impl Witness {
             Witness::LatticeHull(_) => "lattice hull",
         }
     }
+}
+
+/// `(x1, x2, ...)` with at most eight coordinates shown.
+fn coordinates(values: impl ExactSizeIterator<Item = f64>) -> String {
+    const SHOWN: usize = 8;
+    let count = values.len();
+    let mut parts: Vec<String> = values.take(SHOWN).map(|v| format!("{v}")).collect();
+    if count > SHOWN {
+        parts.push(format!("... ({count} coordinates)"));
+    }
+    format!("({})", parts.join(", "))
 }

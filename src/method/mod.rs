@@ -38,6 +38,7 @@ mod test_support;
 use crate::class::{Class, LargeScaleClass, Promise};
 use crate::error::Error;
 use crate::oracle::{Answer, Output, Step};
+use crate::transcript::Ending;
 
 /// A player under test.
 pub trait Method {
@@ -53,6 +54,11 @@ pub trait Method {
     /// the method cannot be copied, and then it is replayed from scratch instead.
     fn fork(&self) -> Option<Box<dyn Method + Send>> {
         None
+    }
+    /// Told once how the game ended, after its last move (an external program gets its
+    /// final `over` message here); the default does nothing.
+    fn end(&mut self, ending: &Ending) {
+        let _ = ending;
     }
 }
 

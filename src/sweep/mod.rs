@@ -36,11 +36,9 @@ pub mod lock;
 use crate::csv;
 use crate::error::Error;
 use crate::family::{self, GameReport};
-use crate::method::external::{ExternalMethod, ExternalSettings};
-use crate::method::{self, Method};
 use crate::runner::GameSpec;
 use crate::scenario::{GameQueue, GridGame, Scenario};
-use crate::transcript::Flush;
+use crate::transcript::Ending;
 
 /// Columns that hold timings (excluded when comparing two runs).
 pub const TIMING_COLUMNS: &[&str] = &["wall_time_ms"];
@@ -91,6 +89,9 @@ pub struct SweepSettings {
     pub root: PathBuf,
     /// Show a progress bar on stderr when it is a terminal.
     pub progress: bool,
+    /// Start over: remove what an earlier run wrote (its table, scenario copy, external
+    /// methods' fingerprints and transcripts) before playing.
+    pub restart: bool,
 }
 
 /// What a sweep did.
@@ -105,6 +106,12 @@ pub struct SweepSummary {
     /// Games the verifier rejected (certificates: adversary bugs), or whose claimed lower
     /// curve did not hold or whose demonstration the judge refused.
     pub rejected: u64,
+    /// Games (found finished or played now) that ended with the method failing (a broken
+    /// external program, or a built-in method's internal failure), each with its row and
+    /// outcome.
+    pub failed: u64,
+    /// True when a signal stopped the sweep: the rows written are kept, the rerun resumes.
+    pub interrupted: bool,
     /// The CSV written.
     pub csv: PathBuf,
 }
@@ -137,10 +144,19 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         source,
     })?;
     let _lock = lock::FolderLock::acquire(&dir)?;
+    if settings.restart {
+        start_over(&dir)?;
+    }
     claim_folder(&dir, scenario)?;
+    claim_external_methods(&dir, scenario)?;
+    check_programs(scenario)?;
     let total = shard_games(scenario, settings.shard).count() as u64;
     let csv_path = dir.join("games.csv");
-    let (done, kept_bytes) = resume_point(&csv_path, scenario, settings.shard)?;
+    let Scanned {
+        rows: done,
+        bytes: kept_bytes,
+        failed: failed_before,
+    } = resume_point(&csv_path, scenario, settings.shard)?;
     let mut csv = OpenOptions::new()
         .append(true)
         .create(true)
@@ -181,8 +197,10 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         })?;
     let queue = GameQueue::new(shard_games(scenario, settings.shard).skip(done as usize));
     let stop = AtomicBool::new(false);
-    let (sender, receiver) = mpsc::channel::<(u64, Result<(String, bool), Error>)>();
+    let (sender, receiver) = mpsc::channel::<(u64, Result<Played, Error>)>();
     let mut rejected = 0u64;
+    let mut failed = failed_before;
+    let mut interrupted = false;
     let mut played = 0u64;
     let mut failure: Option<Error> = None;
     pool.in_place_scope(|scope| {
@@ -192,7 +210,7 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
             let stop = &stop;
             let transcripts = transcripts.as_deref();
             scope.spawn(move |_| loop {
-                if stop.load(Ordering::SeqCst) {
+                if stop.load(Ordering::SeqCst) || crate::interrupt::requested() {
                     break;
                 }
                 let Some(game) = queue.next() else { break };
@@ -208,7 +226,7 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
             .skip(done as usize)
             .map(|g| g.index);
         let mut next = expected.next();
-        let mut pending: BTreeMap<u64, (String, bool)> = BTreeMap::new();
+        let mut pending: BTreeMap<u64, Played> = BTreeMap::new();
         for (index, row) in receiver {
             match row {
                 Ok(row) => {
@@ -221,11 +239,27 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
                 }
             }
             while let Some(want) = next {
-                let Some((row, accepted)) = pending.remove(&want) else {
+                let Some(done) = pending.remove(&want) else {
+                    break;
+                };
+                let Played::Row {
+                    text: row,
+                    accepted,
+                    method_failed,
+                } = done
+                else {
+                    // A game a signal cut short is not finished: nothing from it on is
+                    // written, and the rerun plays it again.
+                    interrupted = true;
+                    stop.store(true, Ordering::SeqCst);
+                    next = None;
                     break;
                 };
                 if !accepted {
                     rejected += 1;
+                }
+                if method_failed {
+                    failed += 1;
                 }
                 if let Err(e) = csv.write_all(row.as_bytes()).and_then(|_| csv.flush()) {
                     stop.store(true, Ordering::SeqCst);
@@ -251,6 +285,8 @@ pub fn run(scenario: &Scenario, settings: &SweepSettings) -> Result<SweepSummary
         resumed: done,
         played,
         rejected,
+        failed,
+        interrupted: interrupted || crate::interrupt::requested(),
         csv: csv_path,
     })
 }
@@ -330,13 +366,15 @@ pub fn write_atomically(path: &Path, contents: &[u8]) -> Result<(), Error> {
 
 /// How many leading games of the shard the CSV already holds, and how many bytes of it
 /// are whole lines; truncates a torn last line.
-fn resume_point(
-    path: &Path,
-    scenario: &Scenario,
-    shard: Option<Shard>,
-) -> Result<(u64, u64), Error> {
-    let (rows, good_bytes) = match scan_csv(path, scenario, shard)? {
-        None => return Ok((0, 0)),
+fn resume_point(path: &Path, scenario: &Scenario, shard: Option<Shard>) -> Result<Scanned, Error> {
+    let scanned = match scan_csv(path, scenario, shard)? {
+        None => {
+            return Ok(Scanned {
+                rows: 0,
+                bytes: 0,
+                failed: 0,
+            })
+        }
         Some(found) => found,
     };
     let file = OpenOptions::new()
@@ -347,12 +385,12 @@ fn resume_point(
             path: path.to_path_buf(),
             source,
         })?;
-    file.set_len(good_bytes).map_err(|source| Error::Io {
+    file.set_len(scanned.bytes).map_err(|source| Error::Io {
         action: "cannot write",
         path: path.to_path_buf(),
         source,
     })?;
-    Ok((rows, good_bytes))
+    Ok(scanned)
 }
 
 /// Checks a games.csv against the games of the shard it should hold, in order: the
@@ -363,7 +401,7 @@ fn scan_csv(
     path: &Path,
     scenario: &Scenario,
     shard: Option<Shard>,
-) -> Result<Option<(u64, u64)>, Error> {
+) -> Result<Option<Scanned>, Error> {
     let bad = |reason: String| Error::Results {
         path: path.to_path_buf(),
         reason,
@@ -385,6 +423,8 @@ fn scan_csv(
     let mut line = Vec::new();
     let mut good_bytes: u64 = 0;
     let mut rows = 0u64;
+    let mut failed = 0u64;
+    let outcome = columns.iter().position(|c| *c == "outcome");
     let mut line_no = 0usize;
     loop {
         line.clear();
@@ -435,48 +475,51 @@ fn scan_csv(
                     }
                 }
             }
+            if outcome.is_some_and(|i| fields[i] == "method-failed") {
+                failed += 1;
+            }
             rows += 1;
         }
         good_bytes += n as u64;
     }
-    Ok(Some((rows, good_bytes)))
+    Ok(Some(Scanned {
+        rows,
+        bytes: good_bytes,
+        failed,
+    }))
 }
 
-/// Builds the method of a game: a built-in, or the scenario's external program (whose
-/// transcript is flushed after every record: it may not be replayable).
-fn build_player(
-    scenario: &Scenario,
-    spec: &GameSpec,
-) -> Result<(Box<dyn Method + Send>, Flush), Error> {
-    match scenario.external_method(&spec.method) {
-        Some(entry) => {
-            let settings = ExternalSettings {
-                answer_timeout: std::time::Duration::from_secs_f64(entry.answer_timeout),
-                ..Default::default()
-            };
-            let method = ExternalMethod::new(
-                &entry.command,
-                &spec.class,
-                spec.budget,
-                spec.seed,
-                settings,
-            )?;
-            Ok((Box::new(method), Flush::EveryRecord))
-        }
-        None => Ok((
-            method::build(&spec.method, &spec.class, spec.seed)?,
-            Flush::Periodic,
-        )),
-    }
+/// What [`scan_csv`] found in a games.csv.
+struct Scanned {
+    /// Whole rows that belong to the sweep.
+    rows: u64,
+    /// Length in bytes of the header and those rows.
+    bytes: u64,
+    /// Rows whose outcome is `method-failed`.
+    failed: u64,
 }
 
-/// Plays one game and formats its CSV row (with the trailing newline); the flag says
-/// whether the verifier (or the demonstration judge) accepted the game.
+/// What playing one game of a sweep gave.
+enum Played {
+    /// A finished game: its CSV row (with the trailing newline), whether the verifier
+    /// (or the demonstration judge) accepted it, and whether the method failed.
+    Row {
+        text: String,
+        accepted: bool,
+        method_failed: bool,
+    },
+    /// A signal cut the game short: not finished.
+    Interrupted,
+}
+
+/// Plays one game and formats its CSV row. A program that cannot be started is an
+/// error (outside the method's control: the game is not finished, the sweep stops and
+/// the rerun plays it), not a failed game.
 fn play_row(
     scenario: &Scenario,
     game: &GridGame,
     transcripts: Option<&Path>,
-) -> Result<(String, bool), Error> {
+) -> Result<Played, Error> {
     let spec = GameSpec {
         class: game.class.clone(),
         adversary: scenario.adversary.clone(),
@@ -485,10 +528,170 @@ fn play_row(
         budget: scenario.budget_for(&game.class),
         transcript: transcripts.map(|t| t.join(format!("game-{}.jsonl", game.index))),
     };
-    let (mut player, flush) = build_player(scenario, &spec)?;
+    let (mut player, flush) = family::build_player(&scenario.lineup(), &spec)?;
     let report: GameReport = family::play(&spec, player.as_mut(), flush)?;
+    match report.ending() {
+        Ending::Interrupted { .. } => return Ok(Played::Interrupted),
+        Ending::MethodFailed { reason } if reason.contains(CANNOT_START) => {
+            return Err(Error::MethodFailed {
+                method: game.method.clone(),
+                reason: format!(
+                    "{reason} (game {} was not finished; fix the command and rerun the sweep \
+                     to resume)",
+                    game.index
+                ),
+            })
+        }
+        _ => {}
+    }
     let cells = scenario.grid.row(&scenario.lineup(), game, &report);
-    Ok((csv::row(&cells), report.accepted()))
+    Ok(Played::Row {
+        text: csv::row(&cells),
+        accepted: report.accepted(),
+        method_failed: matches!(report.ending(), Ending::MethodFailed { .. }),
+    })
+}
+
+/// The words an external method's failure to start begins with
+/// ([`crate::method::external`]).
+const CANNOT_START: &str = "cannot start the program";
+
+/// Removes what an earlier run wrote into `dir` (`sweep --restart`).
+fn start_over(dir: &Path) -> Result<(), Error> {
+    for name in ["games.csv", "scenario.toml", EXTERNAL_METHODS_FILE] {
+        let path = dir.join(name);
+        match std::fs::remove_file(&path) {
+            Ok(()) => {}
+            Err(e) if e.kind() == std::io::ErrorKind::NotFound => {}
+            Err(source) => {
+                return Err(Error::Io {
+                    action: "cannot remove",
+                    path,
+                    source,
+                })
+            }
+        }
+    }
+    let transcripts = dir.join("transcripts");
+    if transcripts.is_dir() {
+        std::fs::remove_dir_all(&transcripts).map_err(|source| Error::Io {
+            action: "cannot remove",
+            path: transcripts,
+            source,
+        })?;
+    }
+    Ok(())
+}
+
+/// The file beside `games.csv` that records what each external method was: one line
+/// each, the name, its fingerprint ([`crate::family::ExternalEntry::fingerprint`]) and
+/// the folder its relative command resolves against, separated by tabs.
+pub const EXTERNAL_METHODS_FILE: &str = "external-methods.txt";
+
+/// Records what each external method of the scenario is (one line each: name, a tab,
+/// its fingerprint), or, when resuming, checks that none has changed since the rows were
+/// written.
+fn claim_external_methods(dir: &Path, scenario: &Scenario) -> Result<(), Error> {
+    if scenario.external.is_empty() {
+        return Ok(());
+    }
+    let text: String = scenario
+        .external
+        .iter()
+        .map(|e| {
+            let folder = e
+                .working_dir
+                .as_ref()
+                .map_or(String::new(), |d| d.display().to_string());
+            format!("{}\t{}\t{folder}\n", e.name, e.fingerprint())
+        })
+        .collect();
+    // Name and fingerprint decide; the folder (where relative commands resolve, kept
+    // for `naysayer chart`) may move with the scenario.
+    let identity =
+        |line: &str| -> String { line.split('\t').take(2).collect::<Vec<_>>().join("\t") };
+    let path = dir.join(EXTERNAL_METHODS_FILE);
+    let has_rows = std::fs::metadata(dir.join("games.csv")).is_ok_and(|m| m.len() > 0);
+    if path.exists() && has_rows {
+        let old = crate::files::read_capped(&path, crate::files::MAX_SMALL_FILE, "record")?;
+        for (line_old, line_new) in old.lines().zip(text.lines()) {
+            if identity(line_old) != identity(line_new) {
+                let name = line_new.split('\t').next().unwrap_or_default();
+                return Err(Error::Results {
+                    path: dir.to_path_buf(),
+                    reason: format!(
+                        "the external method {name:?} changed since these results were \
+                         written (was: {}; now: {}); its finished games would mix two \
+                         programs: rerun with --restart to start over (or write elsewhere \
+                         with --out)",
+                        line_old.split('\t').nth(1).unwrap_or(""),
+                        line_new.split('\t').nth(1).unwrap_or(""),
+                    ),
+                });
+            }
+        }
+        if old == text {
+            return Ok(());
+        }
+    }
+    write_atomically(&path, text.as_bytes())
+}
+
+/// File extensions of scripts that an interpreter named as the program runs.
+const SCRIPT_EXTENSIONS: &[&str] = &["py", "jl", "R", "r", "rb", "js", "pl", "sh", "m", "lua"];
+
+/// Refuses, before any game, an external program that cannot be found: a program named
+/// by a path must exist, a bare name must be on `PATH`, and a script argument (a file
+/// name ending in one of [`SCRIPT_EXTENSIONS`]) must exist.
+fn check_programs(scenario: &Scenario) -> Result<(), Error> {
+    for entry in &scenario.external {
+        let command = entry.resolved_command();
+        let program = Path::new(&command[0]);
+        let found = if command[0].contains('/') {
+            program.is_file()
+        } else {
+            std::env::var_os("PATH").is_some_and(|paths| {
+                std::env::split_paths(&paths).any(|p| p.join(program).is_file())
+            })
+        };
+        // A script an interpreter is to run (`python3 solver.py`) must exist too: else
+        // every game would fail for a reason outside the method's control.
+        let script = command[1..].iter().find(|arg| {
+            !arg.starts_with('-')
+                && Path::new(arg.as_str())
+                    .extension()
+                    .is_some_and(|e| SCRIPT_EXTENSIONS.contains(&e.to_string_lossy().as_ref()))
+                && !match &entry.working_dir {
+                    Some(dir) => dir.join(arg.as_str()),
+                    None => Path::new(arg.as_str()).to_path_buf(),
+                }
+                .is_file()
+        });
+        let missing = if !found {
+            Some(&entry.command[0])
+        } else {
+            script
+        };
+        if let Some(missing) = missing {
+            return Err(Error::InvalidSetting {
+                name: "external method",
+                reason: format!(
+                    "{:?}: cannot find the {} {:?}{}",
+                    entry.name,
+                    if found { "script" } else { "program" },
+                    missing,
+                    match &entry.working_dir {
+                        Some(dir) => format!(
+                            " (a relative path resolves against the scenario's folder {})",
+                            dir.display()
+                        ),
+                        None => String::new(),
+                    }
+                ),
+            });
+        }
+    }
+    Ok(())
 }
 
 /// Merges shard folders `<root>/<scenario>/shard-K-of-N/games.csv` into
@@ -546,7 +749,8 @@ pub fn merge(scenario_dir: &Path) -> Result<PathBuf, Error> {
             path: path.clone(),
             source,
         })?;
-        let (whole_rows, whole_bytes) = scan_csv(&path, &scenario, Some(*shard))?.unwrap_or((0, 0));
+        let (whole_rows, whole_bytes) =
+            scan_csv(&path, &scenario, Some(*shard))?.map_or((0, 0), |s| (s.rows, s.bytes));
         let torn = whole_bytes != content.len() as u64;
         if torn || whole_rows != mine {
             return Err(bad(format!(

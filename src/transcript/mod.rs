@@ -13,7 +13,9 @@
 //! 3. One `final` record: `{"type":"final","data":{"queries_used":T,"ending":E,
 //!    "certificate":C}}` with `E` one of `{"kind":"output","output":{"kind":"empty"}}`,
 //!    `{"kind":"output","output":{"kind":"point","point":[...]}}`,
-//!    `{"kind":"budget-exhausted"}`, `{"kind":"method-failed","reason":"..."}`, and `C`
+//!    `{"kind":"budget-exhausted"}`, `{"kind":"method-failed","reason":"..."}`,
+//!    `{"kind":"interrupted","signal":"SIGINT"}` (a signal ended the game; the
+//!    certificate covers what was answered), and `C`
 //!    either `null` or `{"schema":S,"prefix":T*,"instances":[W,...]}`: witnesses that
 //!    agree with the first `T*` answers, in certificate schema `S`
 //!    ([`CERTIFICATE_SCHEMA`]; absent in files written before the key existed, read as

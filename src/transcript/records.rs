@@ -37,6 +37,12 @@ pub enum Ending {
         /// What went wrong.
         reason: String,
     },
+    /// A signal (SIGINT, SIGTERM, SIGHUP) ended the game before the method stopped; the
+    /// certificate covers what was answered.
+    Interrupted {
+        /// The signal's name.
+        signal: String,
+    },
 }
 
 /// Identifies a game: written first in every transcript.

@@ -712,6 +712,7 @@ pub fn outcome_name(outcome: &Outcome) -> &'static str {
         Outcome::EmptyBreaksPromise => "empty-breaks-promise",
         Outcome::OutputStands => "output-stands",
         Outcome::BudgetExhausted => "budget-exhausted",
+        Outcome::Interrupted => "interrupted",
         Outcome::MethodFailed { .. } => "method-failed",
     }
 }

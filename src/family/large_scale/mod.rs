@@ -348,6 +348,7 @@ impl Grid for LargeScaleGrid {
         let outcome = |ending: &Ending| match ending {
             Ending::Output { .. } => "output".to_string(),
             Ending::BudgetExhausted => "budget-exhausted".to_string(),
+            Ending::Interrupted { .. } => "interrupted".to_string(),
             Ending::MethodFailed { .. } => "method-failed".to_string(),
         };
         cells.extend([report.record.queries_used.to_string(), censored.to_string()]);

@@ -95,6 +95,7 @@ use crate::class::Class;
 use crate::error::Error;
 use crate::method::Method;
 use crate::oracle::{Answer, Output, Step};
+use crate::transcript::Ending;
 
 use messages::{class_facts, message_kind, parse_message, AnswerMessage};
 use process::{sys, LineReader, ReadError, StderrDrain, WriteError};
@@ -116,8 +117,12 @@ pub struct ExternalSettings {
     /// How much of the program's stderr is passed through to naysayer's stderr; the
     /// rest is drained and counted but not shown. Default: 1 MiB.
     pub stderr_pass_bytes: u64,
-    /// How long the program may take to exit after its output. Default: 5 s.
+    /// How long the program may take to exit once its game is over (after its output,
+    /// the `over` message, or after it closed its output mid-game) before its process
+    /// group is killed. Default: 5 s.
     pub exit_grace: Duration,
+    /// The folder the program runs in; `None`: naysayer's own.
+    pub working_dir: Option<std::path::PathBuf>,
 }
 
 impl Default for ExternalSettings {
@@ -128,6 +133,7 @@ impl Default for ExternalSettings {
             max_output_bytes: 1 << 30,
             stderr_pass_bytes: 1 << 20,
             exit_grace: Duration::from_secs(5),
+            working_dir: None,
         }
     }
 }
@@ -235,6 +241,9 @@ impl ExternalMethod {
     /// Starts the program, sends the header and reads its `ready` reply.
     fn start(&mut self) -> Result<(), Error> {
         let mut command = Command::new(&self.command[0]);
+        if let Some(dir) = &self.settings.working_dir {
+            command.current_dir(dir);
+        }
         command
             .args(&self.command[1..])
             .stdin(Stdio::piped())
@@ -279,6 +288,7 @@ impl ExternalMethod {
             }
         }
         let pid = child.id();
+        crate::interrupt::set_child_group(pid);
         let running = Running {
             child,
             alive,
@@ -305,6 +315,9 @@ impl ExternalMethod {
             MethodMessage::Ready { protocol } => Err(self.abort(format!(
                 "protocol line 1: the program speaks protocol version {protocol}, naysayer \
                  speaks version {PROTOCOL_VERSION}"
+            ))),
+            MethodMessage::Fail { reason } => Err(self.abort(format!(
+                "protocol line 1: the program refused the game in reply to the header: {reason}"
             ))),
             other => Err(self.abort(format!(
                 "protocol line 1: expected {{\"msg\":\"ready\",\"protocol\":{PROTOCOL_VERSION}}} \
@@ -401,6 +414,19 @@ impl ExternalMethod {
                     describe_exit(status)
                 )))
             }
+            Err(ReadError::ExitedOutputOpen) => {
+                let status = self.stop(false);
+                Err(self.fail(format!(
+                    "the program {} {after}, before protocol line {line_no} ({expected}); \
+                     its output is still open in another process (something it started keeps \
+                     it), which was killed with its process group",
+                    describe_exit(status)
+                )))
+            }
+            Err(ReadError::Interrupted) => Err(self.fail(format!(
+                "interrupted by {} while waiting for protocol line {line_no}",
+                crate::interrupt::signal_name().unwrap_or("a signal")
+            ))),
             Err(ReadError::Io(e)) => {
                 Err(self.abort(format!("cannot read protocol line {line_no}: {e}")))
             }
@@ -433,6 +459,7 @@ impl ExternalMethod {
             *alive = false;
         }
         let status = running.child.wait().ok();
+        crate::interrupt::set_child_group(0);
         if let Some(done) = running.drain.take() {
             let _ = done.recv_timeout(Duration::from_secs(1));
         }
@@ -508,6 +535,23 @@ impl Method for ExternalMethod {
         }
     }
 
+    fn end(&mut self, ending: &Ending) {
+        let reason = match ending {
+            Ending::BudgetExhausted => "budget",
+            Ending::Interrupted { .. } => "interrupted",
+            // After an output the program has been told already; after a failure it is
+            // gone (or broke the protocol).
+            Ending::Output { .. } | Ending::MethodFailed { .. } => {
+                self.stop(true);
+                return;
+            }
+        };
+        if matches!(self.state, State::Running(_)) {
+            self.say_over(reason);
+            self.stop(false);
+        }
+    }
+
     fn observe(&mut self, _query: &[f64], answer: &Answer) -> Result<(), Error> {
         let running = self.running();
         running.answers += 1;
@@ -536,6 +580,7 @@ impl ExternalMethod {
     /// After an output: close stdin, let the program exit, fail on a non-zero status.
     fn finish_after_output(&mut self, line_no: u64) -> Result<(), Error> {
         let grace = self.settings.exit_grace;
+        self.say_over("output-received");
         match self.stop(false) {
             Some(status) if !status.success() => Err(self.fail(format!(
                 "the program {} after its output on protocol line {line_no}",
@@ -552,6 +597,21 @@ impl ExternalMethod {
                 );
                 Ok(())
             }
+        }
+    }
+}
+
+impl ExternalMethod {
+    /// Sends the final `{"msg":"over","reason":...}` message, best effort: the program may
+    /// already have closed its input, and the game has ended whatever happens here.
+    fn say_over(&mut self, reason: &str) {
+        let State::Running(running) = &mut self.state else {
+            return;
+        };
+        if let Some(stdin) = running.stdin.as_mut() {
+            let line = format!("{{\"msg\":\"over\",\"reason\":\"{reason}\"}}\n");
+            let deadline = Instant::now() + Duration::from_millis(200);
+            let _ = sys::write_all(stdin, line.as_bytes(), deadline);
         }
     }
 }

@@ -16,7 +16,13 @@ pub(super) enum ReadError {
     TooLong(usize),
     OutputCap(u64),
     Partial(usize),
+    /// The pipe closed: every writer of the program's stdout is gone.
     Eof,
+    /// The program exited but its stdout is still open in another process (something it
+    /// started keeps it): nothing more will come from the program itself.
+    ExitedOutputOpen,
+    /// A signal asked naysayer to stop ([`crate::interrupt`]).
+    Interrupted,
     Io(std::io::Error),
 }
 
@@ -99,6 +105,9 @@ impl LineReader {
                 let slice = deadline.min(Instant::now() + EXIT_CHECK);
                 match sys::wait_readable(&self.stdout, slice) {
                     Ok(true) => break,
+                    Ok(false) if crate::interrupt::requested() => {
+                        return Err(ReadError::Interrupted)
+                    }
                     Ok(false) if Instant::now() >= deadline => return Err(ReadError::Timeout),
                     Ok(false) => {
                         if sys::has_exited(self.pid) {
@@ -106,7 +115,7 @@ impl LineReader {
                             return Err(if old > 0 {
                                 ReadError::Partial(old)
                             } else {
-                                ReadError::Eof
+                                ReadError::ExitedOutputOpen
                             });
                         }
                     }

@@ -11,6 +11,7 @@ use crate::chart::{Scale, Series, SeriesPoint, DEFAULT_WIDTH as WIDTH};
 use crate::class::{Class, FeasibilityClass, FirstOrderClass};
 use crate::error::Error;
 use crate::family::boxes::{outcome_name, BoxKind as Family};
+use crate::family::{build_player, Lineup};
 use crate::game::UndecidedTrace;
 use crate::method;
 use crate::oracle::{Answer, Normal};
@@ -41,7 +42,7 @@ pub(super) fn draw_replayed(dir: &Path, cx: &Context<'_>) -> Result<Vec<PathBuf>
     let mut series = Vec::new();
     let mut gap_series = Vec::new();
     for m in lineup.methods {
-        if method::supports(m, &class).is_err() {
+        if !plays(lineup, m, &class) {
             continue;
         }
         let spec = GameSpec {
@@ -54,8 +55,13 @@ pub(super) fn draw_replayed(dir: &Path, cx: &Context<'_>) -> Result<Vec<PathBuf>
         };
         let mut trace = UndecidedTrace::default();
         let mut memory = MemoryTranscript::default();
-        let mut player = method::build(m, &spec.class, spec.seed)?;
-        let report = runner::run_with(&spec, player.as_mut(), &mut [&mut trace, &mut memory])?;
+        let (mut player, flush) = build_player(lineup, &spec)?;
+        let report = runner::run_with_flush(
+            &spec,
+            player.as_mut(),
+            &mut [&mut trace, &mut memory],
+            flush,
+        )?;
         let look = look_of(lineup, m);
         if let Class::FirstOrder(c) = &class {
             gap_series.push(uncertainty_series(m, look, c, &memory.records)?);
@@ -129,11 +135,7 @@ pub(super) fn draw_replayed(dir: &Path, cx: &Context<'_>) -> Result<Vec<PathBuf>
     let picture_rho = grid.accuracies[0];
     if let Ok(Class::Feasibility(class)) = grid.class_at(2, picture_rho) {
         let any = Class::Feasibility(class.clone());
-        if let Some(m) = lineup
-            .methods
-            .iter()
-            .find(|m| method::supports(m, &any).is_ok())
-        {
+        if let Some(m) = lineup.methods.iter().find(|m| plays(lineup, m, &any)) {
             let spec = GameSpec {
                 class: any,
                 adversary: lineup.adversary.to_string(),
@@ -143,13 +145,19 @@ pub(super) fn draw_replayed(dir: &Path, cx: &Context<'_>) -> Result<Vec<PathBuf>
                 transcript: None,
             };
             let mut memory = MemoryTranscript::default();
-            let mut player = method::build(m, &spec.class, spec.seed)?;
-            runner::run_with(&spec, player.as_mut(), &mut [&mut memory])?;
+            let (mut player, flush) = build_player(lineup, &spec)?;
+            runner::run_with_flush(&spec, player.as_mut(), &mut [&mut memory], flush)?;
             let picture = game_picture(&memory.records, &class, m, lineup.adversary);
             pngs.push(chart::draw_game_2d(&picture, &dir.join("game-2d"))?.png);
         }
     }
     Ok(pngs)
+}
+
+/// Whether method `m` of the scenario plays `class`: an external method plays every class
+/// of its scenario, a built-in one those it supports.
+fn plays(lineup: &Lineup<'_>, m: &str, class: &Class) -> bool {
+    lineup.external_method(m).is_some() || method::supports(m, class).is_ok()
 }
 
 fn point(x: f64, v: f64) -> SeriesPoint {

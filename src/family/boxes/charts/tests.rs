@@ -35,6 +35,7 @@ fn sweep_into(root: &Path) -> (Scenario, std::path::PathBuf) {
         shard: None,
         root: root.to_path_buf(),
         progress: false,
+        restart: false,
     };
     sweep::run(&scenario, &settings).expect("sweep");
     let dir = scenario.results_dir(root);
