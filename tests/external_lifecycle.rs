@@ -17,24 +17,12 @@ use tempfile::TempDir;
 
 const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
 
-/// `python3`; `None` only when it is missing and NAYSAYER_SKIP_PYTHON_TESTS=1.
+mod outside;
+
+/// `python3`; `None` only when it is missing and NAYSAYER_SKIP_PYTHON_TESTS=1 (else the
+/// test fails, saying how to install it: `tests/outside`).
 fn python() -> Option<&'static str> {
-    let found = Command::new("python3")
-        .arg("--version")
-        .output()
-        .is_ok_and(|o| o.status.success());
-    if found {
-        return Some("python3");
-    }
-    if std::env::var("NAYSAYER_SKIP_PYTHON_TESTS").as_deref() == Ok("1") {
-        eprintln!("skipped: python3 is not installed (NAYSAYER_SKIP_PYTHON_TESTS=1)");
-        return None;
-    }
-    panic!(
-        "python3 is not installed, and this test plays Python programs over the protocol: \
-         install Python 3 (Debian and Ubuntu: `apt-get install -y python3`), or set \
-         NAYSAYER_SKIP_PYTHON_TESTS=1 to skip the tests that need it"
-    );
+    outside::python3()
 }
 
 fn run(dir: &Path, args: &[&str]) -> Output {
