@@ -181,7 +181,7 @@ fn the_audit_of_a_subgradient_run_writes_witnesses_the_verifier_confirms() {
         "{out}"
     );
     assert!(
-        out.contains(&format!("eps_cert               {eps_cert:e}")),
+        out.contains(&format!("audit uncertainty      {eps_cert:e}")),
         "{out}"
     );
 
@@ -332,7 +332,7 @@ fn replay_turns_a_certificate_witness_into_a_regression_test() {
     for out_path in [&first, &second] {
         let (code, out) = run(&[
             "replay",
-            "--transcript",
+            "--from",
             original.to_str().unwrap(),
             "--witness",
             "2",
@@ -385,7 +385,7 @@ fn replay_turns_a_certificate_witness_into_a_regression_test() {
     assert_eq!(report.accurate(), Some(true));
     let (code, out) = run(&[
         "replay",
-        "--transcript",
+        "--from",
         original.to_str().unwrap(),
         "--witness",
         "3",

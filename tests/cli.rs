@@ -267,9 +267,12 @@ fn demo_table_shows_midpoint_at_the_bound() {
     assert!(!text.contains("REJECTED"), "{text}");
     let results = dir.path().join("results").join("demo");
     assert!(results.join("games.csv").is_file(), "no games.csv: {text}");
-    // A second run finds every game finished and plays none.
+    // A second run plays every game again (the demo never resumes: a fresh clone's
+    // committed results must not turn the README's first command into a no-op), and
+    // writes the report.
     let again = stdout(&run_in(dir.path(), &["demo"]));
-    assert!(again.contains("0 played now"), "{again}");
+    assert!(again.contains("280 games played"), "{again}");
+    assert!(results.join("report.html").is_file(), "{again}");
 }
 
 #[test]
@@ -468,4 +471,130 @@ fn bad_input_gets_a_sentence_and_the_documented_exit_code() {
         "{}",
         stderr(&out)
     );
+}
+
+/// `play --json`: one JSON object on stdout.
+fn play_json(dir: &Path, args: &[&str]) -> (Option<i32>, serde_json::Value) {
+    let mut all = vec!["play", "--json"];
+    all.extend_from_slice(args);
+    let out = run_in(dir, &all);
+    let text = stdout(&out);
+    assert_eq!(text.lines().count(), 1, "one line expected: {text}");
+    let value = serde_json::from_str(&text)
+        .unwrap_or_else(|e| panic!("not JSON ({e}): {text}{}", stderr(&out)));
+    (out.status.code(), value)
+}
+
+/// The number printed after `label` in a text summary, as JSON (`none` is null).
+fn text_number(text: &str, label: &str) -> serde_json::Value {
+    match field(text, label) {
+        Some("none") | None => serde_json::Value::Null,
+        Some(t) => serde_json::from_str(&t.parse::<f64>().unwrap().to_string()).unwrap(),
+    }
+}
+
+#[test]
+fn play_json_holds_the_numbers_of_the_text_summary_and_of_check() {
+    let dir = TempDir::new().unwrap();
+    // Separation: d = 3, rho = 1e-3, midpoint stops at d*k + 1 = 28 (k = 9, as above).
+    let (code, v) = play_json(dir.path(), &["-d", "3", "--rho", "1e-3", "-t", "g.jsonl"]);
+    assert_eq!(code, Some(0), "{v}");
+    assert_eq!(v["kind"], "certificate");
+    assert_eq!(v["family"], "feasibility");
+    assert_eq!(v["class"]["dim"], 3);
+    assert_eq!(v["method"], "midpoint");
+    assert_eq!(v["adversary"], "halving");
+    assert_eq!(v["queries_used"], 28);
+    assert_eq!(v["censored"], false);
+    assert_eq!(v["certified_lower_bound"], 28);
+    assert_eq!(v["certified_uncertainty"], serde_json::Value::Null);
+    assert_eq!(v["outcome"], "output-stands");
+    assert_eq!(v["verified"], true);
+    assert_eq!(v["transcript"], "g.jsonl");
+    let check = run_in(dir.path(), &["check", "g.jsonl"]);
+    let text = stdout(&check);
+    assert_eq!(check.status.code(), Some(0), "{text}");
+    assert_eq!(text_number(&text, "certified lower bound"), 28, "{text}");
+
+    // First-order (slab funnel): every number equals the text summary's.
+    let args = [
+        "--class",
+        "first-order",
+        "-m",
+        "kelley",
+        "-d",
+        "2",
+        "--eps",
+        "1e-4",
+    ];
+    let (code, v) = play_json(dir.path(), &args);
+    assert_eq!(code, Some(0), "{v}");
+    let mut text_args = vec!["play"];
+    text_args.extend_from_slice(&args);
+    let text = stdout(&run_in(dir.path(), &text_args));
+    for (key, label) in [
+        ("queries_used", "queries used"),
+        ("certified_lower_bound", "certified lower bound"),
+        ("certified_uncertainty", "certified uncertainty"),
+    ] {
+        assert_eq!(v[key], text_number(&text, label), "{key}: {v} vs {text}");
+    }
+    assert!(v["certified_uncertainty"].as_f64().unwrap() > 0.0, "{v}");
+    assert_eq!(v["adversary"], "slab-funnel");
+    assert_eq!(v["transcript"], serde_json::Value::Null);
+
+    // Large-scale demonstration: gap and lower curve as the text summary prints them.
+    let args = [
+        "--class",
+        "large-scale",
+        "--kind",
+        "smooth",
+        "-d",
+        "100",
+        "--horizon",
+        "10",
+        "-m",
+        "accelerated",
+    ];
+    let (code, v) = play_json(dir.path(), &args);
+    assert_eq!(code, Some(0), "{v}");
+    let mut text_args = vec!["play"];
+    text_args.extend_from_slice(&args);
+    let text = stdout(&run_in(dir.path(), &text_args));
+    assert_eq!(v["kind"], "demonstration");
+    assert_eq!(v["gap"], text_number(&text, "gap"), "{v} vs {text}");
+    assert_eq!(
+        v["lower_bound"],
+        text_number(&text, "lower curve"),
+        "{text}"
+    );
+    assert_eq!(v["claimed"], true);
+    assert_eq!(v["holds"], true);
+    assert_eq!(v["certified_lower_bound"], serde_json::Value::Null);
+    assert_eq!(v["outcome"], "output");
+
+    // A failed method keeps the exit code 3 and still prints the object.
+    let (code, v) = play_json(
+        dir.path(),
+        &[
+            "-d",
+            "2",
+            "--exec",
+            "--",
+            "/nonexistent/naysayer-test-program",
+        ],
+    );
+    assert_eq!(code, Some(3), "{v}");
+    assert_eq!(v["outcome"], "method-failed");
+    assert!(
+        v["method_failure"]
+            .as_str()
+            .is_some_and(|r| r.contains("cannot start")),
+        "{v}"
+    );
+
+    // --json and --expect do not go together (the gate prints its own lines).
+    let out = run_in(dir.path(), &["play", "--json", "--expect", "x.toml"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("--expect"), "{}", stderr(&out));
 }

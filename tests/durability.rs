@@ -18,6 +18,8 @@ use tempfile::TempDir;
 
 const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
 
+mod outside;
+
 fn naysayer(dir: &Path, args: &[&str]) -> Output {
     Command::new(BIN)
         .args(args)
@@ -154,8 +156,14 @@ print(json.dumps({"msg": "empty"}), flush=True)
 
 #[test]
 fn two_sweeps_into_one_folder_never_interleave() {
+    // The slow method is a Python program: without python3 this test fails, saying how to
+    // install it, unless NAYSAYER_SKIP_PYTHON_TESTS=1 (`tests/outside`).
+    let Some(python) = outside::python3() else {
+        return;
+    };
     let dir = TempDir::new().unwrap();
-    std::fs::write(dir.path().join("slow.toml"), SLOW_SWEEP).unwrap();
+    let scenario = SLOW_SWEEP.replace("[\"python3\", ", &format!("[\"{python}\", "));
+    std::fs::write(dir.path().join("slow.toml"), scenario).unwrap();
     std::fs::write(dir.path().join("thinker.py"), THINKER).unwrap();
     let start = || {
         Command::new(BIN)
@@ -225,7 +233,9 @@ fn a_stale_lock_of_a_dead_process_is_taken_over_and_said_so() {
     let mut gone = Command::new("true").spawn().unwrap();
     let pid = gone.id();
     gone.wait().unwrap();
-    let host = text(&Command::new("hostname").output().unwrap().stdout);
+    // This machine's host name as the kernel reports it (what gethostname returns on
+    // Linux), read without starting a program.
+    let host = std::fs::read_to_string("/proc/sys/kernel/hostname").unwrap();
     std::fs::write(
         folder.join(".naysayer-lock"),
         format!("pid {pid}\nhost {}\nstarted 1\n", host.trim()),
@@ -343,4 +353,31 @@ fn a_closed_or_full_standard_output_never_panics() {
         );
         assert!(!text(&out.stderr).contains("panicked"));
     }
+}
+
+/// A chart file that cannot be written (here a folder stands where the PNG goes) is an
+/// I/O error: exit code 4 and one sentence naming the file and the cause, and the other
+/// files of the folder are kept.
+#[test]
+fn a_chart_that_cannot_be_written_is_an_io_error_with_a_sentence() {
+    let dir = TempDir::new().unwrap();
+    let out = naysayer(dir.path(), &["demo", "--out", "r", "--jobs", "1"]);
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let folder = dir.path().join("r/demo");
+    for suffix in ["png", "svg", "csv"] {
+        let blocked = folder.join(format!("undecided.{suffix}"));
+        std::fs::remove_file(&blocked).unwrap();
+        std::fs::create_dir(&blocked).unwrap();
+        let out = naysayer(dir.path(), &["chart", "r/demo"]);
+        let message = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(4), "{suffix}: {message}");
+        assert_eq!(
+            message.trim(),
+            format!("naysayer: error: cannot write r/demo/undecided.{suffix}: Is a directory (os error 21)"),
+            "{suffix}"
+        );
+        std::fs::remove_dir(&blocked).unwrap();
+        std::fs::write(&blocked, b"").unwrap();
+    }
+    assert!(folder.join("games.csv").is_file());
 }

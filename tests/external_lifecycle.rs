@@ -17,24 +17,12 @@ use tempfile::TempDir;
 
 const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
 
-/// `python3`; `None` only when it is missing and NAYSAYER_SKIP_PYTHON_TESTS=1.
+mod outside;
+
+/// `python3`; `None` only when it is missing and NAYSAYER_SKIP_PYTHON_TESTS=1 (else the
+/// test fails, saying how to install it: `tests/outside`).
 fn python() -> Option<&'static str> {
-    let found = Command::new("python3")
-        .arg("--version")
-        .output()
-        .is_ok_and(|o| o.status.success());
-    if found {
-        return Some("python3");
-    }
-    if std::env::var("NAYSAYER_SKIP_PYTHON_TESTS").as_deref() == Ok("1") {
-        eprintln!("skipped: python3 is not installed (NAYSAYER_SKIP_PYTHON_TESTS=1)");
-        return None;
-    }
-    panic!(
-        "python3 is not installed, and this test plays Python programs over the protocol: \
-         install Python 3 (Debian and Ubuntu: `apt-get install -y python3`), or set \
-         NAYSAYER_SKIP_PYTHON_TESTS=1 to skip the tests that need it"
-    );
+    outside::python3()
 }
 
 fn run(dir: &Path, args: &[&str]) -> Output {
@@ -466,16 +454,26 @@ deterministic = true
 "#;
 
 /// Writes the relative-command scenario and a copy of the bisection example (and its
-/// client module) into `dir/project`; returns the scenario's path.
+/// client: `naysayer_method.py` and the package `naysayer_client` beside it, as a copy
+/// outside the checkout needs without `pip install ./python`) into `dir/project`;
+/// returns the scenario's path.
 fn relative_project(dir: &Path, python: &str) -> std::path::PathBuf {
     let project = dir.join("project");
-    std::fs::create_dir_all(project.join("solver")).unwrap();
+    let package = project.join("solver/naysayer_client");
+    std::fs::create_dir_all(&package).unwrap();
     for name in ["bisection.py", "naysayer_method.py"] {
         std::fs::copy(
             examples_python().join(name),
             project.join("solver").join(name),
         )
         .unwrap();
+    }
+    let source = Path::new(env!("CARGO_MANIFEST_DIR")).join("python/src/naysayer_client");
+    for entry in std::fs::read_dir(source).unwrap() {
+        let path = entry.unwrap().path();
+        if path.extension().is_some_and(|e| e == "py") {
+            std::fs::copy(&path, package.join(path.file_name().unwrap())).unwrap();
+        }
     }
     let scenario = project.join("relative.toml");
     std::fs::write(

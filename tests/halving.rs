@@ -83,7 +83,7 @@ enum Coord {
 
 #[derive(Clone, Debug)]
 enum Move {
-    /// A point built coordinate by coordinate (first d of 4 entries are used).
+    /// A point built coordinate by coordinate (the first d of 12 entries are used).
     Point(Vec<Coord>),
     /// Repeat an earlier query (index modulo the number asked so far).
     Repeat(usize),
@@ -109,15 +109,27 @@ fn move_strategy() -> impl Strategy<Value = Move> {
         (-1e300..=1e300f64).prop_map(Coord::Far),
     ];
     prop_oneof![
-        5 => vec(frac, 4).prop_map(Move::Point),
-        3 => vec(face, 4).prop_map(Move::Point),
+        5 => vec(frac, 12).prop_map(Move::Point),
+        3 => vec(face, 12).prop_map(Move::Point),
         1 => any::<usize>().prop_map(Move::Repeat),
-        2 => vec(any_coord, 4).prop_map(Move::Point),
+        2 => vec(any_coord, 12).prop_map(Move::Point),
     ]
 }
 
-fn rho_strategy() -> impl Strategy<Value = f64> {
-    prop_oneof![Just(1.0 / 64.0), Just(1e-3)]
+/// (R, rho): R from 10^-3 to 10^3 and R/rho from 2 to 10^8, both log-uniform (so
+/// neither is dyadic in general), plus dyadic classes where R/rho is a power of two and the
+/// witnesses' last fit is decided on an exact tie: R = 1, rho = 1/64, and R = 2^(3e),
+/// rho = R / 128 for e = -3..3.
+fn scale_strategy() -> impl Strategy<Value = (f64, f64)> {
+    let generic = (-3.0..=3.0f64, 2f64.log10()..=8.0f64).prop_map(|(a, b)| {
+        let half_width = 10f64.powf(a);
+        (half_width, half_width / 10f64.powf(b))
+    });
+    prop_oneof![
+        6 => generic,
+        1 => Just((1.0, 1.0 / 64.0)),
+        1 => (-3i32..=3).prop_map(|e| (2f64.powi(e * 3), 2f64.powi(e * 3 - 7))),
+    ]
 }
 
 fn build_query(
@@ -307,17 +319,17 @@ impl Driven {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 96, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 256, ..ProptestConfig::default() })]
 
     /// After every answer the verifier accepts the adversary's witnesses for exactly the
     /// answers given while the box fitted them, and each answer obeys docs/theory.md §1.1.
     #[test]
     fn witnesses_stay_consistent_and_each_answer_keeps_half(
-        d in 1usize..=4,
-        rho in rho_strategy(),
+        d in 1usize..=12,
+        (half_width, rho) in scale_strategy(),
         moves in vec(move_strategy(), 1..80),
     ) {
-        let class = FeasibilityClass::new(d, 1.0, rho, Promise::MayBeEmpty).unwrap();
+        let class = FeasibilityClass::new(d, half_width, rho, Promise::MayBeEmpty).unwrap();
         let mut game = Driven::new(class);
         for mv in &moves {
             let x = build_query(mv, d, game.adversary.lower(), game.adversary.upper(), &game.history);
@@ -337,14 +349,14 @@ proptest! {
     /// promises, with an "empty" output or a point output.
     #[test]
     fn verifier_accepts_every_halving_transcript(
-        d in 1usize..=4,
-        rho in rho_strategy(),
+        d in 1usize..=12,
+        (half_width, rho) in scale_strategy(),
         nonempty in any::<bool>(),
         output_point in any::<bool>(),
         moves in vec(move_strategy(), 0..80),
     ) {
         let promise = if nonempty { Promise::Nonempty } else { Promise::MayBeEmpty };
-        let class = FeasibilityClass::new(d, 1.0, rho, promise).unwrap();
+        let class = FeasibilityClass::new(d, half_width, rho, promise).unwrap();
         let mut game = Driven::new(class);
         for mv in &moves {
             let x = build_query(mv, d, game.adversary.lower(), game.adversary.upper(), &game.history);

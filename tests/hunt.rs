@@ -151,6 +151,8 @@ fn a_non_deterministic_method_is_refused() {
     assert!(text.contains("not deterministic"), "{text}");
     assert!(text.contains("at query 1"), "{text}");
     assert!(text.contains("drifting"), "{text}");
+    // `naysayer hunt` reports this error as bad input, exit code 2 (its documented code).
+    assert_eq!(naysayer::cli::exit_code_for(&err), 2);
 }
 
 #[test]
@@ -314,12 +316,14 @@ fn cli_hunt_writes_a_transcript_that_check_and_replay_accept() {
         .unwrap();
     assert_eq!(replay.status.code(), Some(0));
     assert!(String::from_utf8_lossy(&replay.stdout).contains("reproduced"));
-    // A non-deterministic request is bad input: an unknown method is refused with exit 2.
+    // An unknown method is bad input: refused with exit 2, naming it. (A method that is not
+    // deterministic is refused as bad input too: `a_non_deterministic_method_is_refused`.)
     let bad = Command::new(bin)
         .args(["hunt", "-m", "nosuch", "--replays", "10", "--quiet"])
         .output()
         .unwrap();
     assert_eq!(bad.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("nosuch"));
 }
 
 fn first_order(d: usize, eps: f64) -> FirstOrderClass {

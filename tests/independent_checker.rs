@@ -3,8 +3,8 @@
 //! every method that plays its class, and a hunt's worst game), report the same counts,
 //! outcome and eps_cert, and both reject the same tampered transcripts.
 //!
-//! When `python3` is not installed the tests print a notice and pass without checking:
-//! the Python checker is an extra line of defence, not a build dependency. The cases of
+//! These tests need `python3`: without it they FAIL, saying how to install it, unless
+//! NAYSAYER_SKIP_PYTHON_TESTS=1 is set (`tests/outside`). The cases of
 //! issue 15 (refutations, number reading, limits) are in `tests/refutation.rs`,
 //! `tests/numbers.rs` and `tests/limits.rs`, with the same helpers (`tests/common`).
 
@@ -21,6 +21,7 @@ use serde_json::Value;
 use tempfile::TempDir;
 
 mod common;
+mod outside;
 use common::{agree, agree_all, python_present, BIN};
 
 /// Plays one game into `dir`; `None` when the method or adversary does not play the class.

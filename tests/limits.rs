@@ -16,6 +16,7 @@ use naysayer::transcript::limits::{MAX_DEPTH, MAX_LINE_BYTES, MAX_NUMBER_CHARS};
 use tempfile::TempDir;
 
 mod common;
+mod outside;
 use common::{agree, both_reject, python_present, python_verdicts, write_lines};
 
 fn header(class: &str) -> String {

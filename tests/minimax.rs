@@ -94,15 +94,17 @@ fn pruning_keeps_the_value() {
 
 /// {0..3}^2 with lattice and half-integer queries (the size target, 49 points):
 /// V_Q = 7, between what lattice-half forces on every method, floor(log2 16) + 1 = 5
-/// (docs/theory.md §4), and the 16 queries enumeration may need. (Its time is measured by the
-/// `minimax` criterion benchmark, not here.)
+/// (docs/theory.md §4), and the 16 queries enumeration may need (the enumeration line
+/// |S|, which `tests/upper_bounds_methods.rs` holds `enumerate` to). (Its time is
+/// measured by the `minimax` criterion benchmark, not here.)
 #[test]
 fn the_four_by_four_square_is_solved() {
-    let report = Minimax::new(
-        &LatticeClass::integer(2, 0, 3).unwrap(),
-        QuerySet::HalfInteger,
-    )
-    .unwrap()
-    .solve();
+    let class = LatticeClass::integer(2, 0, 3).unwrap();
+    let report = Minimax::new(&class, QuerySet::HalfInteger).unwrap().solve();
     assert_eq!(report.value, 7);
+    let forced = naysayer::bounds::lattice_half_lower_bound(&class).unwrap();
+    assert_eq!(forced, 5);
+    assert_eq!(class.lattice_count(), 16);
+    assert!(forced <= u64::from(report.value));
+    assert!(u64::from(report.value) <= class.lattice_count());
 }

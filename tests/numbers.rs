@@ -11,6 +11,7 @@ use naysayer::certificate::verify_file;
 use tempfile::TempDir;
 
 mod common;
+mod outside;
 use common::{agree, both_reject, python_present, write_lines};
 
 const CLASS: &str =

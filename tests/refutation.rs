@@ -15,6 +15,7 @@ use naysayer::certificate::{verify_file, Outcome};
 use tempfile::TempDir;
 
 mod common;
+mod outside;
 use common::{agree, check_cli, python_present, verdict_field, write_lines};
 
 fn header(class: &str) -> String {

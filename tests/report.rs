@@ -6,7 +6,7 @@
 //! The browser test needs Chromium (Debian and Ubuntu: `apt-get install -y chromium`;
 //! or set NAYSAYER_CHROMIUM to the browser's path). Without one it FAILS, saying how to
 //! install it, unless the environment variable NAYSAYER_SKIP_BROWSER_TESTS=1 is set, in
-//! which case it prints that it was skipped and passes.
+//! which case it prints that it was skipped and passes (`tests/outside`).
 
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
@@ -16,6 +16,8 @@ use std::time::{Duration, Instant};
 use naysayer::report::{self, html::figure_color, ReportOptions};
 use naysayer::scenario::Scenario;
 use naysayer::sweep::{self, SweepSettings};
+
+mod outside;
 
 const BOX_SCENARIO: &str = r#"
 name = "report-box"
@@ -500,28 +502,6 @@ fn large_scale_report_shows_gaps_against_the_lower_curve() {
     assert!(md.contains("No refuted output, no failed game"));
 }
 
-/// The headless browser: NAYSAYER_CHROMIUM, else the first of the usual names on PATH.
-fn find_browser() -> Option<PathBuf> {
-    if let Some(p) = std::env::var_os("NAYSAYER_CHROMIUM") {
-        return Some(PathBuf::from(p));
-    }
-    let path = std::env::var_os("PATH")?;
-    for dir in std::env::split_paths(&path) {
-        for name in [
-            "chromium",
-            "chromium-browser",
-            "google-chrome",
-            "google-chrome-stable",
-        ] {
-            let candidate = dir.join(name);
-            if candidate.is_file() {
-                return Some(candidate);
-            }
-        }
-    }
-    None
-}
-
 /// Runs the browser headless on `page` with extra `args`; returns its stdout.
 fn run_browser(browser: &Path, profile: &Path, args: &[String], page: &Path) -> String {
     let mut child = Command::new(browser)
@@ -612,16 +592,8 @@ fn find_frame(
 
 #[test]
 fn report_renders_in_a_headless_browser_with_every_chart_visible() {
-    let Some(browser) = find_browser() else {
-        if std::env::var("NAYSAYER_SKIP_BROWSER_TESTS").as_deref() == Ok("1") {
-            eprintln!("skipped: no headless browser (NAYSAYER_SKIP_BROWSER_TESTS=1)");
-            return;
-        }
-        panic!(
-            "no headless browser found for the report test: install Chromium (Debian and \
-             Ubuntu: `apt-get install -y chromium`), or name it with NAYSAYER_CHROMIUM=PATH, \
-             or set NAYSAYER_SKIP_BROWSER_TESTS=1 to skip this test"
-        );
+    let Some(browser) = outside::browser() else {
+        return;
     };
     let root = tempfile::tempdir().expect("tempdir");
     let dir = sweep_into(root.path(), BOX_SCENARIO);

@@ -478,3 +478,58 @@ fn first_order_scenarios_refuse_bad_accuracy_and_lipschitz() {
         }
     }
 }
+
+/// Every family block of the scenario reference (docs/scenarios.md) parses as written,
+/// completed with the common keys, so the reference cannot drift from the parser.
+#[test]
+fn the_scenario_reference_parses() {
+    let doc =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/docs/scenarios.md")).unwrap();
+    let blocks: Vec<&str> = doc
+        .split("```toml\n")
+        .skip(1)
+        .map(|rest| rest.split("```").next().unwrap())
+        .collect();
+    let families = [
+        ("feasibility", "halving", "midpoint", true),
+        ("first-order", "slab-funnel", "level", true),
+        ("lattice", "lattice-half", "enumerate", true),
+        (
+            "large-scale",
+            "rotation",
+            "unconstrained-subgradient",
+            false,
+        ),
+    ];
+    let mut parsed = 0;
+    for block in &blocks {
+        let Some((family, adversary, method, budget)) = families
+            .iter()
+            .find(|f| block.contains(&format!("family = \"{}\"", f.0)))
+        else {
+            continue;
+        };
+        let text = format!(
+            "name = \"doc\"\ndescription = \"From the reference.\"\n{block}\n[adversary]\nname = \
+             \"{adversary}\"\n[play]\nmethods = [\"{method}\"]\nseeds = [0]\n{}",
+            if *budget { "budget = 100\n" } else { "" }
+        );
+        // `[charts]` comes after `[class]` in the reference; TOML tables may come in any
+        // order, so appending `[adversary]` and `[play]` keeps the block as written.
+        Scenario::parse(&text, std::path::Path::new("docs/scenarios.md"))
+            .unwrap_or_else(|e| panic!("{family}: {e}\n{text}"));
+        parsed += 1;
+    }
+    assert_eq!(parsed, 4, "one block per family");
+    // The external-methods block parses too, with a program that exists.
+    let external = blocks
+        .iter()
+        .find(|b| b.contains("[external.my-solver]"))
+        .unwrap();
+    let text = format!(
+        "name = \"doc\"\ndescription = \"x\"\n[class]\nfamily = \"feasibility\"\ndims = [1]\n\
+         half_width = 1.0\nrho = [0.1]\n[adversary]\nname = \"halving\"\n{}",
+        external.replace("[play]\n", "[play]\nseeds = [0]\nbudget = 10\n")
+    );
+    Scenario::parse(&text, std::path::Path::new("docs/scenarios.md")).unwrap();
+}

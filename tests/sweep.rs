@@ -478,3 +478,67 @@ fn results_do_not_depend_on_the_number_of_workers() {
         assert_same_games(&csv, reference, &format!("-j {jobs} against -j 2"));
     }
 }
+
+/// The table `sweep` prints at the end holds the numbers of `games.csv`: per method, at
+/// the hardest class (largest d, then largest R/rho), the median and range over seeds of
+/// queries used and of the certified lower bound (recomputed here from the file).
+#[test]
+fn the_terminal_summary_holds_the_numbers_of_games_csv() {
+    let dir = TempDir::new().unwrap();
+    std::fs::write(dir.path().join("quick.toml"), QUICK).unwrap();
+    let out = Command::new(BIN)
+        .current_dir(dir.path())
+        .args(["sweep", "quick.toml", "--jobs", "2", "--no-charts"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let stdout = String::from_utf8_lossy(&out.stdout).into_owned();
+    assert!(stdout.contains("at dim = 8, ratio = 1000000"), "{stdout}");
+    let csv = std::fs::read_to_string(dir.path().join("results/quick/games.csv")).unwrap();
+    let col = |name: &str| COLUMNS.iter().position(|c| *c == name).unwrap();
+    let rows: Vec<Vec<String>> = csv.lines().skip(1).map(split_csv_line).collect();
+    let median_and_range = |values: &mut Vec<f64>| {
+        values.sort_by(f64::total_cmp);
+        let n = values.len();
+        let median = if n % 2 == 1 {
+            values[n / 2]
+        } else {
+            (values[n / 2 - 1] + values[n / 2]) / 2.0
+        };
+        if values[0] == values[n - 1] {
+            format!("{median}")
+        } else {
+            format!("{median} [{}, {}]", values[0], values[n - 1])
+        }
+    };
+    for method in ["midpoint", "ellipsoid", "random"] {
+        let at: Vec<&Vec<String>> = rows
+            .iter()
+            .filter(|r| {
+                r[col("method")] == method && r[col("dim")] == "8" && r[col("ratio")] == "1000000"
+            })
+            .collect();
+        assert!(!at.is_empty());
+        let numbers =
+            |name: &str| -> Vec<f64> { at.iter().map(|r| r[col(name)].parse().unwrap()).collect() };
+        let used = median_and_range(&mut numbers("queries_used"));
+        let certified = median_and_range(&mut numbers("certified_lower_bound"));
+        let line = stdout
+            .lines()
+            .find(|l| l.starts_with(&format!("{method} ")))
+            .unwrap_or_else(|| panic!("no line for {method}: {stdout}"));
+        let cells: Vec<&str> = line[method.len()..]
+            .split("  ")
+            .map(str::trim)
+            .filter(|c| !c.is_empty())
+            .collect();
+        assert_eq!(cells, vec![used.as_str(), certified.as_str()], "{line}");
+    }
+    let games = rows.len();
+    assert!(
+        stdout.contains(&format!(
+            "{games} games in all: no refuted output, no failed game"
+        )),
+        "{stdout}"
+    );
+}

@@ -13,8 +13,10 @@ import os
 import sys
 from fractions import Fraction
 
+# This checkout's client (python/src), or the installed package: see naysayer_method.py.
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from naysayer_method import EMPTY, Output, serve  # noqa: E402
+import naysayer_method  # noqa: E402,F401
+from naysayer_client import EMPTY, Output, main  # noqa: E402
 
 EPSILON = 2.0 ** -52
 
@@ -80,4 +82,4 @@ class Bisection:
 
 
 if __name__ == "__main__":
-    serve(Bisection)
+    main(Bisection)

@@ -15,8 +15,10 @@ import math
 import os
 import sys
 
+# This checkout's client (python/src), or the installed package: see naysayer_method.py.
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from naysayer_method import Output, serve  # noqa: E402
+import naysayer_method  # noqa: E402,F401
+from naysayer_client import Output, main  # noqa: E402
 
 
 class GradientDescent:
@@ -49,4 +51,4 @@ class GradientDescent:
 
 
 if __name__ == "__main__":
-    serve(GradientDescent)
+    main(GradientDescent)

@@ -13,10 +13,11 @@ pub mod large_scale;
 
 use num_bigint::BigInt;
 use num_rational::BigRational;
+use num_traits::ToPrimitive;
 use serde::Serialize;
 
 use crate::class::LatticeClass;
-use crate::class::{FeasibilityClass, Promise};
+use crate::class::{FeasibilityClass, FirstOrderClass, LipschitzNorm, Promise};
 
 /// Whether a bound is a lower or an upper bound.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
@@ -96,27 +97,62 @@ pub fn centre_of_gravity_upper_bound(class: &FeasibilityClass) -> u64 {
 
 /// Queries the central-cut ellipsoid method needs at most, starting from the ball of
 /// radius R sqrt(d): the least N with (R sqrt(d))^d r_d^N < rho^d (volume ratio r_d per
-/// cut, Bertsimas & Tsitsiklis 1997 ch. 8). In d = 1 the method is bisection: k + 1.
+/// cut, Bertsimas & Tsitsiklis 1997 ch. 8). In d = 1 the method is bisection of
+/// [-R, R], and its interval of length 2R 2^-N holds no rho-ball once R 2^-N < rho: the
+/// least such N, which is k + 1 unless R/rho is a power of two, and then k + 2 (exact
+/// halving would stop at length exactly 2 rho after k + 1, but f64 midpoints of a
+/// non-dyadic R are not exact, and the halving adversary keeps the longer part).
 pub fn ellipsoid_upper_bound(class: &FeasibilityClass) -> u64 {
     let d = class.dim;
     if d == 1 {
-        return u64::from(class.halvings()) + 1;
+        let k = class.halvings();
+        // R 2^-(k+1) <= rho < R 2^-k; scaling by a power of two is exact.
+        let tight = class.half_width / 2f64.powi(k as i32 + 1) == class.rho;
+        return u64::from(k) + if tight { 2 } else { 1 };
     }
     let df = d as f64;
     let numerator = df * ((class.half_width / class.rho).ln() + 0.5 * df.ln());
     (numerator / -ellipsoid_log_volume_ratio(d)).floor() as u64 + 1
 }
 
+/// The l2 Lipschitz constant L' of an L-Lipschitz first-order class: L for the l2 and
+/// l_inf classes (subgradients bounded by L in l2, or in l1, which bounds l2), L sqrt(d)
+/// for the l1 class (subgradients bounded by L in l_inf only, so up to L sqrt(d) in l2).
+pub fn l2_lipschitz(class: &FirstOrderClass) -> f64 {
+    match class.norm {
+        LipschitzNorm::L1 => class.lipschitz * (class.dim as f64).sqrt(),
+        LipschitzNorm::L2 | LipschitzNorm::Linf => class.lipschitz,
+    }
+}
+
 /// Queries the exact centre-of-gravity method needs at most on convex L-Lipschitz f
-/// over [-R, R]^d (l2 norm) to reach accuracy eps: ceil(d ln(2 L R sqrt(d) / eps) /
-/// 0.458675), since each cut keeps at most 1 - 1/e of the volume (Grunbaum 1960) and
-/// the argument of Bubeck 2015, Thm 2.1, with diameter 2R sqrt(d) (docs/theory.md §2.5,
-/// derived; the sqrt(d) is an l2 artefact).
-pub fn first_order_centre_of_gravity_upper_bound(class: &crate::class::FirstOrderClass) -> u64 {
+/// over [-R, R]^d to reach accuracy eps: ceil(d ln(2 L' R sqrt(d) / eps) / 0.458675),
+/// L' = [`l2_lipschitz`], since each cut keeps at most 1 - 1/e of the volume (Grunbaum
+/// 1960) and the argument of Bubeck 2015, Thm 2.1, with l2 diameter 2R sqrt(d)
+/// (docs/theory.md §2.5, derived; the sqrt(d) is an l2 artefact).
+pub fn first_order_centre_of_gravity_upper_bound(class: &FirstOrderClass) -> u64 {
     let d = class.dim as f64;
     let shrink = -(-(-1f64).exp()).ln_1p(); // -ln(1 - 1/e) = 0.458675...
-    let n = d * (2.0 * class.lipschitz * class.half_width * d.sqrt() / class.eps).ln() / shrink;
+    let n = d * (2.0 * l2_lipschitz(class) * class.half_width * d.sqrt() / class.eps).ln() / shrink;
     n.ceil().max(1.0) as u64
+}
+
+/// Queries the projected subgradient method plans (and needs) on convex L-Lipschitz f
+/// over [-R, R]^d to reach accuracy eps: N = ceil((L' D / eps)^2), D = R sqrt(d),
+/// L' = [`l2_lipschitz`], since with step D / (L' sqrt(N)) the best of N queries is
+/// within L' D / sqrt(N) of f* (Nesterov 2004, sec. 3.2.3, from memory). (L' D / eps)^2
+/// is L^2 R^2 d / eps^2 (times d for the l1 class), a rational number of the `f64`
+/// inputs, so the ceiling is exact; saturates at `u64::MAX`.
+pub fn subgradient_upper_bound(class: &FirstOrderClass) -> u64 {
+    let d = BigRational::from_integer(BigInt::from(class.dim));
+    let l = crate::exact::f64_to_rational(class.lipschitz);
+    let r = crate::exact::f64_to_rational(class.half_width);
+    let eps = crate::exact::f64_to_rational(class.eps);
+    let mut squared = &l * &l * &r * &r * &d / (&eps * &eps);
+    if class.norm == LipschitzNorm::L1 {
+        squared *= &d;
+    }
+    squared.ceil().to_integer().to_u64().unwrap_or(u64::MAX)
 }
 
 /// Every bound line for a feasibility class, lower bound first.
@@ -144,7 +180,8 @@ pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
             side: Side::Upper,
             queries: Some(ellipsoid_upper_bound(class)),
             formula: "least N with (R sqrt(d))^d r_d^N < rho^d, \
-                      r_d = (d/(d+1)) (d^2/(d^2-1))^((d-1)/2); bisection (k + 1) in d = 1",
+                      r_d = (d/(d+1)) (d^2/(d^2-1))^((d-1)/2); in d = 1 bisection, the least N with \
+                      R 2^-N < rho (k + 1, or k + 2 when R/rho is a power of two)",
             status: Status::Proven,
             source: "Bertsimas & Tsitsiklis 1997, ch. 8; Bubeck 2015, Lemma 2.3",
         },
@@ -163,7 +200,7 @@ pub fn feasibility_bounds(class: &FeasibilityClass) -> Vec<Bound> {
 /// r = theta (1 - beta) / 2 (docs/theory.md §2.4), decided exactly in rational arithmetic (not
 /// with a floating logarithm). With theta = 4/7, r = 1/7 and the count is
 /// ceil(log_7(L R / (2 eps))) for eps < L R / 2, else 0.
-pub fn slab_funnel_levels(class: &crate::class::FirstOrderClass, theta: &BigRational) -> u64 {
+pub fn slab_funnel_levels(class: &FirstOrderClass, theta: &BigRational) -> u64 {
     let eps = crate::exact::f64_to_rational(class.eps);
     let r = theta / BigRational::from_integer(BigInt::from(4));
     let mut reach = crate::exact::f64_to_rational(class.lipschitz)
@@ -181,16 +218,13 @@ pub fn slab_funnel_levels(class: &crate::class::FirstOrderClass, theta: &BigRati
 /// method needs at least d * ceil(log_7(L R / (2 eps))) queries to minimise, to accuracy
 /// eps < L R / 2, convex functions on [-R, R]^d whose subgradients have l1 norm at most L
 /// (so L-Lipschitz in every l_p norm); 0 when eps >= L R / 2.
-pub fn slab_funnel_lower_bound(class: &crate::class::FirstOrderClass) -> u64 {
+pub fn slab_funnel_lower_bound(class: &FirstOrderClass) -> u64 {
     let theta = BigRational::new(BigInt::from(4), BigInt::from(7));
     class.dim as u64 * slab_funnel_levels(class, &theta)
 }
 
 /// Every bound line for a first-order class (docs/theory.md §2, §2.4, §2.5).
-pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
-    let diameter = class.half_width * (class.dim as f64).sqrt();
-    let ratio = class.lipschitz * diameter / class.eps;
-    let subgradient = (ratio * ratio).ceil().min(u64::MAX as f64) as u64;
+pub fn first_order_bounds(class: &FirstOrderClass) -> Vec<Bound> {
     vec![
         Bound {
             label: "lower bound (slab funnel)",
@@ -216,15 +250,18 @@ pub fn first_order_bounds(class: &crate::class::FirstOrderClass) -> Vec<Bound> {
             label: "centre of gravity",
             side: Side::Upper,
             queries: Some(first_order_centre_of_gravity_upper_bound(class)),
-            formula: "ceil(d ln(2 L R sqrt(d) / eps) / 0.458675), l2 norm",
+            formula: "ceil(d ln(2 L' R sqrt(d) / eps) / 0.458675), L' the l2 Lipschitz \
+                      constant: L for the l2 and l_inf classes, L sqrt(d) for the l1 class",
             status: Status::Proven,
             source: "Grunbaum 1960; Bubeck 2015, Thm 2.1 (derived, docs/theory.md §2.5)",
         },
         Bound {
             label: "subgradient method",
             side: Side::Upper,
-            queries: Some(subgradient),
-            formula: "ceil((L D / eps)^2), D = R sqrt(d), step D / (L sqrt(N+1)), l2 norm",
+            queries: Some(subgradient_upper_bound(class)),
+            formula: "N = ceil((L' D / eps)^2), D = R sqrt(d), step D / (L' sqrt(N)), L' the \
+                      l2 Lipschitz constant: L for the l2 and l_inf classes, L sqrt(d) for the \
+                      l1 class",
             status: Status::Proven,
             source: "Nesterov 2004, sec. 3.2.3 (from memory)",
         },
@@ -344,7 +381,8 @@ pub fn lattice_bounds(class: &LatticeClass) -> Vec<Bound> {
             "floor(ln |S| / -ln(1 - 2^-n)) + 1 (depth |S| / 2^n per query)"
         } else {
             "ceil(ln(mu_0 / mu_min) / -ln(1 - 1/(2^n (d+1)))), mu_0 = |S| (2R)^d, \
-             mu_min = kappa_d rho^d"
+             mu_min = kappa_d rho^d, for a method querying an exact centerpoint (the \
+             built-in mixed-centerpoint samples one and is not held to this line)"
         },
         status: Status::Proven,
         source: if class.cont_dim == 0 {

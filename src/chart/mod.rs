@@ -196,7 +196,7 @@ pub fn draw(spec: &ChartSpec, stem: &Path) -> Result<ChartFiles, Error> {
         reason,
     })?;
     let prepared = prepare_chart(spec);
-    write_file(&files.csv, &chart_csv(spec, &prepared))?;
+    write_file(&files.csv, chart_csv(spec, &prepared))?;
     let painter = ChartPainter {
         spec,
         data: &prepared,
@@ -232,7 +232,7 @@ pub fn draw_game_2d(game: &Game2d, stem: &Path) -> Result<ChartFiles, Error> {
         reason,
     })?;
     let prepared = prepare_game(game);
-    write_file(&files.csv, &game_csv(game))?;
+    write_file(&files.csv, game_csv(game))?;
     // Query numbers are placed while painting, and a note says how many did
     // not fit; that note changes the header and so the panels. Paint into a
     // throwaway SVG until the note is stable, so that both files agree.

@@ -56,7 +56,7 @@ pub(super) fn output_files(stem: &Path) -> Result<ChartFiles, Error> {
     })
 }
 
-pub(super) fn write_file(path: &Path, contents: &str) -> Result<(), Error> {
+pub(super) fn write_file(path: &Path, contents: impl AsRef<[u8]>) -> Result<(), Error> {
     std::fs::write(path, contents).map_err(|source| Error::Io {
         action: "cannot write",
         path: path.to_path_buf(),
@@ -95,8 +95,23 @@ pub(super) fn write_images<P: Painter>(
         path: files.png.clone(),
         reason,
     };
-    let root = BitMapBackend::new(&files.png, (width, height)).into_drawing_area();
-    painter.paint(&root, Ink::Raster).map_err(png_err)?;
-    root.present().map_err(|e| png_err(e.to_string()))?;
-    Ok(())
+    // Painted into memory and encoded here, so that a file that cannot be written is an
+    // I/O error with its cause (exit code 4), as for the SVG and CSV files.
+    let mut pixels = vec![0u8; width as usize * height as usize * 3];
+    {
+        let root = BitMapBackend::with_buffer(&mut pixels, (width, height)).into_drawing_area();
+        painter.paint(&root, Ink::Raster).map_err(png_err)?;
+        root.present().map_err(|e| png_err(e.to_string()))?;
+    }
+    let mut encoded = Vec::new();
+    {
+        let mut encoder = png::Encoder::new(&mut encoded, width, height);
+        encoder.set_color(png::ColorType::Rgb);
+        encoder.set_depth(png::BitDepth::Eight);
+        encoder
+            .write_header()
+            .and_then(|mut w| w.write_image_data(&pixels))
+            .map_err(|e| png_err(e.to_string()))?;
+    }
+    write_file(&files.png, &encoded)
 }

@@ -104,8 +104,12 @@ pub struct WitnessFile {
     pub class: Class,
     /// Number of answers the witnesses reproduce (all of them).
     pub queries: u64,
-    /// eps_cert: for every eps below it the two witnesses' eps-solution sets are
-    /// disjoint (rounded down, so the figure itself is safe to quote as "more than").
+    /// The audit uncertainty: for every eps below it the two witnesses' eps-solution
+    /// sets are disjoint (rounded down, so the figure itself is safe to quote as "more
+    /// than"). On disk `audit_uncertainty` (files written before the rename say
+    /// `certified_uncertainty`, which is read too), so it is not confused with the
+    /// transcript's own certified uncertainty, which comes from another witness pair.
+    #[serde(rename = "audit_uncertainty", alias = "certified_uncertainty")]
     pub certified_uncertainty: f64,
     /// The witnesses, with `prefix` = `queries`.
     pub certificate: Witnesses,
@@ -304,17 +308,25 @@ pub fn describe(audit: &Audit, witnesses: Option<&PathBuf>) -> String {
     }
     if audit.violation.is_none() {
         match audit.certified_uncertainty() {
-            Some(eps_cert) => out.push_str(&format!(
-                "eps_cert               {eps_cert:e} (certified lower estimate: for every eps \
-                 below it, no method can guarantee eps-accuracy from these answers)\n"
+            Some(value) => out.push_str(&format!(
+                "audit uncertainty      {value:e} (from the audit's own witness pair, searched \
+                 by linear programs over all {} answers and verified exactly: for every eps \
+                 below it, no method can guarantee eps-accuracy from these answers; a second \
+                 lower estimate beside the certified uncertainty, from a different pair, so \
+                 the two differ and the larger holds; docs/theory.md §2.2)\n",
+                audit.queries
             )),
-            None => out.push_str("eps_cert               none found\n"),
+            None => out.push_str(
+                "audit uncertainty      none (the audit's search found no pair of witness \
+                 functions that agree with every answer)\n",
+            ),
         }
     }
     match audit.claim {
         Claim::Flagged => out.push_str(&format!(
             "claim                  FLAGGED: the method claims accuracy {} after {} queries, \
-             but eps_cert {:e} is larger: no method could guarantee that from these answers\n",
+             but the audit uncertainty {:e} is larger: no method could guarantee that from \
+             these answers\n",
             audit.claimed_eps,
             audit.queries,
             audit.certified_uncertainty().unwrap_or(f64::NAN)

@@ -120,6 +120,9 @@ fn verify(args: &CheckArgs) -> Result<u8, Error> {
                 "outcome                {}",
                 describe_outcome(&verdict.outcome, &verdict.ending)
             );
+            if let Some(value) = verdict.certified_uncertainty {
+                crate::say!("{}", crate::cli::play::certified_uncertainty_line(value));
+            }
             Ok(EXIT_OK)
         }
         Err(error @ Error::Transcript { .. }) => {

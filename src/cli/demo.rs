@@ -44,7 +44,9 @@ pub fn run(args: &DemoArgs) -> Result<u8, Error> {
         shard: None,
         root: args.out.clone(),
         progress: true,
-        restart: false,
+        // The demo always plays (it takes about a second): results left by an earlier
+        // run, or committed with the gallery, are replaced, not resumed.
+        restart: true,
     };
     crate::resources::check_scenario(
         "demo",
@@ -65,8 +67,8 @@ pub fn run(args: &DemoArgs) -> Result<u8, Error> {
     let summary = summary?;
     if summary.interrupted {
         crate::note!(
-            "naysayer: interrupted by {}; the finished games are kept in {} and `naysayer \
-             demo` resumes from them",
+            "naysayer: interrupted by {}; the finished games are in {} (`naysayer demo` \
+             plays them all again next time)",
             crate::interrupt::signal_name().unwrap_or("a signal"),
             summary.csv.display()
         );
@@ -74,10 +76,8 @@ pub fn run(args: &DemoArgs) -> Result<u8, Error> {
     }
     let dir = scenario.results_dir(&args.out);
     crate::say!(
-        "{} games ({} played now, {} found finished) -> {}\n",
-        summary.games,
+        "{} games played -> {}\n",
         summary.played,
-        summary.resumed,
         summary.csv.display()
     );
     print_table(&summary.csv, 8, 1e-6)?;
@@ -93,6 +93,14 @@ pub fn run(args: &DemoArgs) -> Result<u8, Error> {
     for png in crate::cli::chart::draw_all(&dir)? {
         crate::say!("  {}", png.display());
     }
+    let report = crate::report::write(
+        &dir,
+        &crate::report::ReportOptions {
+            scenario_path: None,
+            results_root: Some(args.out.clone()),
+        },
+    )?;
+    crate::say!("report:\n  {}", report.html.display());
     if summary.rejected > 0 {
         crate::say!(
             "{} certificates were REJECTED by the verifier",

@@ -44,6 +44,10 @@ pub struct PlayArgs {
     /// Expectation file (TOML, see `naysayer::expect`): exit 5 when a number drifts.
     #[arg(long)]
     pub expect: Option<PathArg>,
+    /// Print exactly one JSON object on standard output instead of the text summary
+    /// (for programs: fields in [`json_summary`]); the exit code is the same.
+    #[arg(long, conflicts_with = "expect")]
+    pub json: bool,
     /// Exit with code 7 when the verifier refutes the method's output (a witness agrees
     /// with every answer and makes the output wrong): for CI jobs that must fail on a
     /// wrong answer. Without it such a game exits 0 (the certificate holds).
@@ -191,13 +195,20 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
     let report = family::play(&spec, method.as_mut(), flush);
     progress.finish();
     let report = report?;
+    if args.json {
+        crate::say!("{}", json_summary(&spec, &report));
+    }
     let (ending, accepted) = match &report {
         GameReport::Certificate(r) => {
-            crate::say_text!("{}", summary(&spec, r));
+            if !args.json {
+                crate::say_text!("{}", summary(&spec, r));
+            }
             (&r.record.ending, r.verdict.is_ok())
         }
         GameReport::Demonstration(r) => {
-            crate::say_text!("{}", demonstration_summary(&spec, r));
+            if !args.json {
+                crate::say_text!("{}", demonstration_summary(&spec, r));
+            }
             (&r.record.ending, report.accepted())
         }
     };
@@ -378,11 +389,9 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
                     ));
                 }
             }
-            if let Some(eps_cert) = verdict.certified_uncertainty {
-                out.push_str(&format!(
-                    "certified uncertainty  {eps_cert:e} (no method can guarantee a smaller \
-                     error from the certified answers; a lower estimate, docs/theory.md §2.2)\n"
-                ));
+            if let Some(value) = verdict.certified_uncertainty {
+                out.push_str(&certified_uncertainty_line(value));
+                out.push('\n');
             }
         }
         Err(_) => {
@@ -425,4 +434,124 @@ pub fn lower_bound_text(verdict: &Verdict) -> String {
         ),
         (None, None) => "none (no certifiable prefix)".into(),
     }
+}
+
+/// The certified uncertainty line of `play` and `check`: the value the exact verifier
+/// computes from the transcript's witness pair (docs/theory.md §2.2).
+pub fn certified_uncertainty_line(value: f64) -> String {
+    format!(
+        "certified uncertainty  {value:e} (from the certificate's witnesses: no method can \
+         guarantee a smaller error from the certified answers; a lower estimate, \
+         docs/theory.md §2.2)"
+    )
+}
+
+/// The summary of one game as a JSON object (`play --json`), for programs such as the
+/// Python package under `python/`. Fields, all always present:
+///
+/// - `kind`: `"certificate"` (exactly verified classes) or `"demonstration"` (large-scale);
+/// - `class` (as in the transcript header), `family`, `method`, `adversary`, `seed`,
+///   `budget`;
+/// - `queries_used`, `censored` (the budget ended the game), `method_failure` (the
+///   reason, or `null`), `transcript` (the path as given, or `null`);
+/// - `verified`: the exact verifier accepted the certificate (certificates), or the
+///   demonstration judge accepted the game (demonstrations); `rejection`: why not, or
+///   `null`;
+/// - `outcome`: for certificates the outcome as the `outcome` column of `games.csv`
+///   names it (`output-stands`, `output-refuted`, `empty-refuted`,
+///   `empty-breaks-promise`, `budget-exhausted`, `interrupted`, `method-failed`), or
+///   `rejected` when the verifier rejected the certificate; for demonstrations the
+///   ending's `kind` as in the transcript's final record (`output`, `budget-exhausted`,
+///   `interrupted`, `method-failed`);
+///   `refuting_witness`: the 1-based witness of a refutation, or `null`;
+/// - `certified_lower_bound`: T* + 1 only from witnesses with pairwise disjoint solution
+///   sets (docs/theory.md §7), else `null`; `certified_uncertainty`: eps_cert of
+///   first-order classes (docs/theory.md §2.2), else `null`;
+/// - demonstrations only (else `null`): `gap`, `lower_bound` (the published curve at the
+///   horizon, docs/theory.md §3), `upper_bound` (the method's own curve, or `null`),
+///   `claimed` (the lower curve is claimed for this game), `holds` (the gap is at least
+///   the lower curve, to the stated tolerance; `null` when the gap is undefined).
+pub fn json_summary(spec: &GameSpec, report: &GameReport) -> serde_json::Value {
+    use crate::family::boxes::outcome_name;
+    use serde_json::{json, Value};
+    let (method, record) = match report {
+        GameReport::Certificate(r) => (&r.header.method, &r.record),
+        GameReport::Demonstration(r) => (&r.header.method, &r.record),
+    };
+    let failure = match &record.ending {
+        Ending::MethodFailed { reason } => Some(reason.as_str()),
+        _ => None,
+    };
+    let mut out = json!({
+        "kind": if matches!(report, GameReport::Certificate(_)) { "certificate" } else { "demonstration" },
+        "class": spec.class,
+        "family": spec.class.family_name(),
+        "method": method,
+        "adversary": spec.adversary,
+        "seed": spec.seed,
+        "budget": spec.budget,
+        "queries_used": record.queries_used,
+        "censored": matches!(record.ending, Ending::BudgetExhausted),
+        "method_failure": failure,
+        "transcript": spec.transcript.as_ref().map(|p| p.display().to_string()),
+        "verified": report.accepted(),
+        "rejection": Value::Null,
+        "outcome": Value::Null,
+        "refuting_witness": Value::Null,
+        "certified_lower_bound": Value::Null,
+        "certified_uncertainty": Value::Null,
+        "gap": Value::Null,
+        "lower_bound": Value::Null,
+        "upper_bound": Value::Null,
+        "claimed": Value::Null,
+        "holds": Value::Null,
+    });
+    let mut set = |key: &str, value: Value| {
+        out[key] = value;
+    };
+    match report {
+        GameReport::Certificate(r) => match &r.verdict {
+            Ok(v) => {
+                set("outcome", json!(outcome_name(&v.outcome)));
+                let witness = match v.outcome {
+                    Outcome::OutputRefuted { witness } | Outcome::EmptyRefuted { witness } => {
+                        Some(witness + 1)
+                    }
+                    _ => None,
+                };
+                set("refuting_witness", json!(witness));
+                set("certified_lower_bound", json!(v.certified_lower_bound()));
+                set("certified_uncertainty", json!(v.certified_uncertainty));
+            }
+            Err(e) => {
+                set("outcome", json!("rejected"));
+                set("rejection", json!(e.chain()));
+            }
+        },
+        GameReport::Demonstration(r) => {
+            // The ending's own tag, as in the transcript's final record.
+            let ending = serde_json::to_value(&record.ending).unwrap_or(Value::Null);
+            set(
+                "outcome",
+                ending.get("kind").cloned().unwrap_or(Value::Null),
+            );
+            match &r.judgement {
+                Ok(v) => {
+                    set("gap", json!(v.gap));
+                    set("lower_bound", json!(v.lower_bound));
+                    set("upper_bound", json!(v.upper_bound));
+                    set("claimed", json!(v.claimed));
+                    set("holds", json!(v.holds));
+                    if !v.consistent() {
+                        set(
+                            "rejection",
+                            json!("the gap is below the lower curve claimed for this game"),
+                        );
+                    }
+                }
+                Err(e) => set("rejection", json!(e.chain())),
+            }
+        }
+    }
+    out
 }

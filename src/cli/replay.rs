@@ -3,7 +3,7 @@
 //! found by an adversary (or written by the audit of `naysayer check --witnesses`)
 //! becomes a fixed regression test.
 //!
-//! The witness comes from the final record of a transcript (`--transcript FILE`,
+//! The witness comes from the final record of a transcript (`--from FILE`,
 //! `--witness K`, 1-based) or from a witness file written by the audit
 //! (`--witnesses FILE`). The class is the transcript's (or the witness file's), with
 //! `--eps` overriding its accuracy. The game is written like any other (`-t OUT`, the
@@ -31,14 +31,16 @@ use crate::transcript::{Ending, FinalRecord, Header};
 /// Arguments of `naysayer replay`.
 #[derive(Debug, Args)]
 pub struct ReplayArgs {
-    /// A transcript whose final record holds the witness functions.
+    /// Read the witness from this transcript's final record (an input; `-t` names the
+    /// transcript this replay writes).
     #[arg(
         long,
+        value_name = "TRANSCRIPT",
         conflicts_with = "witnesses",
         required_unless_present = "witnesses",
         allow_negative_numbers = true
     )]
-    pub transcript: Option<PathArg>,
+    pub from: Option<PathArg>,
     /// A witness file written by `naysayer check --witnesses`.
     #[arg(long)]
     pub witnesses: Option<PathArg>,
@@ -57,9 +59,9 @@ pub struct ReplayArgs {
     /// Seed of randomized methods.
     #[arg(long, default_value_t = 0, allow_negative_numbers = true)]
     pub seed: u64,
-    /// Write the transcript here (JSON Lines).
+    /// Write this replay's transcript here (JSON Lines), as `play -t` does.
     #[arg(short, long)]
-    pub transcript_out: Option<PathArg>,
+    pub transcript: Option<PathArg>,
     /// Progress and the memory cap.
     #[command(flatten)]
     pub work: crate::cli::progress::WorkArgs,
@@ -224,7 +226,7 @@ pub fn replay(
 /// failed, 2 on bad input.
 pub fn run(args: &ReplayArgs) -> Result<u8, Error> {
     let (mut class, witness) = load_witness(
-        args.transcript.as_deref(),
+        args.from.as_deref(),
         args.witnesses.as_deref(),
         args.witness,
     )?;
@@ -260,7 +262,7 @@ pub fn run(args: &ReplayArgs) -> Result<u8, Error> {
         &args.method,
         args.seed,
         args.budget,
-        args.transcript_out.as_deref(),
+        args.transcript.as_deref(),
     );
     progress.finish();
     let report = match report {
@@ -271,7 +273,7 @@ pub fn run(args: &ReplayArgs) -> Result<u8, Error> {
         }
         Err(e) => return Err(e),
     };
-    crate::say_text!("{}", summary(&report, args.transcript_out.as_ref()));
+    crate::say_text!("{}", summary(&report, args.transcript.as_ref()));
     Ok(match report.record.ending {
         Ending::MethodFailed { .. } => EXIT_METHOD_FAILED,
         _ => EXIT_OK,

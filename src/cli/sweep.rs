@@ -144,6 +144,14 @@ pub fn run(args: &SweepArgs) -> Result<u8, Error> {
             );
             return Ok(EXIT_INTERRUPTED);
         }
+        if args.shard.is_none() {
+            let columns = scenario.grid.columns();
+            let table = crate::report::summary::terminal_summary(
+                &scenario.results_dir(&args.out),
+                columns,
+            )?;
+            crate::say_text!("{table}");
+        }
         if !args.no_charts && args.shard.is_none() {
             scenario
                 .grid

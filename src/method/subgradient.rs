@@ -2,13 +2,16 @@
 //! (Shor 1962; the guarantee as in Nesterov, Introductory Lectures on Convex
 //! Optimization, 2004, sec. 3.2.3, from memory).
 //!
-//! x_0 = 0, x_{t+1} = P_X(x_t - eta_t g_t). With the fixed step eta = D / (L sqrt(N+1)),
-//! D = R sqrt(d) >= ||x_0 - x*||_2, the best of N + 1 points satisfies
-//! min_t f(x_t) - f* <= L D / sqrt(N+1) (L the l2 Lipschitz constant), so N + 1 =
-//! ceil((L D / eps)^2) queries guarantee eps-accuracy; the method plans that many and
-//! outputs the best point seen. The decaying variant uses eta_t = D / (L sqrt(t+1)) and
-//! the same number of queries (it carries a log factor in its guarantee).
+//! x_0 = 0, x_{t+1} = P_X(x_t - eta_t g_t). With the fixed step eta = D / (L' sqrt(N)),
+//! D = R sqrt(d) >= ||x_0 - x*||_2 and L' the l2 Lipschitz constant
+//! ([`crate::bounds::l2_lipschitz`]: L, or L sqrt(d) for the l1 class), the best of the
+//! N points x_0..x_(N-1) satisfies min_t f(x_t) - f* <= L' D / sqrt(N), so
+//! N = ceil((L' D / eps)^2) queries ([`crate::bounds::subgradient_upper_bound`], exact)
+//! guarantee eps-accuracy; the method plans that many and outputs the best point seen.
+//! The decaying variant uses eta_t = D / (L' sqrt(t+1)) and the same number of queries
+//! (it carries a log factor in its guarantee).
 
+use crate::bounds::{l2_lipschitz, subgradient_upper_bound};
 use crate::class::{Class, FirstOrderClass, LargeScale, LargeScaleClass};
 use crate::error::Error;
 use crate::method::{wrong_family, Method, MethodInfo};
@@ -17,7 +20,7 @@ use crate::oracle::{Answer, Output, Step};
 /// Step-size rule.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum StepRule {
-    /// eta = D / (L sqrt(N+1)).
+    /// eta = D / (L' sqrt(N)), N the planned queries.
     Fixed,
     /// eta_t = D / (L sqrt(t+1)).
     Decaying,
@@ -28,7 +31,7 @@ pub enum StepRule {
 pub struct Subgradient {
     rule: StepRule,
     half_width: f64,
-    /// D / L.
+    /// D / L'.
     scale: f64,
     planned: u64,
     asked: u64,
@@ -43,15 +46,14 @@ pub struct Subgradient {
 pub const MAX_PLANNED: u64 = 1 << 40;
 
 impl Subgradient {
-    /// Plans ceil((L D / eps)^2) queries with D = R sqrt(d).
+    /// Plans ceil((L' D / eps)^2) queries with D = R sqrt(d) (module doc).
     pub fn new(class: &FirstOrderClass, rule: StepRule) -> Subgradient {
         let diameter = class.half_width * (class.dim as f64).sqrt();
-        let ratio = class.lipschitz * diameter / class.eps;
-        let planned = (ratio * ratio).ceil().clamp(1.0, MAX_PLANNED as f64) as u64;
+        let planned = subgradient_upper_bound(class).clamp(1, MAX_PLANNED);
         Subgradient {
             rule,
             half_width: class.half_width,
-            scale: diameter / class.lipschitz,
+            scale: diameter / l2_lipschitz(class),
             planned,
             asked: 0,
             point: vec![0.0; class.dim],
@@ -137,7 +139,7 @@ impl Method for Subgradient {
         let eta = match (self.step, self.rule) {
             (Some(step), _) => step,
             (None, rule) => match rule {
-                StepRule::Fixed => self.scale / ((self.planned as f64) + 1.0).sqrt(),
+                StepRule::Fixed => self.scale / (self.planned as f64).sqrt(),
                 StepRule::Decaying => self.scale / ((self.asked as f64) + 1.0).sqrt(),
             },
         };
@@ -156,8 +158,8 @@ fn memory(class: &Class, _queries: u64) -> u64 {
 /// The registry entry of `subgradient`.
 pub const INFO: MethodInfo = MethodInfo {
     name: "subgradient",
-    description: "first-order: projected subgradient, fixed step D/(L sqrt(N+1)), best \
-                  point (Shor 1962; Nesterov 2004 sec. 3.2.3)",
+    description: "first-order: projected subgradient, fixed step D/(L sqrt(N)) over its N \
+                  planned queries, best point (Shor 1962; Nesterov 2004 sec. 3.2.3)",
     deterministic: true,
     span: false,
     families: &["first-order"],

@@ -22,6 +22,7 @@ pub mod facts;
 pub mod games;
 pub mod html;
 pub mod markdown;
+pub mod summary;
 pub mod tables;
 
 use std::path::{Path, PathBuf};

@@ -94,7 +94,11 @@ pub fn box_tables(scenario: &Scenario, grid: &BoxGrid, games: &Games) -> Result<
     .map(|s| s.to_string())
     .collect();
     if first_order {
-        header.extend(["eps_cert: median".into(), "min".into(), "max".into()]);
+        header.extend([
+            "certified uncertainty: median".into(),
+            "min".into(),
+            "max".into(),
+        ]);
     }
     header.extend(bound_columns.iter().map(|(_, h)| h.to_string()));
     let mut blocks = vec![Block::Paragraph(RULES.into())];

@@ -1,8 +1,9 @@
 //! Helpers shared by the tests that run both checkers (`naysayer`'s verifier and the
 //! independent `tools/check_certificate.py`) and require them to agree.
 //!
-//! When `python3` is not installed the tests print a notice and pass without checking:
-//! the Python checker is an extra line of defence, not a build dependency.
+//! The Python checker needs `python3`: without it these tests FAIL with a message saying
+//! how to install it, unless NAYSAYER_SKIP_PYTHON_TESTS=1 is set (`tests/outside`; every
+//! test binary that uses this module declares `mod outside;` too).
 #![allow(dead_code)]
 
 use std::path::{Path, PathBuf};
@@ -14,18 +15,12 @@ use naysayer::family::boxes::outcome_name;
 pub const CHECKER: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tools/check_certificate.py");
 pub const BIN: &str = env!("CARGO_BIN_EXE_naysayer");
 
+/// Whether the Python checker can run: true when `python3` runs; false only when it is
+/// missing and NAYSAYER_SKIP_PYTHON_TESTS=1 allows skipping (otherwise this panics,
+/// saying how to install it).
+#[track_caller]
 pub fn python_present() -> bool {
-    let found = Command::new("python3")
-        .arg("--version")
-        .output()
-        .is_ok_and(|o| o.status.success());
-    if !found {
-        eprintln!(
-            "SKIPPED: python3 is not installed, so tools/check_certificate.py cannot be run; \
-             install Python 3 to run the independent-checker tests"
-        );
-    }
-    found
+    crate::outside::python3().is_some()
 }
 
 /// Runs the Python checker once over `paths`: each file's verdict line, in order. Its

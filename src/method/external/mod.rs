@@ -71,8 +71,9 @@
 //! > {"msg":"answer","index":37,"answer":{"kind":"first-order","value":{"exact":"-24229210626892415/144115188075855872","approx":-0.16812392191542802},"subgradient":[-0.25,0.0]}}
 //! ```
 //!
-//! [`serve`] speaks the program's side for a Rust [`Method`]; the Python client
-//! `examples/python/naysayer_method.py` does the same for a Python ask/tell object.
+//! [`serve`] speaks the program's side for a Rust [`Method`]; the Python package
+//! `naysayer_client` (`python/` in the repository) does the same for a Python ask/tell
+//! object.
 //!
 //! The code: this file holds the settings and [`ExternalMethod`]; `messages.rs` the
 //! protocol's messages and their parsing, `process.rs` the process control (pipes, time

@@ -198,7 +198,7 @@ fn uncertainty_chart(
              its points may lie above the curve.",
             c.eps
         ),
-        "eps_cert: an error no method can rule out from the first T answers, for this class \
+        "certified uncertainty: an error no method can rule out from the first T answers, for this class \
          and norm; a certified lower estimate, not the method's own error (docs/theory.md §2.2)."
             .to_string(),
     ];
@@ -207,7 +207,7 @@ fn uncertainty_chart(
         title: format!("Certified uncertainty against queries, d = {}", c.dim),
         subtitle: Some(cx.subtitle.clone()),
         x_label: "queries T".into(),
-        y_label: "certified uncertainty eps_cert".into(),
+        y_label: "certified uncertainty".into(),
         x_scale: Scale::Log10,
         y_scale: Scale::Log10,
         x_integer: true,
