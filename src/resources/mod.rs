@@ -138,7 +138,7 @@ pub fn game_need(class: &Class, method: Option<&str>, adversary: &str, budget: u
         bytes: memory::bytes(memory::GAME_BASE + 64.0 * class.query_dim() as f64),
         note: "the program, its buffers and the verifier's answers held in memory",
     });
-    parts.sort_by(|a, b| b.bytes.cmp(&a.bytes));
+    parts.sort_by_key(|p| std::cmp::Reverse(p.bytes));
     Need { parts }
 }
 
@@ -456,7 +456,7 @@ pub fn check_replay(
     if total <= cap.bytes {
         return Ok(());
     }
-    need.parts.sort_by(|a, b| b.bytes.cmp(&a.bytes));
+    need.parts.sort_by_key(|p| std::cmp::Reverse(p.bytes));
     let top = &need.parts[0];
     Err(Error::Memory {
         context: "replay".into(),
