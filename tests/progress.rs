@@ -172,10 +172,10 @@ fn a_sweep_prints_games_done_of_its_total() {
     std::fs::write(
         &scenario,
         r#"name = "steady"
-description = "Ellipsoid games up to d = 24, about a second or more in all."
+description = "Ellipsoid games up to d = 64, more than a second in all."
 [class]
 family = "feasibility"
-dims = [4, 8, 12, 16, 20, 24]
+dims = [16, 24, 32, 40, 48, 64]
 half_width = 1.0
 rho = [1e-2, 1e-4, 1e-6]
 [adversary]

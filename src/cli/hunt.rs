@@ -126,64 +126,78 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
             reason: "a program after `--` needs --exec".into(),
         });
     }
-    let report = match args.family {
-        Family::Feasibility if args.exec.exec => {
-            let inner = args.class.to_class()?;
-            let factory = external_factory(args, &Class::Feasibility(inner.clone()))?;
-            hunt::hunt(
-                &inner,
+    let found: Result<HuntReport, Error> = (|| {
+        Ok(match args.family {
+            Family::Feasibility if args.exec.exec => {
+                let inner = args.class.to_class()?;
+                let factory = external_factory(args, &Class::Feasibility(inner.clone()))?;
+                hunt::hunt(
+                    &inner,
+                    args.seed,
+                    &factory,
+                    &settings,
+                    &mut on_progress,
+                    args.transcript.as_deref(),
+                )?
+            }
+            Family::FirstOrder if args.exec.exec => {
+                let inner = args.first_order.to_class(&args.class)?;
+                let class = Class::FirstOrder(inner.clone());
+                let factory = external_factory(args, &class)?;
+                hunt::first_order::hunt_first_order(
+                    &inner,
+                    args.seed,
+                    &factory,
+                    &settings,
+                    &mut on_progress,
+                    args.transcript.as_deref(),
+                )?
+            }
+            Family::Feasibility => hunt::hunt_builtin(
+                &args.method,
+                &args.class.to_class()?,
                 args.seed,
-                &factory,
                 &settings,
                 &mut on_progress,
                 args.transcript.as_deref(),
-            )?
-        }
-        Family::FirstOrder if args.exec.exec => {
-            let inner = args.first_order.to_class(&args.class)?;
-            let class = Class::FirstOrder(inner.clone());
-            let factory = external_factory(args, &class)?;
-            hunt::first_order::hunt_first_order(
-                &inner,
+            )?,
+            Family::FirstOrder => hunt::first_order::hunt_first_order_builtin(
+                &args.method,
+                &args.first_order.to_class(&args.class)?,
                 args.seed,
-                &factory,
                 &settings,
                 &mut on_progress,
                 args.transcript.as_deref(),
-            )?
-        }
-        Family::Feasibility => hunt::hunt_builtin(
-            &args.method,
-            &args.class.to_class()?,
-            args.seed,
-            &settings,
-            &mut on_progress,
-            args.transcript.as_deref(),
-        )?,
-        Family::FirstOrder => hunt::first_order::hunt_first_order_builtin(
-            &args.method,
-            &args.first_order.to_class(&args.class)?,
-            args.seed,
-            &settings,
-            &mut on_progress,
-            args.transcript.as_deref(),
-        )?,
-        Family::Lattice => {
-            return Err(Error::Unsupported {
-                what: "hunt".into(),
-                reason: "lattice classes have no hunt; use `naysayer minimax` for small ones"
-                    .into(),
-            })
-        }
-        Family::LargeScale => {
-            return Err(Error::Unsupported {
-                what: "hunt".into(),
-                reason: "the large-scale family has no hunt: its adaptive-rotation \
+            )?,
+            Family::Lattice => {
+                return Err(Error::Unsupported {
+                    what: "hunt".into(),
+                    reason: "lattice classes have no hunt; use `naysayer minimax` for small ones"
+                        .into(),
+                })
+            }
+            Family::LargeScale => {
+                return Err(Error::Unsupported {
+                    what: "hunt".into(),
+                    reason: "the large-scale family has no hunt: its adaptive-rotation \
                          adversaries already bind every deterministic method \
                          (docs/theory.md §3)"
-                    .into(),
-            })
+                        .into(),
+                })
+            }
+        })
+    })();
+    // A signal during the search (or its determinism re-check) ends the hunt as
+    // interrupted, whatever the search was doing when it came.
+    let report = match found {
+        Err(_) if crate::interrupt::requested() => {
+            crate::note!(
+                "naysayer: interrupted by {} before the hunt found a worst game",
+                crate::interrupt::signal_name().unwrap_or("a signal")
+            );
+            return Ok(crate::cli::EXIT_INTERRUPTED);
         }
+        other => other?,
     };
     bar.finish();
     crate::say_text!("{}", summary(args, &report));
