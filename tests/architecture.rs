@@ -327,6 +327,8 @@ fn no_one_cites_a_document_the_repository_lacks() {
         "tools",
         "adversaries",
         "docs",
+        "python",
+        ".ci",
     ] {
         let path = root.join(dir);
         if path.is_dir() {
@@ -336,13 +338,16 @@ fn no_one_cites_a_document_the_repository_lacks() {
     files.push(root.join("README.md"));
     files.push(root.join("DEVELOPERS.md"));
     for file in files {
-        if file.ends_with("tests/architecture.rs") {
-            continue; // this file names the words it looks for
-        }
         let Ok(text) = std::fs::read_to_string(&file) else {
             continue;
         };
-        for word in ["THEORY.md", "DESIGN.md", "STYLE.md", "../shared"] {
+        // Spelled in pieces so that this file does not name them itself.
+        for word in [
+            concat!("THEORY", ".md"),
+            concat!("DESIGN", ".md"),
+            concat!("STYLE", ".md"),
+            concat!("..", "/shared"),
+        ] {
             assert!(!text.contains(word), "{} mentions {word}", file.display());
         }
     }
