@@ -19,15 +19,10 @@ pub fn draw_all(dir: &Path) -> Result<Vec<PathBuf>, Error> {
     let record = dir.join(crate::sweep::EXTERNAL_METHODS_FILE);
     if !scenario.external.is_empty() && record.is_file() {
         let text = crate::files::read_capped(&record, crate::files::MAX_SMALL_FILE, "record")?;
-        for line in text.lines() {
-            let mut fields = line.split('\t');
-            let (Some(name), Some(_), Some(folder)) = (fields.next(), fields.next(), fields.next())
-            else {
-                continue;
-            };
-            let folder = PathBuf::from(folder);
-            if let Some(entry) = scenario.external.iter_mut().find(|e| e.name == name) {
-                if folder.is_dir() {
+        for record in text.lines().map(crate::sweep::ExternalRecord::parse) {
+            let folder = PathBuf::from(record.folder);
+            if let Some(entry) = scenario.external.iter_mut().find(|e| e.name == record.name) {
+                if !record.folder.is_empty() && folder.is_dir() {
                     entry.working_dir = Some(folder);
                 }
             }

@@ -87,6 +87,16 @@ pub enum Outcome {
     Interrupted,
 }
 
+impl Outcome {
+    /// The (0-based) witness that refutes the method's output, if one does.
+    pub fn refuting_witness(&self) -> Option<usize> {
+        match *self {
+            Outcome::OutputRefuted { witness } | Outcome::EmptyRefuted { witness } => Some(witness),
+            _ => None,
+        }
+    }
+}
+
 /// The verifier's verdict on a transcript.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Verdict {

@@ -83,6 +83,14 @@ pub struct HuntArgs {
 
 /// Runs `hunt`.
 pub fn run(args: &HuntArgs) -> Result<u8, Error> {
+    if args.exec.exec && args.replay.is_some() {
+        return Err(Error::InvalidSetting {
+            name: "--replay",
+            reason: "replays the built-in method a transcript names; it cannot be combined \
+                     with --exec"
+                .into(),
+        });
+    }
     if let Some(path) = &args.replay {
         return run_replay(path);
     }
@@ -94,6 +102,12 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
         recent_queries: args.recent_queries,
         game_budget: args.budget,
     };
+    if !args.exec.exec && !args.exec.command.is_empty() {
+        return Err(Error::InvalidSetting {
+            name: "command line",
+            reason: "a program after `--` needs --exec".into(),
+        });
+    }
     settings.validate()?;
     check_resources(args)?;
     let bar = crate::cli::progress::Report::start(
@@ -112,81 +126,7 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
             p.best_certified
         ));
     };
-    if args.exec.exec && args.replay.is_some() {
-        return Err(Error::InvalidSetting {
-            name: "--replay",
-            reason: "replays the built-in method a transcript names; it cannot be combined \
-                     with --exec"
-                .into(),
-        });
-    }
-    if !args.exec.exec && !args.exec.command.is_empty() {
-        return Err(Error::InvalidSetting {
-            name: "command line",
-            reason: "a program after `--` needs --exec".into(),
-        });
-    }
-    let found: Result<HuntReport, Error> = (|| {
-        Ok(match args.family {
-            Family::Feasibility if args.exec.exec => {
-                let inner = args.class.to_class()?;
-                let factory = external_factory(args, &Class::Feasibility(inner.clone()))?;
-                hunt::hunt(
-                    &inner,
-                    args.seed,
-                    &factory,
-                    &settings,
-                    &mut on_progress,
-                    args.transcript.as_deref(),
-                )?
-            }
-            Family::FirstOrder if args.exec.exec => {
-                let inner = args.first_order.to_class(&args.class)?;
-                let class = Class::FirstOrder(inner.clone());
-                let factory = external_factory(args, &class)?;
-                hunt::first_order::hunt_first_order(
-                    &inner,
-                    args.seed,
-                    &factory,
-                    &settings,
-                    &mut on_progress,
-                    args.transcript.as_deref(),
-                )?
-            }
-            Family::Feasibility => hunt::hunt_builtin(
-                &args.method,
-                &args.class.to_class()?,
-                args.seed,
-                &settings,
-                &mut on_progress,
-                args.transcript.as_deref(),
-            )?,
-            Family::FirstOrder => hunt::first_order::hunt_first_order_builtin(
-                &args.method,
-                &args.first_order.to_class(&args.class)?,
-                args.seed,
-                &settings,
-                &mut on_progress,
-                args.transcript.as_deref(),
-            )?,
-            Family::Lattice => {
-                return Err(Error::Unsupported {
-                    what: "hunt".into(),
-                    reason: "lattice classes have no hunt; use `naysayer minimax` for small ones"
-                        .into(),
-                })
-            }
-            Family::LargeScale => {
-                return Err(Error::Unsupported {
-                    what: "hunt".into(),
-                    reason: "the large-scale family has no hunt: its adaptive-rotation \
-                         adversaries already bind every deterministic method \
-                         (docs/theory.md §3)"
-                        .into(),
-                })
-            }
-        })
-    })();
+    let found = search(args, &settings, &mut on_progress);
     // A signal during the search (or its determinism re-check) ends the hunt as
     // interrupted, whatever the search was doing when it came.
     let report = match found {
@@ -212,6 +152,74 @@ pub fn run(args: &HuntArgs) -> Result<u8, Error> {
         EXIT_OK
     } else {
         EXIT_REJECTED
+    })
+}
+
+/// Runs the hunt the arguments ask for: a built-in or an external method, feasibility or
+/// first-order.
+fn search(
+    args: &HuntArgs,
+    settings: &HuntSettings,
+    on_progress: &mut dyn FnMut(&hunt::HuntProgress),
+) -> Result<HuntReport, Error> {
+    Ok(match args.family {
+        Family::Feasibility if args.exec.exec => {
+            let inner = args.class.to_class()?;
+            let factory = external_factory(args, &Class::Feasibility(inner.clone()))?;
+            hunt::hunt(
+                &inner,
+                args.seed,
+                &factory,
+                settings,
+                on_progress,
+                args.transcript.as_deref(),
+            )?
+        }
+        Family::FirstOrder if args.exec.exec => {
+            let inner = args.first_order.to_class(&args.class)?;
+            let class = Class::FirstOrder(inner.clone());
+            let factory = external_factory(args, &class)?;
+            hunt::first_order::hunt_first_order(
+                &inner,
+                args.seed,
+                &factory,
+                settings,
+                on_progress,
+                args.transcript.as_deref(),
+            )?
+        }
+        Family::Feasibility => hunt::hunt_builtin(
+            &args.method,
+            &args.class.to_class()?,
+            args.seed,
+            settings,
+            on_progress,
+            args.transcript.as_deref(),
+        )?,
+        Family::FirstOrder => hunt::first_order::hunt_first_order_builtin(
+            &args.method,
+            &args.first_order.to_class(&args.class)?,
+            args.seed,
+            settings,
+            on_progress,
+            args.transcript.as_deref(),
+        )?,
+        Family::Lattice => {
+            return Err(Error::Unsupported {
+                what: "hunt".into(),
+                reason: "lattice classes have no hunt; use `naysayer minimax` for small ones"
+                    .into(),
+            })
+        }
+        Family::LargeScale => {
+            return Err(Error::Unsupported {
+                what: "hunt".into(),
+                reason: "the large-scale family has no hunt: its adaptive-rotation \
+                     adversaries already bind every deterministic method \
+                     (docs/theory.md §3)"
+                    .into(),
+            })
+        }
     })
 }
 

@@ -216,12 +216,10 @@ pub fn run(args: &PlayArgs) -> Result<u8, Error> {
         crate::note!("naysayer: method failed: {reason}");
     }
     let refuted = match &report {
-        GameReport::Certificate(r) => r.verdict.as_ref().is_ok_and(|v| {
-            matches!(
-                v.outcome,
-                Outcome::OutputRefuted { .. } | Outcome::EmptyRefuted { .. }
-            )
-        }),
+        GameReport::Certificate(r) => r
+            .verdict
+            .as_ref()
+            .is_ok_and(|v| v.outcome.refuting_witness().is_some()),
         GameReport::Demonstration(_) => false,
     };
     let code = match (accepted, ending) {
@@ -373,9 +371,7 @@ fn summary(spec: &GameSpec, report: &Report) -> String {
                 "outcome                {}\n",
                 describe_outcome(&verdict.outcome, &report.record.ending)
             ));
-            if let Outcome::OutputRefuted { witness } | Outcome::EmptyRefuted { witness } =
-                verdict.outcome
-            {
+            if let Some(witness) = verdict.outcome.refuting_witness() {
                 if let Some(instance) = report
                     .record
                     .certificate
@@ -513,13 +509,10 @@ pub fn json_summary(spec: &GameSpec, report: &GameReport) -> serde_json::Value {
         GameReport::Certificate(r) => match &r.verdict {
             Ok(v) => {
                 set("outcome", json!(outcome_name(&v.outcome)));
-                let witness = match v.outcome {
-                    Outcome::OutputRefuted { witness } | Outcome::EmptyRefuted { witness } => {
-                        Some(witness + 1)
-                    }
-                    _ => None,
-                };
-                set("refuting_witness", json!(witness));
+                set(
+                    "refuting_witness",
+                    json!(v.outcome.refuting_witness().map(|w| w + 1)),
+                );
                 set("certified_lower_bound", json!(v.certified_lower_bound()));
                 set("certified_uncertainty", json!(v.certified_uncertainty));
             }

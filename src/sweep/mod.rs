@@ -574,9 +574,32 @@ fn start_over(dir: &Path) -> Result<(), Error> {
 /// the folder its relative command resolves against, separated by tabs.
 pub const EXTERNAL_METHODS_FILE: &str = "external-methods.txt";
 
-/// Records what each external method of the scenario is (one line each: name, a tab,
-/// its fingerprint), or, when resuming, checks that none has changed since the rows were
-/// written.
+/// One line of [`EXTERNAL_METHODS_FILE`] (a missing field reads as empty).
+pub struct ExternalRecord<'a> {
+    /// The method's name in the scenario.
+    pub name: &'a str,
+    /// What the program was ([`crate::family::ExternalEntry::fingerprint`]).
+    pub fingerprint: &'a str,
+    /// The folder its relative command resolved against (empty when none).
+    pub folder: &'a str,
+}
+
+impl<'a> ExternalRecord<'a> {
+    /// Reads one line.
+    pub fn parse(line: &'a str) -> ExternalRecord<'a> {
+        let mut fields = line.split('\t');
+        let mut next = || fields.next().unwrap_or_default();
+        ExternalRecord {
+            name: next(),
+            fingerprint: next(),
+            folder: next(),
+        }
+    }
+}
+
+/// Records what each external method of the scenario is (one [`ExternalRecord`] line
+/// each), or, when resuming, checks that none has changed since the rows were written:
+/// name and fingerprint decide; the folder may move with the scenario.
 fn claim_external_methods(dir: &Path, scenario: &Scenario) -> Result<(), Error> {
     if scenario.external.is_empty() {
         return Ok(());
@@ -592,17 +615,17 @@ fn claim_external_methods(dir: &Path, scenario: &Scenario) -> Result<(), Error> 
             format!("{}\t{}\t{folder}\n", e.name, e.fingerprint())
         })
         .collect();
-    // Name and fingerprint decide; the folder (where relative commands resolve, kept
-    // for `naysayer chart`) may move with the scenario.
-    let identity =
-        |line: &str| -> String { line.split('\t').take(2).collect::<Vec<_>>().join("\t") };
     let path = dir.join(EXTERNAL_METHODS_FILE);
     let has_rows = std::fs::metadata(dir.join("games.csv")).is_ok_and(|m| m.len() > 0);
     if path.exists() && has_rows {
         let old = crate::files::read_capped(&path, crate::files::MAX_SMALL_FILE, "record")?;
         for (line_old, line_new) in old.lines().zip(text.lines()) {
-            if identity(line_old) != identity(line_new) {
-                let name = line_new.split('\t').next().unwrap_or_default();
+            let (was, now) = (
+                ExternalRecord::parse(line_old),
+                ExternalRecord::parse(line_new),
+            );
+            if (was.name, was.fingerprint) != (now.name, now.fingerprint) {
+                let name = now.name;
                 return Err(Error::Results {
                     path: dir.to_path_buf(),
                     reason: format!(
@@ -610,8 +633,7 @@ fn claim_external_methods(dir: &Path, scenario: &Scenario) -> Result<(), Error> 
                          written (was: {}; now: {}); its finished games would mix two \
                          programs: rerun with --restart to start over (or write elsewhere \
                          with --out)",
-                        line_old.split('\t').nth(1).unwrap_or(""),
-                        line_new.split('\t').nth(1).unwrap_or(""),
+                        was.fingerprint, now.fingerprint,
                     ),
                 });
             }
